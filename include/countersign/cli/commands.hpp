@@ -1,0 +1,31 @@
+#pragma once
+
+// The `countersign` command line: one registration function per subcommand, each in its own
+// source file under src/cli/. A command writes its exit code into the shared slot when it runs.
+
+#include <countersign/util/exit_code.hpp>
+
+#include <CLI/CLI.hpp>
+#include <iosfwd>
+
+namespace countersign::cli {
+
+struct Io {
+  std::ostream& out;
+  std::ostream& err;
+  bool out_is_terminal = false;  // progress indicators and colour only on a terminal
+};
+
+struct CommandContext {
+  Io io;
+  ExitCode exit_code = ExitCode::all_within_tolerance;
+};
+
+void add_show_command(CLI::App& app, CommandContext& context);
+void add_check_command(CLI::App& app, CommandContext& context);
+void add_beamdata_command(CLI::App& app, CommandContext& context);
+
+// Parses the arguments, runs the chosen subcommand and returns the process exit code.
+[[nodiscard]] int run(int argc, const char* const* argv, Io io);
+
+}  // namespace countersign::cli
