@@ -18,6 +18,7 @@ int run(int argc, const char* const* argv, Io io) {
   add_show_command(app, context);
   add_check_command(app, context);
   add_beamdata_command(app, context);
+  add_selftest_command(app, context);
 
   try {
     app.parse(argc, argv);

@@ -1,11 +1,141 @@
+// `countersign check PLAN.dcm|FOLDER ...`: every beam of each plan recomputed from the beam-data
+// library and judged against the planned dose; a table on the terminal or JSON (--json).
+// The bundled library is the source tree's beamdata/ (its path is compiled in as
+// COUNTERSIGN_BUNDLED_BEAMDATA); --beamdata names another.
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/check/check_plan.hpp>
 #include <countersign/cli/commands.hpp>
+#include <countersign/dicom/read_plan.hpp>
+#include <countersign/report/check_json.hpp>
+#include <countersign/report/check_text.hpp>
+
+#include <algorithm>
+#include <filesystem>
+#include <map>
+#include <memory>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
+#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
+#endif
 
 namespace countersign::cli {
 
-// Placeholder registration so the program builds while the command is written.
+namespace {
+
+namespace fs = std::filesystem;
+
+struct CheckCommandOptions {
+  std::vector<std::string> paths;
+  std::string beamdata;
+  std::string policy;
+  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
+  engine::DepthChoice depth = engine::DepthChoice::planned;
+  bool json = false;
+};
+
+// The files named, folders expanded to their .dcm files (sorted, so the output order is stable).
+std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
+  std::vector<fs::path> files;
+  for (const std::string& path : paths) {
+    std::error_code ec;
+    if (!fs::is_directory(path, ec)) {
+      files.emplace_back(path);
+      continue;
+    }
+    std::vector<fs::path> found;
+    for (const auto& entry : fs::directory_iterator(path, ec)) {
+      if (entry.is_regular_file() && entry.path().extension() == ".dcm") found.push_back(entry.path());
+    }
+    std::sort(found.begin(), found.end());
+    files.insert(files.end(), found.begin(), found.end());
+  }
+  return files;
+}
+
+ExitCode run_check(const CheckCommandOptions& options, Io& io) {
+  check::CheckOptions check_options;
+  check_options.engine.method = options.method;
+  check_options.engine.depth = options.depth;
+  if (!options.policy.empty()) {
+    auto policy = check::load_policy(options.policy);
+    if (!policy) {
+      io.err << "countersign check: " << policy.error().message() << "\n";
+      return ExitCode::bad_input;
+    }
+    check_options.policy = std::move(policy.value());
+  }
+  const fs::path library_dir = options.beamdata.empty() ? fs::path(COUNTERSIGN_BUNDLED_BEAMDATA) : fs::path(options.beamdata);
+  auto library = beamdata::load_library(library_dir);
+  if (!library) {
+    io.err << "countersign check: " << library.error().message() << "\n";
+    return ExitCode::bad_input;
+  }
+
+  ExitCode exit_code = ExitCode::all_within_tolerance;
+  std::vector<check::PlanCheck> checks;
+  std::vector<std::string> errors;
+  const std::vector<fs::path> files = plan_files(options.paths);
+  if (files.empty()) {
+    io.err << "countersign check: no .dcm file found in the folders given\n";
+    return ExitCode::bad_input;
+  }
+  for (const fs::path& file : files) {
+    auto plan = dicom::read_plan_file(file);
+    if (!plan) {
+      // One bad file does not stop the others.
+      const std::string message = plan.error().message();
+      io.err << message << "\n";
+      errors.push_back(message);
+      exit_code = worst(exit_code, ExitCode::bad_input);
+      continue;
+    }
+    check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
+    exit_code = worst(exit_code, result.exit_code());
+    if (!options.json) {
+      report::write_check_text(io.out, result);
+      io.out << "\n";
+    }
+    checks.push_back(std::move(result));
+  }
+  if (options.json) {
+    io.out << report::check_run_to_json(checks, errors, static_cast<int>(exit_code)).dump(2) << "\n";
+  } else {
+    io.out << report::caution_text << "\n";
+  }
+  return exit_code;
+}
+
+}  // namespace
+
 void add_check_command(CLI::App& app, CommandContext& context) {
-  auto* command = app.add_subcommand("check", "(being written)");
-  command->callback([&context] { context.exit_code = ExitCode::bad_input; });
+  auto options = std::make_shared<CheckCommandOptions>();
+  auto* command = app.add_subcommand(
+      "check",
+      "Recompute the dose of every beam at its dose point from the beam-data library and judge it against the "
+      "planned dose. Exit 0: all within tolerance; 1: a beam outside tolerance; 2: a beam or plan not checked; "
+      "3: bad input or usage.");
+  command->add_option("plans", options->paths, "RT Plan files, or folders of .dcm files")->required();
+  command->add_option("--beamdata", options->beamdata,
+                      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in TG-114 based values)");
+  const std::map<std::string, engine::MethodChoice> methods{{"auto", engine::MethodChoice::by_setup_technique},
+                                                            {"tmr", engine::MethodChoice::tmr},
+                                                            {"pdd", engine::MethodChoice::pdd}};
+  command->add_option("--method", options->method,
+                      "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
+      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
+  const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
+                                                          {"equivalent", engine::DepthChoice::equivalent}};
+  command->add_option("--depth", options->depth,
+                      "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
+                      "(the plan's radiological depth)")
+      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
+  command->add_flag("--json", options->json, "write JSON instead of the table");
+  command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
 }
 
 }  // namespace countersign::cli

@@ -26,8 +26,26 @@ std::string slurp(const std::filesystem::path& path) {
 }
 }  // namespace
 
-std::filesystem::path source_dir() { return env_or_throw("COUNTERSIGN_SOURCE_DIR"); }
-std::filesystem::path program() { return env_or_throw("COUNTERSIGN_BINARY"); }
+// The environment wins; the compile-time paths from tests/CMakeLists.txt cover a variable that
+// CTest did not pass on.
+namespace {
+std::string env_or_default(const char* name, const char* fallback) {
+  const char* value = std::getenv(name);
+  if (value != nullptr && *value != '\0') return value;
+  if (fallback != nullptr && *fallback != '\0') return fallback;
+  return env_or_throw(name);
+}
+}  // namespace
+
+#ifndef COUNTERSIGN_TEST_SOURCE_DIR
+#define COUNTERSIGN_TEST_SOURCE_DIR ""
+#endif
+#ifndef COUNTERSIGN_TEST_BINARY
+#define COUNTERSIGN_TEST_BINARY ""
+#endif
+
+std::filesystem::path source_dir() { return env_or_default("COUNTERSIGN_SOURCE_DIR", COUNTERSIGN_TEST_SOURCE_DIR); }
+std::filesystem::path program() { return env_or_default("COUNTERSIGN_BINARY", COUNTERSIGN_TEST_BINARY); }
 
 std::string quote(const std::string& argument) {
   std::string quoted = "'";

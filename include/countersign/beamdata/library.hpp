@@ -2,6 +2,7 @@
 
 // A beam-data library (BEAMDATA.md): machines, their beams and tables, loaded and validated.
 
+#include <countersign/beamdata/problem.hpp>
 #include <countersign/beamdata/table.hpp>
 #include <countersign/util/error.hpp>
 
@@ -76,6 +77,7 @@ struct Library {
   std::filesystem::path root;
   std::vector<Machine> machines;
   std::string sha256_hex;               // over the manifests and every table they name, fixed order
+  std::vector<Problem> warnings;        // findings that do not stop use (validation.hpp), for reports
 
   [[nodiscard]] const Machine* machine(const std::string& name) const;
   // Match by machine name (exact), radiation type (exact) and nominal energy (within 0.01 MV).

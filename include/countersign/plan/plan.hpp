@@ -43,7 +43,7 @@ struct DosePointDistances {
   std::optional<double> depth_mm;                        // Beam Dose Point Depth (300A,0088)
   std::optional<double> equivalent_depth_mm;             // Beam Dose Point Equivalent Depth (300A,0089)
   std::optional<double> ssd_mm;                          // Beam Dose Point SSD (300A,008A)
-  std::optional<double> source_to_external_contour_mm;   // Beam Dose Point Source to External Contour Distance (300A,008D)
+  std::optional<double> source_to_external_contour_mm;   // Beam Dose Point Source to External Contour Distance (300A,0094)
 
   [[nodiscard]] bool empty() const {
     return !depth_mm && !equivalent_depth_mm && !ssd_mm && !source_to_external_contour_mm;
@@ -155,6 +155,8 @@ struct Beam {
   std::vector<Accessory> applicators;                // Applicator Sequence (300A,0107)
   std::vector<Accessory> compensators;               // Compensator Sequence (300A,00E3)
   std::vector<Accessory> boli;                       // Referenced Bolus Sequence (300C,00B0)
+  // General Accessory Sequence (300A,0420): number (300A,0424), id (300A,0421), type (300A,0423)
+  std::vector<Accessory> general_accessories;
   std::optional<double> final_cumulative_meterset_weight;  // (300A,010E)
   std::optional<int> referenced_patient_setup_number;      // (300C,006A)
   std::vector<BeamDoseReference> dose_references;    // Referenced Dose Reference Sequence (300C,0050)

@@ -1,0 +1,66 @@
+#pragma once
+
+// The tolerance policy: how large a deviation between the planned and the independently computed
+// dose is accepted, by category of field, and the safety limits that make a beam "not checked".
+// Defaults are based on AAPM TG-114 (2011) action levels (values from memory; each clinic sets its
+// own in a TOML file, see config/tolerance-policy.toml).
+
+#include <countersign/util/error.hpp>
+
+#include <filesystem>
+#include <string>
+#include <string_view>
+
+namespace countersign::check {
+
+enum class FieldCategory {
+  simple,     // static open or wedged field, point near the axis and well inside the field
+  complex,    // off-axis point, asymmetric jaws, MLC-shaped or blocked field
+  modulated,  // step-and-shoot, sliding window, arcs
+};
+[[nodiscard]] std::string_view to_code(FieldCategory category);
+
+enum class Medium {
+  homogeneous,    // the plan's equivalent depth matches its geometric depth (or is absent)
+  heterogeneous,  // they differ by more than the policy's threshold
+};
+[[nodiscard]] std::string_view to_code(Medium medium);
+
+struct TolerancePolicy {
+  std::string source = "built-in defaults";  // where it came from, for reports
+
+  // Accepted |deviation| in percent.
+  double simple_percent = 2.0;
+  double complex_percent = 3.0;
+  double modulated_percent = 5.0;
+  double simple_heterogeneous_percent = 3.0;
+  double complex_heterogeneous_percent = 4.0;
+  double modulated_heterogeneous_percent = 5.0;
+
+  // What makes a field "complex" rather than "simple".
+  double simple_max_off_axis_cm = 2.0;        // point farther from the axis (isocentre plane)
+  double simple_max_jaw_offset_cm = 1.0;      // jaw rectangle centre farther from the axis
+  double simple_min_open_fraction = 0.95;     // MLC opening / jaw rectangle area below this
+  double heterogeneous_depth_difference_percent = 5.0;  // |equivalent - geometric| / geometric above this
+
+  // Safety limits: beyond them the beam is not checked.
+  double min_edge_distance_cm = 1.0;          // static beams: point closer to a field edge (penumbra)
+  double max_depth_discrepancy_cm = 1.0;      // plan depth vs SPD - SSD, for points near the axis ...
+  double depth_check_max_off_axis_cm = 2.0;   // ... closer than this to it
+  double wedge_max_off_axis_cm = 2.0;         // wedged field: open-field OAR not valid farther out
+
+  // A beam giving less than this share of its point's planned dose is also judged against the
+  // point's total (common practice, no source).
+  double small_share_fraction = 0.2;
+
+  [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
+};
+
+// The built-in defaults (the values above).
+[[nodiscard]] TolerancePolicy default_policy();
+
+// Reads a policy file. Absent keys keep their defaults; unknown keys, non-numbers and values out
+// of range are errors (kind bad_configuration) naming the file and the key.
+[[nodiscard]] Expected<TolerancePolicy> load_policy(const std::filesystem::path& file);
+
+}  // namespace countersign::check

@@ -1,0 +1,107 @@
+#pragma once
+
+// The dose one beam delivers at one point, computed from the plan's geometry and the clinic's
+// tables, with everything that went into it: the beam data used, the geometry (depth and its
+// source, SPD, off-axis distance, apertures), every factor with its provenance, and the
+// approximations made, in words. No file I/O; a plan and a loaded library in, a value out.
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/engine/dose_point.hpp>
+#include <countersign/engine/point_dose.hpp>
+#include <countersign/engine/reason.hpp>
+#include <countersign/geometry/aperture.hpp>
+#include <countersign/geometry/beam_frame.hpp>
+#include <countersign/plan/plan.hpp>
+
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace countersign::engine {
+
+enum class MethodChoice { by_setup_technique, tmr, pdd };
+
+struct EngineOptions {
+  MethodChoice method = MethodChoice::by_setup_technique;  // FIXED_SSD -> pdd, otherwise tmr
+  DepthChoice depth = DepthChoice::planned;
+};
+
+// The depth used and how it was obtained.
+struct DepthUsed {
+  double depth_mm = 0.0;
+  DepthSource source = DepthSource::derived_spd_minus_ssd;
+  DepthChoice kind = DepthChoice::planned;
+  std::string description;                       // one sentence for the report
+  std::optional<double> plan_depth_mm;           // the plan's Beam Dose Point Depth for this point
+  std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
+  std::optional<double> spd_minus_ssd_mm;        // the flat-surface depth, when the SSD is known
+};
+
+// Facts the tolerance policy sorts beams by.
+struct BeamFeatures {
+  bool modulated = false;               // more than one segment, or a moving gantry
+  bool wedged = false;
+  bool tray = false;
+  bool blocks = false;                  // block shapes present (not modelled)
+  double jaw_centre_offset_mm = 0.0;    // distance of the jaw rectangle's centre from the axis
+  double open_to_jaw_area_ratio = 1.0;  // aperture area / jaw rectangle area (1 without MLC shaping)
+};
+
+// One part of the meterset delivered with one aperture and one beam direction.
+struct Segment {
+  int from_control_point = 0;           // the control point index the part starts at
+  double meterset_mu = 0.0;
+  geometry::BeamAngles angles;
+  geometry::PointInBeam point;
+  double depth_mm = 0.0;
+  double ssd_mm = 0.0;
+  geometry::JawOpening jaws;
+  double open_area_mm2 = 0.0;
+  double open_perimeter_mm = 0.0;
+  bool point_in_opening = false;
+  bool point_in_jaws = false;
+  DoseInputs inputs;
+  PointDose dose;
+};
+
+struct BeamDose {
+  // Set when the dose could not be computed (dose fields are then not meaningful).
+  std::optional<Finding> problem;
+  bool dose_computed = false;
+
+  const beamdata::Machine* machine = nullptr;   // points into the library passed in
+  const beamdata::BeamData* beam_data = nullptr;
+  DosePoint dose_point;
+  std::optional<geometry::PatientPosition> patient_position;
+  geometry::BeamAngles angles;                  // control point 0
+  plan::PointMm isocenter_mm{};
+  double sad_mm = 0.0;
+  std::optional<double> ssd_mm;                 // control point 0's Source to Surface Distance
+  geometry::PointInBeam point;                  // the dose point seen from control point 0
+  DepthUsed depth;
+  geometry::Aperture aperture;                  // control point 0 (the field of a static beam)
+  bool point_in_field = false;                  // inside the aperture of control point 0
+  double edge_distance_mm = 0.0;                // to the nearest edge of that aperture (isocentre plane)
+  Method method = Method::tmr;
+  std::string method_reason;                    // why this formalism
+  DoseInputs inputs;                            // static beam: the inputs of `dose`
+  PointDose dose;                               // static beam: the dose and its factors
+  std::vector<Segment> segments;                // modulated beam: each part (static beam: its one part)
+  BeamFeatures features;
+  double meterset_mu = 0.0;
+  double computed_dose_gy = 0.0;
+  std::vector<std::string> approximations;      // sentences
+
+  // The first extrapolated factor in any part, or nullptr.
+  [[nodiscard]] const Factor* first_extrapolated() const;
+};
+
+// Computes the dose the beam delivers at `point` with the meterset of `referenced`.
+[[nodiscard]] BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
+                                         const plan::ReferencedBeam& referenced, const DosePoint& point,
+                                         const beamdata::Library& library, const EngineOptions& options);
+
+// Largest gantry step (degrees) of one arc segment; longer moves are split.
+inline constexpr double max_arc_step_deg = 5.0;
+
+}  // namespace countersign::engine

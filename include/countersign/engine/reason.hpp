@@ -1,0 +1,54 @@
+#pragma once
+
+// Why a beam got the status it got. The snake_case codes appear in JSON and are documented in the
+// README: changing one is a breaking change. Each outcome carries a code and one sentence.
+
+#include <string>
+#include <string_view>
+
+namespace countersign::engine {
+
+enum class Reason {
+  // Verdicts (set by the check module).
+  deviation_within_tolerance,
+  deviation_within_tolerance_of_point_total,  // a small contributor judged against its point's total
+  deviation_exceeds_tolerance,
+  // Listed and skipped, never judged.
+  setup_beam,            // Treatment Delivery Type is not TREATMENT
+  no_meterset,           // no Beam Meterset, or zero MU
+  // Not checked.
+  unknown_machine,
+  unknown_energy,
+  unsupported_radiation,         // electrons, protons, ... (or the library has no such beams)
+  unsupported_technique,         // e.g. Primary Dosimeter Unit MINUTE
+  unsupported_patient_position,
+  unsupported_accessory,         // compensator, applicator, bolus with a derived depth, ...
+  unknown_accessory,             // a wedge or tray the library does not have
+  unsupported_geometry,          // MLCY, point at or behind the source, wedge with an off-axis point, ...
+  sad_mismatch,                  // the plan's Source-Axis Distance differs from the machine's
+  missing_plan_data,             // an input the dose depends on is absent from the plan
+  missing_beam_data,             // an optional table the calculation needs is absent (OAR, MLC transmission)
+  no_dose_point,
+  no_planned_dose,
+  planned_dose_not_beam_level,   // Beam Dose Meaning FRACTION_LEVEL: no beam dose to compare with
+  point_outside_field,
+  point_near_field_edge,
+  table_extrapolated,
+  inconsistent_depth,            // the plan's depth and SPD - SSD disagree beyond the policy limit
+  // Plan level.
+  nothing_to_check,              // no beam of the plan could be judged (all skipped)
+};
+
+// The snake_case code used in JSON and text output.
+[[nodiscard]] std::string_view reason_code(Reason reason);
+
+// Whether the reason means "listed and skipped".
+[[nodiscard]] bool is_skip(Reason reason);
+
+// A reason with its sentence.
+struct Finding {
+  Reason reason = Reason::missing_plan_data;
+  std::string sentence;
+};
+
+}  // namespace countersign::engine

@@ -1,0 +1,60 @@
+#pragma once
+
+// Durable, private file operations for the services. Results, quarantined files and the history
+// hold patient data: directories are created 0750 and files 0640, whatever the umask. Every write
+// that must survive a crash is fsync'ed, and so is the directory entry that names it.
+
+#include <countersign/service/unique_fd.hpp>
+#include <countersign/util/error.hpp>
+
+#include <cstddef>
+#include <filesystem>
+#include <string_view>
+
+namespace countersign::service {
+
+inline constexpr std::filesystem::perms private_directory_perms = std::filesystem::perms{0750};
+inline constexpr std::filesystem::perms private_file_perms = std::filesystem::perms{0640};
+
+// Creates `dir` and any missing parents with mode 0750; an existing directory is left as it is.
+[[nodiscard]] Expected<std::filesystem::path> ensure_private_directory(const std::filesystem::path& dir);
+
+// Replaces `target` atomically with `content`: a temporary file in the same directory (0640), fsync,
+// rename over the target, fsync of the directory. A reader sees the old file or the new, never a part.
+[[nodiscard]] Expected<std::filesystem::path> write_file_atomically(const std::filesystem::path& target,
+                                                                    std::string_view content);
+
+// What to do when the destination of a move already exists.
+enum class OnExisting { pick_free_name, replace };
+
+// Moves `from` to `to` durably: rename when on the same file system, otherwise copy, fsync and unlink.
+// With pick_free_name an existing `to` is kept and the file gets "<name>.2", "<name>.3", ...
+// Returns the final path.
+[[nodiscard]] Expected<std::filesystem::path> move_file_durably(const std::filesystem::path& from,
+                                                                const std::filesystem::path& to,
+                                                                OnExisting on_existing);
+
+// Removes a file and makes the removal durable; a file already gone is not an error.
+[[nodiscard]] Expected<std::filesystem::path> remove_file_durably(const std::filesystem::path& file);
+
+// fsync of a directory, so that a rename or unlink inside it survives a crash.
+[[nodiscard]] Expected<std::filesystem::path> sync_directory(const std::filesystem::path& dir);
+
+// An exclusive lock on a folder for as long as this object lives (flock on "<dir>/.countersign.lock";
+// the kernel releases it when the process dies, even by SIGKILL). One service per results folder:
+// two would race for the same inbox files and history.
+class FolderLock {
+ public:
+  [[nodiscard]] static Expected<FolderLock> acquire(const std::filesystem::path& dir);
+
+ private:
+  explicit FolderLock(UniqueFd fd) : fd_(std::move(fd)) {}
+  UniqueFd fd_;
+};
+
+// Removes what an interrupted write of ours leaves behind in `dir`: hidden temporary files made by
+// write_file_atomically (".<name>.XXXXXX") and "*.partial" copies. Call only while holding the
+// FolderLock of the service that owns `dir`. Returns how many were removed.
+std::size_t remove_stale_temporaries(const std::filesystem::path& dir);
+
+}  // namespace countersign::service

@@ -1,0 +1,26 @@
+#pragma once
+
+// The services' log: one line per event, prefixed with the UTC time, safe to call from the
+// receiver's threads and the checking loop at once. Under systemd the lines go to the journal.
+
+#include <mutex>
+#include <ostream>
+#include <string_view>
+
+namespace countersign::service {
+
+class ServiceLog {
+ public:
+  explicit ServiceLog(std::ostream& out) : out_(out) {}
+  ServiceLog(const ServiceLog&) = delete;
+  ServiceLog& operator=(const ServiceLog&) = delete;
+
+  // Writes "<UTC time> <text>" and flushes.
+  void line(std::string_view text);
+
+ private:
+  std::mutex mutex_;
+  std::ostream& out_;
+};
+
+}  // namespace countersign::service

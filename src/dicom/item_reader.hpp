@@ -1,0 +1,89 @@
+#pragma once
+
+// Strict access to the attributes of one DICOM item (internal to the dicom module).
+// The first failure is recorded in a shared ErrorSink; later reads return empty values so a parser
+// can read a whole item and check the sink once. No DCMTK type leaves src/dicom.
+
+#include <countersign/util/error.hpp>
+
+#include <dcmtk/config/osconfig.h>
+#include <dcmtk/dcmdata/dcitem.h>
+#include <dcmtk/dcmdata/dctagkey.h>
+
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace countersign::dicom::detail {
+
+enum class Need { required, optional };
+
+// Keeps the first error of a parse; later errors are usually consequences of the first.
+class ErrorSink {
+ public:
+  void fail(Error error) {
+    if (!first_) first_ = std::move(error);
+  }
+  [[nodiscard]] bool failed() const { return first_.has_value(); }
+  [[nodiscard]] const Error& error() const { return *first_; }
+
+ private:
+  std::optional<Error> first_;
+};
+
+// "(300A,00B0)"
+[[nodiscard]] std::string tag_text(const DcmTagKey& tag);
+// DCMTK dictionary keyword, e.g. "BeamSequence" (retired ones without the RETIRED_ prefix).
+[[nodiscard]] std::string keyword(const DcmTagKey& tag);
+// Makes text from a file safe to print on one line.
+[[nodiscard]] std::string printable(const std::string& text);
+// Parses a DICOM decimal string (DS) or integer string (IS) value strictly; nullopt if malformed
+// or not finite.
+[[nodiscard]] std::optional<double> parse_decimal(const std::string& text);
+[[nodiscard]] std::optional<long long> parse_integer(const std::string& text);
+
+class ItemReader {
+ public:
+  // `where` says which item this is, e.g. "BeamSequence item 2 (beam 2) > ControlPointSequence item 1".
+  ItemReader(DcmItem& item, const std::string& file, std::string where, ErrorSink& sink);
+
+  // Present with a non-empty value.
+  [[nodiscard]] bool has(const DcmTagKey& tag) const;
+  // Present at all (possibly empty).
+  [[nodiscard]] bool present(const DcmTagKey& tag) const;
+
+  // Text value with leading/trailing spaces removed; empty when absent (and an error if required).
+  [[nodiscard]] std::string text(const DcmTagKey& tag, Need need) const;
+  // One number (DS, IS, FL, FD, US, SS, UL, SL as stored), finite.
+  [[nodiscard]] std::optional<double> number(const DcmTagKey& tag, Need need) const;
+  // One integer (IS or binary integer VR).
+  [[nodiscard]] std::optional<int> integer(const DcmTagKey& tag, Need need) const;
+  // All values of a multi-valued numeric attribute; `count` 0 means any number of values.
+  [[nodiscard]] std::optional<std::vector<double>> numbers(const DcmTagKey& tag, Need need,
+                                                           std::size_t count) const;
+  // The items of a sequence; a required sequence must be present with at least one item.
+  [[nodiscard]] std::vector<ItemReader> sequence(const DcmTagKey& tag, Need need) const;
+  // The same item described with extra words, e.g. " (beam 2)", once its identity is known.
+  [[nodiscard]] ItemReader described(const std::string& suffix) const;
+
+  // A value in [low, high]; records a bad_value error otherwise and returns nullopt.
+  std::optional<double> within(const DcmTagKey& tag, std::optional<double> value, double low, double high,
+                               const char* unit) const;
+
+  void fail(ErrorKind kind, const DcmTagKey& tag, const std::string& detail) const;
+  [[nodiscard]] bool failed() const { return sink_->failed(); }
+  [[nodiscard]] const std::string& where() const { return where_; }
+  [[nodiscard]] const std::string& file() const { return *file_; }
+  [[nodiscard]] ErrorSink& sink() const { return *sink_; }
+
+ private:
+  [[nodiscard]] DcmElement* element(const DcmTagKey& tag) const;
+  [[nodiscard]] std::optional<std::vector<double>> all_numbers(const DcmTagKey& tag, Need need) const;
+
+  DcmItem* item_;
+  const std::string* file_;
+  std::string where_;
+  ErrorSink* sink_;
+};
+
+}  // namespace countersign::dicom::detail

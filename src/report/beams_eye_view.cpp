@@ -1,0 +1,321 @@
+#include <countersign/report/beams_eye_view.hpp>
+
+#include <countersign/report/html_escape.hpp>
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <numbers>
+#include <utility>
+
+namespace countersign::report {
+
+BevMapping::BevMapping(double scale, double collimator_deg, PaperMm axis_on_paper)
+    : scale_(scale),
+      collimator_deg_(collimator_deg),
+      cos_(std::cos(collimator_deg * std::numbers::pi / 180.0)),
+      sin_(std::sin(collimator_deg * std::numbers::pi / 180.0)),
+      axis_(axis_on_paper) {}
+
+PaperMm BevMapping::to_gantry_mm(double x_mm, double y_mm) const {
+  // v_gantry = Rz(collimator) v_collimator (right-handed about +Z, as geometry::BeamFrame has it).
+  return {cos_ * x_mm - sin_ * y_mm, sin_ * x_mm + cos_ * y_mm};
+}
+
+PaperMm BevMapping::to_paper(double x_mm, double y_mm) const {
+  const PaperMm g = to_gantry_mm(x_mm, y_mm);
+  // Seen from the source (+Z towards the viewer): +X right, +Y up; paper y grows downwards.
+  return {axis_.x + scale_ * g.x, axis_.y - scale_ * g.y};
+}
+
+const std::vector<double>& preferred_scales() {
+  static const std::vector<double> scales{1.0, 0.8, 0.5, 0.4, 0.25, 0.2, 0.1, 0.05};
+  return scales;
+}
+
+double choose_scale(double half_extent_mm, double half_room_mm) {
+  for (const double s : preferred_scales()) {
+    if (half_extent_mm * s <= half_room_mm + 1e-9) return s;
+  }
+  return preferred_scales().back();
+}
+
+std::string scale_text(double scale) {
+  const double denominator = 1.0 / scale;
+  return std::abs(denominator - std::round(denominator)) < 1e-9 ? fmt::format("1:{:.0f}", denominator)
+                                                                : fmt::format("1:{:g}", denominator);
+}
+
+namespace {
+
+bool same(double a, double b) { return std::abs(a - b) < 1e-6; }
+
+// Merges rows with the same leaf-pair band into non-overlapping intervals.
+std::vector<geometry::ApertureRow> merge_rows(std::vector<geometry::ApertureRow> rows) {
+  std::sort(rows.begin(), rows.end(), [](const auto& a, const auto& b) {
+    if (!same(a.y_lower_mm, b.y_lower_mm)) return a.y_lower_mm < b.y_lower_mm;
+    if (!same(a.y_upper_mm, b.y_upper_mm)) return a.y_upper_mm < b.y_upper_mm;
+    return a.lo_mm < b.lo_mm;
+  });
+  std::vector<geometry::ApertureRow> merged;
+  for (const auto& r : rows) {
+    if (!merged.empty()) {
+      auto& last = merged.back();
+      if (same(last.y_lower_mm, r.y_lower_mm) && same(last.y_upper_mm, r.y_upper_mm) && r.lo_mm <= last.hi_mm) {
+        last.hi_mm = std::max(last.hi_mm, r.hi_mm);
+        continue;
+      }
+    }
+    merged.push_back(r);
+  }
+  return merged;
+}
+
+void include(geometry::JawOpening& envelope, const geometry::JawOpening& jaws, bool& first) {
+  if (first) {
+    envelope = jaws;
+    first = false;
+    return;
+  }
+  envelope.x1_mm = std::min(envelope.x1_mm, jaws.x1_mm);
+  envelope.x2_mm = std::max(envelope.x2_mm, jaws.x2_mm);
+  envelope.y1_mm = std::min(envelope.y1_mm, jaws.y1_mm);
+  envelope.y2_mm = std::max(envelope.y2_mm, jaws.y2_mm);
+}
+
+}  // namespace
+
+std::optional<SweptOpening> swept_opening(const plan::Beam& beam) {
+  SweptOpening result;
+  std::vector<geometry::ApertureRow> rows;
+  bool first = true;
+  const auto& cps = beam.control_points;
+  for (std::size_t i = 0; i + 1 < cps.size(); ++i) {
+    const auto& a = cps[i];
+    const auto& b = cps[i + 1];
+    if (!a.cumulative_meterset_weight || !b.cumulative_meterset_weight) continue;
+    if (*b.cumulative_meterset_weight - *a.cumulative_meterset_weight <= 0.0) continue;
+    auto aperture_a = geometry::build_aperture(beam, a);
+    auto aperture_b = geometry::build_aperture(beam, b);
+    if (!aperture_a || !aperture_b) continue;
+    include(result.envelope, aperture_a->jaws(), first);
+    include(result.envelope, aperture_b->jaws(), first);
+    for (const auto* ap : {&aperture_a.value(), &aperture_b.value()}) {
+      for (const auto& r : ap->rows()) {
+        if (r.open()) rows.push_back(r);
+      }
+    }
+    // Leaves move linearly between control points: per leaf pair the swept area runs from the
+    // smaller to the larger of the two openings.
+    for (const auto& ra : aperture_a->rows()) {
+      for (const auto& rb : aperture_b->rows()) {
+        if (ra.open() && rb.open() && same(ra.y_lower_mm, rb.y_lower_mm) && same(ra.y_upper_mm, rb.y_upper_mm)) {
+          rows.push_back({ra.y_lower_mm, ra.y_upper_mm, std::min(ra.lo_mm, rb.lo_mm), std::max(ra.hi_mm, rb.hi_mm)});
+        }
+      }
+    }
+  }
+  if (first) return std::nullopt;
+  result.open = merge_rows(std::move(rows));
+  return result;
+}
+
+std::optional<BevContent> bev_content(const engine::BeamDose& dose, const plan::Beam* beam) {
+  if (dose.aperture.rows().empty() || !(dose.point.spd_mm > 0.0)) return std::nullopt;
+  BevContent c;
+  c.collimator_deg = dose.angles.collimator_deg;
+  c.dose_point_mm = PaperMm{dose.point.iso_plane_x_mm, dose.point.iso_plane_y_mm};
+  c.off_axis_mm = dose.point.off_axis_mm;
+  c.modulated = dose.features.modulated;
+  if (!c.modulated) {
+    c.jaws = dose.aperture.jaws();
+    c.open = dose.aperture.rows();
+    c.shaped_by_mlc = dose.aperture.shaped_by_mlc();
+    return c;
+  }
+  // Part points in the collimator system of control point 0 (the collimator may turn during a beam).
+  const BevMapping to_cp0(1.0, -dose.angles.collimator_deg, {});
+  for (const engine::Segment& s : dose.segments) {
+    const BevMapping to_gantry(1.0, s.angles.collimator_deg, {});
+    const PaperMm g = to_gantry.to_gantry_mm(s.point.iso_plane_x_mm, s.point.iso_plane_y_mm);
+    c.part_points_mm.push_back(to_cp0.to_gantry_mm(g.x, g.y));
+  }
+  if (beam != nullptr) {
+    if (auto swept = swept_opening(*beam)) {
+      c.jaws = swept->envelope;
+      c.open = std::move(swept->open);
+      return c;
+    }
+  }
+  c.outline_known = false;
+  bool first = true;
+  for (const engine::Segment& s : dose.segments) include(c.jaws, s.jaws, first);
+  if (first) c.jaws = dose.aperture.jaws();
+  return c;
+}
+
+BevMapping bev_mapping(const BevContent& content, const BevPanel& panel) {
+  const BevMapping unit(1.0, content.collimator_deg, {});
+  double extent = 10.0;  // at least 1 cm around the axis
+  const auto reach = [&](double x, double y) {
+    const PaperMm g = unit.to_gantry_mm(x, y);
+    extent = std::max({extent, std::abs(g.x), std::abs(g.y)});
+  };
+  const auto& j = content.jaws;
+  for (const double x : {j.x1_mm, j.x2_mm}) {
+    for (const double y : {j.y1_mm, j.y2_mm}) reach(x, y);
+  }
+  for (const auto& r : content.open) {
+    for (const double x : {r.lo_mm, r.hi_mm}) {
+      for (const double y : {r.y_lower_mm, r.y_upper_mm}) reach(x, y);
+    }
+  }
+  if (content.dose_point_mm) reach(content.dose_point_mm->x, content.dose_point_mm->y);
+  for (const PaperMm& p : content.part_points_mm) reach(p.x, p.y);
+  const double half_room = 0.5 * std::min(panel.width_mm, panel.height_mm) - panel.margin_mm;
+  return BevMapping(choose_scale(extent, half_room), content.collimator_deg,
+                    {0.5 * panel.width_mm, 0.5 * panel.height_mm});
+}
+
+namespace {
+
+std::string number(double v) { return fmt::format("{:.2f}", std::abs(v) < 0.005 ? 0.0 : v); }
+
+// A rectangle of the collimator system as a polygon on paper.
+std::string polygon(const BevMapping& m, double x1, double y1, double x2, double y2, std::string_view style) {
+  std::string points;
+  for (const auto& [x, y] : {std::pair{x1, y1}, {x2, y1}, {x2, y2}, {x1, y2}}) {
+    const PaperMm p = m.to_paper(x, y);
+    points += number(p.x) + "," + number(p.y) + " ";
+  }
+  points.pop_back();
+  return fmt::format("<polygon points=\"{}\" {}/>\n", points, style);
+}
+
+std::string line(PaperMm a, PaperMm b, std::string_view style) {
+  return fmt::format("<line x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" {}/>\n", number(a.x), number(a.y), number(b.x),
+                     number(b.y), style);
+}
+
+std::string text(PaperMm at, std::string_view content, std::string_view anchor, double size_mm,
+                 std::string_view extra = "") {
+  return fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\" dominant-baseline=\"central\" font-size=\"{}\"{}>{}</text>\n",
+                     number(at.x), number(at.y), anchor, number(size_mm), extra, html_escape(content));
+}
+
+// The side of the scale bar in cm: the longest round length not over 50 mm of paper.
+double scale_bar_cm(double scale) {
+  double best = 1.0;
+  for (const double cm : {1.0, 2.0, 5.0, 10.0, 20.0, 50.0}) {
+    if (cm * 10.0 * scale <= 50.0 + 1e-9) best = cm;
+  }
+  return best;
+}
+
+}  // namespace
+
+std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
+  const BevMapping m = bev_mapping(c, panel);
+  const double w = panel.width_mm;
+  const double h = panel.height_mm;
+  const PaperMm axis = m.axis();
+  std::string svg = fmt::format(
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"bev\" width=\"{0}mm\" height=\"{1}mm\" viewBox=\"0 0 {0} {1}\" "
+      "font-family=\"DejaVu Sans, Arial, sans-serif\" role=\"img\" aria-label=\"Beam's-eye view, scale {2} at the "
+      "isocentre plane\">\n",
+      number(w), number(h), scale_text(m.scale()));
+  svg += fmt::format("<rect x=\"0.2\" y=\"0.2\" width=\"{}\" height=\"{}\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.3\"/>\n",
+                     number(w - 0.4), number(h - 0.4));
+
+  // Gantry-system reference: ticks at the panel edges in line with the axis.
+  const std::string_view tick = "stroke=\"#000\" stroke-width=\"0.3\"";
+  svg += line({axis.x, 0.2}, {axis.x, 4.0}, tick) + line({axis.x, h - 4.0}, {axis.x, h - 0.2}, tick);
+  svg += line({0.2, axis.y}, {4.0, axis.y}, tick) + line({w - 4.0, axis.y}, {w - 0.2, axis.y}, tick);
+  svg += text({axis.x, 6.0}, "\u25B2 towards gantry", "middle", 2.6);
+
+  const geometry::JawOpening& j = c.jaws;
+  if (c.modulated) {
+    // Area open in at least one part, then the jaw envelope (dashed).
+    for (const auto& r : c.open) {
+      svg += polygon(m, r.lo_mm, r.y_lower_mm, r.hi_mm, r.y_upper_mm,
+                     "fill=\"#d4d4d4\" stroke=\"#d4d4d4\" stroke-width=\"0.05\"");
+    }
+    svg += polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm,
+                   "fill=\"none\" stroke=\"#000\" stroke-width=\"0.5\" stroke-dasharray=\"2.2 1.2\"");
+  } else {
+    if (c.shaped_by_mlc) {
+      // Leaves inside the jaws: grey where they block, the opening stays white.
+      const std::string_view leaf = "fill=\"#c4c4c4\" stroke=\"#3a3a3a\" stroke-width=\"0.12\"";
+      for (const auto& r : c.open) {
+        if (!r.open()) {
+          svg += polygon(m, j.x1_mm, r.y_lower_mm, j.x2_mm, r.y_upper_mm, leaf);
+          continue;
+        }
+        if (r.lo_mm > j.x1_mm) svg += polygon(m, j.x1_mm, r.y_lower_mm, r.lo_mm, r.y_upper_mm, leaf);
+        if (r.hi_mm < j.x2_mm) svg += polygon(m, r.hi_mm, r.y_lower_mm, j.x2_mm, r.y_upper_mm, leaf);
+      }
+    }
+    svg += polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm, "fill=\"none\" stroke=\"#000\" stroke-width=\"0.6\"");
+  }
+
+  // Jaw names just outside the jaw edges (kept upright for reading).
+  const double out = 3.2 / m.scale();
+  const double cx = 0.5 * (j.x1_mm + j.x2_mm);
+  const double cy = 0.5 * (j.y1_mm + j.y2_mm);
+  svg += text(m.to_paper(j.x1_mm - out, cy), "X1", "middle", 2.8, " font-weight=\"bold\"");
+  svg += text(m.to_paper(j.x2_mm + out, cy), "X2", "middle", 2.8, " font-weight=\"bold\"");
+  svg += text(m.to_paper(cx, j.y1_mm - out), "Y1", "middle", 2.8, " font-weight=\"bold\"");
+  svg += text(m.to_paper(cx, j.y2_mm + out), "Y2", "middle", 2.8, " font-weight=\"bold\"");
+
+  // Collimator axes through the central axis (dash-dot), and the central axis itself.
+  const double reach = 0.5 * std::min(w, h) / m.scale() - 2.0 / m.scale();
+  const std::string_view axis_style = "stroke=\"#000\" stroke-width=\"0.18\" stroke-dasharray=\"3 1 0.6 1\"";
+  svg += line(m.to_paper(-reach, 0.0), m.to_paper(reach, 0.0), axis_style);
+  svg += line(m.to_paper(0.0, -reach), m.to_paper(0.0, reach), axis_style);
+  svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"1.1\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.3\"/>\n",
+                     number(axis.x), number(axis.y));
+  svg += line({axis.x - 2.4, axis.y}, {axis.x + 2.4, axis.y}, "stroke=\"#000\" stroke-width=\"0.3\"");
+  svg += line({axis.x, axis.y - 2.4}, {axis.x, axis.y + 2.4}, "stroke=\"#000\" stroke-width=\"0.3\"");
+
+  // The dose point: every part's view of it (modulated), then the point at control point 0.
+  for (const PaperMm& p : c.part_points_mm) {
+    const PaperMm q = m.to_paper(p.x, p.y);
+    svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"0.6\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
+                       number(q.x), number(q.y));
+  }
+  if (c.dose_point_mm) {
+    const PaperMm p = m.to_paper(c.dose_point_mm->x, c.dose_point_mm->y);
+    const double d = 1.5;
+    svg += fmt::format("<circle class=\"dose-point\" cx=\"{}\" cy=\"{}\" r=\"2.1\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.45\"/>\n",
+                       number(p.x), number(p.y));
+    svg += line({p.x - d, p.y - d}, {p.x + d, p.y + d}, "stroke=\"#000\" stroke-width=\"0.35\"");
+    svg += line({p.x - d, p.y + d}, {p.x + d, p.y - d}, "stroke=\"#000\" stroke-width=\"0.35\"");
+    svg += text({p.x + 3.0, p.y - 3.0}, "P", "start", 3.2, " font-weight=\"bold\"");
+  }
+
+  // Collimator angle: a reference line (gantry +Y) and the collimator's +Y, top right.
+  const PaperMm dial{w - 9.0, 13.0};
+  const double rad = c.collimator_deg * std::numbers::pi / 180.0;
+  svg += line({dial.x, dial.y}, {dial.x, dial.y - 6.0}, "stroke=\"#000\" stroke-width=\"0.2\" stroke-dasharray=\"0.8 0.6\"");
+  svg += line({dial.x, dial.y}, {dial.x - 6.0 * std::sin(rad), dial.y - 6.0 * std::cos(rad)},
+              "stroke=\"#000\" stroke-width=\"0.45\"");
+  svg += text({dial.x, dial.y + 3.0}, fmt::format("coll. {:.1f}\u00B0", c.collimator_deg), "middle", 2.5);
+
+  // Scale bar, bottom left, and the scale in words, bottom right.
+  const double bar_cm = scale_bar_cm(m.scale());
+  const double bar_mm = bar_cm * 10.0 * m.scale();
+  const double bx = 5.0;
+  const double by = h - 5.0;
+  const std::string_view bar = "stroke=\"#000\" stroke-width=\"0.4\"";
+  svg += line({bx, by}, {bx + bar_mm, by}, bar) + line({bx, by - 1.5}, {bx, by + 1.0}, bar) +
+         line({bx + bar_mm, by - 1.5}, {bx + bar_mm, by + 1.0}, bar) +
+         line({bx + 0.5 * bar_mm, by - 1.0}, {bx + 0.5 * bar_mm, by}, bar);
+  svg += text({bx, by - 3.2}, fmt::format("{:g} cm at isocentre", bar_cm), "start", 2.5);
+  svg += text({w - 4.0, h - 4.5}, fmt::format("scale {} at isocentre plane", scale_text(m.scale())), "end", 2.5);
+  svg += "</svg>\n";
+  return svg;
+}
+
+}  // namespace countersign::report

@@ -1,0 +1,253 @@
+#include <countersign/report/check_json.hpp>
+
+namespace countersign::report {
+
+using nlohmann::json;
+
+namespace {
+
+template <class T>
+json optional_json(const std::optional<T>& value) {
+  return value ? json(*value) : json(nullptr);
+}
+
+json mm_to_cm(const std::optional<double>& mm) { return mm ? json(*mm / 10.0) : json(nullptr); }
+
+json factor_value(const engine::Factor& f) { return f.value; }
+
+json factor_provenance(const engine::Factor& f) {
+  json j{{"value", f.value}, {"basis", std::string(engine::to_code(f.basis))}};
+  j["lookup"] = f.lookup ? lookup_to_json(*f.lookup) : json(nullptr);
+  return j;
+}
+
+json factors_json(const engine::PointDose& d) {
+  const engine::DoseFactors& f = d.factors;
+  const bool tmr = d.method == engine::Method::tmr;
+  return json{{"output_cgy_per_mu", f.output_cgy_per_mu},
+              {"calibration_depth", factor_value(f.calibration_depth)},
+              {"sc", factor_value(f.sc)},
+              {"sp", factor_value(f.sp)},
+              {"tmr", tmr ? factor_value(f.tmr) : json(nullptr)},
+              {"pdd_percent", tmr ? json(nullptr) : json(f.pdd.value * 100.0)},
+              {"mayneord_f", tmr ? json(nullptr) : factor_value(f.mayneord_f)},
+              {"oar", factor_value(f.oar)},
+              {"wedge", factor_value(f.wedge)},
+              {"tray", factor_value(f.tray)},
+              {"transmission", factor_value(f.transmission)},
+              {"inverse_square", factor_value(f.inverse_square)},
+              {"dose_per_mu_cgy", d.dose_per_mu_cgy}};
+}
+
+json provenance_json(const engine::PointDose& d) {
+  const engine::DoseFactors& f = d.factors;
+  const bool tmr = d.method == engine::Method::tmr;
+  json j{{"calibration_depth", factor_provenance(f.calibration_depth)},
+         {"sc", factor_provenance(f.sc)},
+         {"sp", factor_provenance(f.sp)},
+         {"oar", factor_provenance(f.oar)},
+         {"wedge", factor_provenance(f.wedge)},
+         {"tray", factor_provenance(f.tray)},
+         {"transmission", factor_provenance(f.transmission)},
+         {"inverse_square", factor_provenance(f.inverse_square)}};
+  if (tmr) {
+    j["tmr"] = factor_provenance(f.tmr);
+  } else {
+    j["pdd"] = factor_provenance(f.pdd);
+    j["mayneord_f"] = factor_provenance(f.mayneord_f);
+  }
+  return j;
+}
+
+json fields_json(const engine::PointDose& d, const geometry::JawOpening& jaws, double open_area_mm2, bool mlc) {
+  return json{{"jaw_x1_cm", jaws.x1_mm / 10.0},
+              {"jaw_x2_cm", jaws.x2_mm / 10.0},
+              {"jaw_y1_cm", jaws.y1_mm / 10.0},
+              {"jaw_y2_cm", jaws.y2_mm / 10.0},
+              {"open_area_cm2", open_area_mm2 / 100.0},
+              {"shaped_by_mlc", mlc},
+              {"collimator_cm", d.fields.collimator_cm},
+              {"isocentre_cm", d.fields.isocentre_cm},
+              {"surface_cm", d.fields.surface_cm},
+              {"point_cm", d.fields.point_cm},
+              {"normalisation_depth_cm", d.fields.normalisation_depth_cm}};
+}
+
+json segment_json(const engine::Segment& s) {
+  return json{{"from_control_point", s.from_control_point},
+              {"meterset_mu", s.meterset_mu},
+              {"gantry_deg", s.angles.gantry_deg},
+              {"collimator_deg", s.angles.collimator_deg},
+              {"couch_deg", s.angles.couch_deg},
+              {"depth_cm", s.depth_mm / 10.0},
+              {"spd_cm", s.point.spd_mm / 10.0},
+              {"ssd_cm", s.ssd_mm / 10.0},
+              {"off_axis_cm", s.point.off_axis_mm / 10.0},
+              {"point_in_opening", s.point_in_opening},
+              {"point_in_jaws", s.point_in_jaws},
+              {"fields", fields_json(s.dose, s.jaws, s.open_area_mm2, s.open_area_mm2 > 0.0)},
+              {"factors", factors_json(s.dose)},
+              {"dose_gy", s.dose.dose_cgy / 100.0}};
+}
+
+void add_calculation(json& j, const engine::BeamDose& c) {
+  j["machine"] = c.machine != nullptr ? json(c.machine->name) : json(nullptr);
+  j["beam_data_id"] = c.beam_data != nullptr ? json(c.beam_data->id) : json(nullptr);
+  j["energy_mv"] = c.beam_data != nullptr ? json(c.beam_data->energy_mv) : json(nullptr);
+  j["dose_point"] = json{{"source", std::string(engine::to_code(c.dose_point.source))},
+                         {"dose_reference_number", optional_json(c.dose_point.dose_reference_number)},
+                         {"x_mm", c.dose_point.point_mm[0]},
+                         {"y_mm", c.dose_point.point_mm[1]},
+                         {"z_mm", c.dose_point.point_mm[2]}};
+  if (!c.dose_computed) return;
+  j["method"] = std::string(engine::to_code(c.method));
+  j["method_reason"] = c.method_reason;
+  j["patient_position"] = c.patient_position ? json(std::string(geometry::to_code(*c.patient_position))) : json(nullptr);
+  j["gantry_deg"] = c.angles.gantry_deg;
+  j["collimator_deg"] = c.angles.collimator_deg;
+  j["couch_deg"] = c.angles.couch_deg;
+  j["depth_cm"] = c.depth.depth_mm / 10.0;
+  j["depth_source"] = std::string(engine::to_code(c.depth.source));
+  j["depth_kind"] = std::string(engine::to_code(c.depth.kind));
+  j["depth_description"] = c.depth.description;
+  j["plan_depth_cm"] = mm_to_cm(c.depth.plan_depth_mm);
+  j["plan_equivalent_depth_cm"] = mm_to_cm(c.depth.plan_equivalent_depth_mm);
+  j["spd_minus_ssd_cm"] = mm_to_cm(c.depth.spd_minus_ssd_mm);
+  j["spd_cm"] = c.point.spd_mm / 10.0;
+  j["ssd_cm"] = mm_to_cm(c.ssd_mm);
+  j["sad_cm"] = c.sad_mm / 10.0;
+  j["off_axis_cm"] = c.point.off_axis_mm / 10.0;
+  j["point_in_field"] = c.point_in_field;
+  j["edge_distance_cm"] = c.edge_distance_mm / 10.0;
+  j["modulated"] = c.features.modulated;
+  j["segment_count"] = c.segments.size();
+  j["fields"] = fields_json(c.dose, c.aperture.jaws(), c.aperture.area_mm2(), c.aperture.shaped_by_mlc());
+  if (c.features.modulated) {
+    j["factors"] = nullptr;
+    j["provenance"] = nullptr;
+    json segments = json::array();
+    for (const engine::Segment& s : c.segments) segments.push_back(segment_json(s));
+    j["segments"] = std::move(segments);
+  } else {
+    j["factors"] = factors_json(c.dose);
+    j["provenance"] = provenance_json(c.dose);
+    j["segments"] = json::array();
+  }
+  j["approximations"] = c.approximations;
+}
+
+}  // namespace
+
+json lookup_to_json(const beamdata::Lookup& lookup) {
+  json axes = json::array();
+  for (const beamdata::AxisBracket& a : lookup.axes) {
+    axes.push_back(json{{"axis", a.axis},
+                        {"query", a.query},
+                        {"lower_index", a.lower_index},
+                        {"upper_index", a.upper_index},
+                        {"lower_node", a.lower_node},
+                        {"upper_node", a.upper_node},
+                        {"upper_weight", a.upper_weight},
+                        {"extrapolated", a.extrapolated}});
+  }
+  return json{{"table_file", lookup.table_file},
+              {"quantity", lookup.quantity},
+              {"value", lookup.value},
+              {"extrapolated", lookup.extrapolated()},
+              {"axes", std::move(axes)}};
+}
+
+json beam_check_to_json(const check::BeamCheck& b) {
+  json j{{"fraction_group_number", b.fraction_group_number},
+         {"beam_number", b.beam_number},
+         {"beam_name", b.beam_name},
+         {"status", std::string(check::to_code(b.status))},
+         {"reason", std::string(engine::reason_code(b.reason.reason))},
+         {"explanation", b.reason.sentence},
+         {"planned_dose_gy", optional_json(b.planned_dose_gy)},
+         {"computed_dose_gy", optional_json(b.computed_dose_gy)},
+         {"deviation_percent", optional_json(b.deviation_percent)},
+         {"tolerance_percent", optional_json(b.tolerance_percent)},
+         {"meterset_mu", optional_json(b.meterset_mu)},
+         {"independent_mu", optional_json(b.independent_mu)},
+         {"category", b.category ? json(std::string(check::to_code(*b.category))) : json(nullptr)},
+         {"medium", std::string(check::to_code(b.medium))},
+         {"point_total_planned_dose_gy", optional_json(b.point_total_planned_dose_gy)}};
+  // Keys of the calculation are always present (null when there was none).
+  for (const char* key : {"machine", "beam_data_id", "energy_mv", "dose_point", "method", "method_reason",
+                          "patient_position", "gantry_deg", "collimator_deg", "couch_deg", "depth_cm",
+                          "depth_source", "depth_kind", "depth_description", "plan_depth_cm",
+                          "plan_equivalent_depth_cm", "spd_minus_ssd_cm", "spd_cm", "ssd_cm", "sad_cm",
+                          "off_axis_cm", "point_in_field", "edge_distance_cm", "modulated", "segment_count",
+                          "fields", "factors", "provenance", "segments", "approximations"}) {
+    j[key] = nullptr;
+  }
+  if (b.calculation) add_calculation(j, *b.calculation);
+  return j;
+}
+
+json check_to_json(const check::PlanCheck& c) {
+  json beams = json::array();
+  for (const check::BeamCheck& b : c.beams) beams.push_back(beam_check_to_json(b));
+  json references = json::array();
+  for (const check::DoseReferenceCheck& r : c.dose_references) {
+    json contributions = json::array();
+    for (const check::Contribution& p : r.contributions) {
+      contributions.push_back(json{{"beam_number", p.beam_number},
+                                   {"coefficient", p.coefficient},
+                                   {"planned_dose_gy", p.planned_dose_gy},
+                                   {"computed_dose_gy", optional_json(p.computed_dose_gy)},
+                                   {"reason", p.problem ? json(std::string(engine::reason_code(p.problem->reason)))
+                                                        : json(nullptr)},
+                                   {"explanation", p.problem ? json(p.problem->sentence) : json(nullptr)}});
+    }
+    references.push_back(json{{"fraction_group_number", r.fraction_group_number},
+                              {"number", r.number},
+                              {"description", r.description},
+                              {"point_mm", optional_json(r.point_mm)},
+                              {"planned_dose_gy", r.planned_dose_gy},
+                              {"computed_dose_gy", optional_json(r.computed_dose_gy)},
+                              {"deviation_percent", optional_json(r.deviation_percent)},
+                              {"note", r.note},
+                              {"contributions", std::move(contributions)}});
+  }
+  const check::TolerancePolicy& p = c.options.policy;
+  const json policy{{"source", p.source},
+                    {"simple_percent", p.simple_percent},
+                    {"complex_percent", p.complex_percent},
+                    {"modulated_percent", p.modulated_percent},
+                    {"simple_heterogeneous_percent", p.simple_heterogeneous_percent},
+                    {"complex_heterogeneous_percent", p.complex_heterogeneous_percent},
+                    {"modulated_heterogeneous_percent", p.modulated_heterogeneous_percent},
+                    {"min_edge_distance_cm", p.min_edge_distance_cm},
+                    {"small_share_fraction", p.small_share_fraction}};
+  std::string method = "by_setup_technique";
+  if (c.options.engine.method == engine::MethodChoice::tmr) method = "tmr";
+  if (c.options.engine.method == engine::MethodChoice::pdd) method = "pdd";
+  return json{{"source_file", c.source_file},
+              {"sop_instance_uid", c.sop_instance_uid},
+              {"patient_id", c.patient_id},
+              {"patient_name", c.patient_name},
+              {"plan_label", c.plan_label},
+              {"approval_status", c.approval_status},
+              {"status", std::string(check::to_code(c.status))},
+              {"reason", std::string(engine::reason_code(c.reason.reason))},
+              {"explanation", c.reason.sentence},
+              {"exit_code", static_cast<int>(c.exit_code())},
+              {"beams", std::move(beams)},
+              {"dose_references", std::move(references)},
+              {"beamdata_root", c.beamdata_root},
+              {"beamdata_sha256", c.beamdata_sha256},
+              {"method_choice", method},
+              {"depth_choice", std::string(engine::to_code(c.options.engine.depth))},
+              {"tolerance_policy", policy}};
+}
+
+json check_run_to_json(const std::vector<check::PlanCheck>& checks, const std::vector<std::string>& errors,
+                       int exit_code) {
+  json plans = json::array();
+  for (const check::PlanCheck& c : checks) plans.push_back(check_to_json(c));
+  return json{{"plans", std::move(plans)}, {"errors", errors}, {"exit_code", exit_code}, {"caution", caution_text}};
+}
+
+}  // namespace countersign::report

@@ -1,0 +1,67 @@
+#include <countersign/report/check_text.hpp>
+
+#include <countersign/report/check_json.hpp>
+
+#include <fmt/format.h>
+
+namespace countersign::report {
+
+namespace {
+
+std::string number(const std::optional<double>& value, const char* format) {
+  return value ? fmt::format(fmt::runtime(format), *value) : std::string("-");
+}
+
+std::string depth_label(const check::BeamCheck& b) {
+  if (!b.calculation || !b.calculation->dose_computed) return "-";
+  const engine::DepthUsed& d = b.calculation->depth;
+  const char* tag = "plan";
+  if (d.source == engine::DepthSource::derived_spd_minus_ssd) tag = "SPD-SSD";
+  if (d.source == engine::DepthSource::derived_from_dose_point_ssd) tag = "ray-SSD";
+  if (d.kind == engine::DepthChoice::equivalent) tag = "equiv";
+  return fmt::format("{:.1f} {}", d.depth_mm / 10.0, tag);
+}
+
+}  // namespace
+
+void write_check_text(std::ostream& out, const check::PlanCheck& c) {
+  out << fmt::format("Plan {} ({}), patient {}, SOP Instance UID {}\n", c.plan_label.empty() ? "-" : c.plan_label,
+                     c.source_file, c.patient_id.empty() ? "-" : c.patient_id, c.sop_instance_uid);
+  out << fmt::format("Beam data: {} (SHA-256 {})\n", c.beamdata_root, c.beamdata_sha256);
+  out << fmt::format("Tolerance policy: {}\n\n", c.options.policy.source);
+  out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG", "Beam", "Name",
+                     "MU", "Plan Gy", "Calc Gy", "Dev %", "Tol %", "Indep MU", "Method", "Depth cm", "Status");
+  for (const check::BeamCheck& b : c.beams) {
+    const bool computed = b.calculation && b.calculation->dose_computed;
+    out << fmt::format("{:>2} {:>4} {:<12.12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n",
+                       b.fraction_group_number, b.beam_number, b.beam_name, number(b.meterset_mu, "{:.1f}"),
+                       number(b.planned_dose_gy, "{:.4f}"), number(b.computed_dose_gy, "{:.4f}"),
+                       number(b.deviation_percent, "{:+.2f}"), number(b.tolerance_percent, "{:.1f}"),
+                       number(b.independent_mu, "{:.1f}"),
+                       computed ? std::string(engine::to_code(b.calculation->method)) : std::string("-"),
+                       depth_label(b), check::to_code(b.status));
+  }
+  bool header = false;
+  for (const check::BeamCheck& b : c.beams) {
+    if (b.status == check::Status::within_tolerance && b.reason.reason == engine::Reason::deviation_within_tolerance) {
+      continue;
+    }
+    if (!header) out << "\n";
+    header = true;
+    out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, b.beam_name, check::to_code(b.status),
+                       engine::reason_code(b.reason.reason), b.reason.sentence);
+  }
+  if (!c.dose_references.empty()) {
+    out << "\nDose references (sum of contributions):\n";
+    for (const check::DoseReferenceCheck& r : c.dose_references) {
+      out << fmt::format("  FG {} reference {} {}: planned {:.4f} Gy, computed {} Gy, deviation {} %{}\n",
+                         r.fraction_group_number, r.number, r.description, r.planned_dose_gy,
+                         number(r.computed_dose_gy, "{:.4f}"), number(r.deviation_percent, "{:+.2f}"),
+                         r.note.empty() ? "" : " (" + r.note + ")");
+    }
+  }
+  out << fmt::format("\nPlan: {} ({}): {}\n", check::to_code(c.status), engine::reason_code(c.reason.reason),
+                     c.reason.sentence);
+}
+
+}  // namespace countersign::report

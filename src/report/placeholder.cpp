@@ -1,1 +1,0 @@
-// placeholder so the module library is never empty; remove when the module has sources

@@ -1,0 +1,64 @@
+// Inputs that once crashed, hung or leaked under fuzz/ (tools/fuzz), kept so they never do again:
+// each plan must read to a clean error (or a plan that checks with a verdict for every beam), each
+// beam-data folder must load to a clean error naming a file in it (or a usable library).
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/check/check_plan.hpp>
+#include <countersign/dicom/read_plan.hpp>
+
+#include "support/paths.hpp"
+
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+namespace countersign {
+namespace {
+
+namespace fs = std::filesystem;
+
+fs::path regressions() { return test::source_dir() / "testdata" / "fuzz-regressions"; }
+
+std::vector<fs::path> entries(const fs::path& folder, bool directories) {
+  std::vector<fs::path> out;
+  for (const auto& entry : fs::directory_iterator(folder)) {
+    if (entry.is_directory() == directories && entry.path().filename() != ".gitkeep") out.push_back(entry.path());
+  }
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+TEST(FuzzRegressions, EachPlanInputGivesACleanErrorOrAJudgedPlan) {
+  auto library = beamdata::load_library(test::source_dir() / "beamdata");
+  ASSERT_TRUE(library) << library.error().message();
+  const auto files = entries(regressions() / "plans", false);
+  ASSERT_FALSE(files.empty()) << "the regression corpus is missing";
+  for (const fs::path& file : files) {
+    SCOPED_TRACE(file.string());
+    const auto plan = dicom::read_plan_file(file);
+    if (!plan) {
+      EXPECT_EQ(plan.error().file, file.string());
+      EXPECT_FALSE(plan.error().detail.empty());
+      continue;
+    }
+    const check::PlanCheck result = check::check_plan(*plan, *library, check::CheckOptions{});
+    for (const auto& beam : result.beams) EXPECT_FALSE(beam.reason.sentence.empty()) << beam.beam_number;
+  }
+}
+
+TEST(FuzzRegressions, EachBeamDataFolderGivesACleanErrorNamingTheFile) {
+  const auto folders = entries(regressions() / "beamdata", true);
+  ASSERT_FALSE(folders.empty()) << "the regression corpus is missing";
+  for (const fs::path& folder : folders) {
+    SCOPED_TRACE(folder.string());
+    const auto library = beamdata::load_library(folder);
+    if (library) continue;  // a fixed parser may accept what once crashed it
+    EXPECT_NE(library.error().message().find(folder.string()), std::string::npos) << library.error().message();
+  }
+}
+
+}  // namespace
+}  // namespace countersign

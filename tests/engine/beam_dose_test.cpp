@@ -1,0 +1,346 @@
+// The per-beam calculation on hand-built plans (no files). Expected values are hand calculations
+// from the stated geometry, or the point-dose formula evaluated on inputs written out by hand.
+
+#include <countersign/engine/beam_dose.hpp>
+
+#include "engine/fixtures.hpp"
+
+#include <gtest/gtest.h>
+
+namespace countersign::engine {
+namespace {
+
+using test_fixtures::make_plan;
+using test_fixtures::static_beam;
+
+struct Fixture : ::testing::Test {
+  beamdata::Library library = test_fixtures::test_library();
+  EngineOptions options;
+
+  BeamDose run(const plan::Plan& plan, std::size_t beam_index = 0) {
+    const plan::ReferencedBeam& rb = plan.fraction_groups.front().beams.at(beam_index);
+    const plan::Beam& beam = *plan.beam(rb.beam_number);
+    const auto point = select_dose_point(plan, beam, rb);
+    EXPECT_TRUE(point.has_value());
+    return compute_beam_dose(plan, beam, rb, *point, library, options);
+  }
+  const beamdata::BeamData& data() const { return library.machines.front().beams.front(); }
+};
+
+DoseInputs on_axis_inputs(double mu, double depth_cm, double spd_cm, double ssd_cm, double field_cm) {
+  DoseInputs in;
+  in.meterset_mu = mu;
+  in.depth_cm = depth_cm;
+  in.spd_cm = spd_cm;
+  in.ssd_cm = ssd_cm;
+  in.collimator_field_cm = field_cm;
+  in.field_at_isocentre_cm = field_cm;
+  return in;
+}
+
+TEST_F(Fixture, StaticIsocentricBeamUsesThePlansDepth) {
+  const plan::Plan plan = make_plan({{static_beam(1, 0), 150.0, 1.2, 95.0}});
+  const BeamDose r = run(plan);
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_EQ(r.depth.source, DepthSource::beam_dose_reference_item);
+  EXPECT_DOUBLE_EQ(r.depth.depth_mm, 95.0);
+  EXPECT_EQ(r.method, Method::tmr);
+  EXPECT_FALSE(r.features.modulated);
+  EXPECT_NEAR(r.point.spd_mm, 1000.0, 1e-9);
+  EXPECT_TRUE(r.point_in_field);
+  EXPECT_NEAR(r.edge_distance_mm, 50.0, 1e-9);
+  const double expected = compute_point_dose(data(), on_axis_inputs(150.0, 9.5, 100.0, 100.0 - 9.5, 10.0)).dose_cgy;
+  EXPECT_NEAR(r.computed_dose_gy, expected / 100.0, 1e-12);
+  EXPECT_EQ(r.segments.size(), 1u);
+}
+
+TEST_F(Fixture, DepthDerivedFromSsdWhenThePlanHasNone) {
+  plan::Beam beam = static_beam(1, 0);
+  test_fixtures::set_ssd(beam, 900.0);
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, std::nullopt}}));
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_EQ(r.depth.source, DepthSource::derived_spd_minus_ssd);
+  EXPECT_NEAR(r.depth.depth_mm, 100.0, 1e-9);
+  ASSERT_FALSE(r.approximations.empty());
+  EXPECT_NE(r.approximations.front().find("flat surface"), std::string::npos);
+}
+
+TEST_F(Fixture, NoDepthAndNoSsdIsMissingPlanData) {
+  const BeamDose r = run(make_plan({{static_beam(1, 0), 100.0, 1.0, std::nullopt}}));
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->reason, Reason::missing_plan_data);
+  EXPECT_NE(r.problem->sentence.find("(300A,0088)"), std::string::npos);
+}
+
+// Opposed laterals on a 200 mm wide flat phantom, point 30 mm left of the isocentre: the derived
+// depths are 70 and 130 mm and add up to the separation (hand calculation).
+TEST_F(Fixture, OpposedBeamsDepthsSumToSeparation) {
+  plan::Beam left = static_beam(1, 90);
+  plan::Beam right = static_beam(2, 270);
+  test_fixtures::set_ssd(left, 900.0);
+  test_fixtures::set_ssd(right, 900.0);
+  const plan::Plan plan = make_plan({{left, 100.0, 1.0, std::nullopt}, {right, 100.0, 1.0, std::nullopt}}, {30, 0, 0});
+  const BeamDose a = run(plan, 0);
+  const BeamDose b = run(plan, 1);
+  ASSERT_FALSE(a.problem);
+  ASSERT_FALSE(b.problem);
+  EXPECT_NEAR(a.depth.depth_mm, 70.0, 1e-9);   // gantry 90: source on the patient's left
+  EXPECT_NEAR(b.depth.depth_mm, 130.0, 1e-9);
+  EXPECT_NEAR(a.depth.depth_mm + b.depth.depth_mm, 200.0, 1e-9);
+}
+
+TEST_F(Fixture, OffAxisPointUsesTheOarTable) {
+  const plan::Plan plan = make_plan({{static_beam(1, 0, 100.0, 100.0), 100.0, 1.0, 100.0}}, {50, 0, 0});
+  const BeamDose r = run(plan);
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_NEAR(r.point.off_axis_mm, 50.0, 1e-9);
+  EXPECT_EQ(r.dose.factors.oar.basis, FactorBasis::table);
+  EXPECT_NEAR(r.dose.factors.oar.value, test_fixtures::model_oar(10.0, 5.0), 1e-12);  // on a table node
+  EXPECT_GT(r.dose.factors.oar.value, 1.0);
+}
+
+TEST_F(Fixture, OffAxisPointWithoutOarTableIsMissingBeamData) {
+  library.machines.front().beams.front().oar.reset();
+  const BeamDose r = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {20, 0, 0}));
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->reason, Reason::missing_beam_data);
+}
+
+// Half-beam: X1 = 0, X2 = 100 mm, Y +-50 mm, point 50 mm into the open half. Collimator field
+// 2·10·10/(10+10) = 10 cm (Sterling), jaw centre 50 mm off the axis.
+TEST_F(Fixture, AsymmetricJaws) {
+  plan::Beam beam = static_beam(1, 0);
+  for (plan::ControlPoint& cp : beam.control_points) cp.devices[0].positions_mm = {0.0, 100.0};
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}, {50, 0, 0}));
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_NEAR(r.inputs.collimator_field_cm, 10.0, 1e-12);
+  EXPECT_NEAR(r.features.jaw_centre_offset_mm, 50.0, 1e-12);
+  EXPECT_NEAR(r.point.off_axis_mm, 50.0, 1e-9);
+  EXPECT_NEAR(r.edge_distance_mm, 50.0, 1e-9);
+}
+
+TEST_F(Fixture, WedgeFromTheLibrary) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.wedges.push_back({1, "STANDARD", "W30", 30.0, std::nullopt, 0.0});
+  const BeamDose wedged = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  const BeamDose open = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(wedged.problem);
+  EXPECT_TRUE(wedged.features.wedged);
+  EXPECT_NEAR(wedged.computed_dose_gy / open.computed_dose_gy, 0.70, 1e-12);
+}
+
+TEST_F(Fixture, UnknownWedgeOrTrayIsUnknownAccessory) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.wedges.push_back({1, "STANDARD", "W99", 30.0, std::nullopt, 0.0});
+  EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_accessory);
+  plan::Beam tray = static_beam(1, 0);
+  tray.blocks.push_back({1, "NO-SUCH-TRAY", "SHIELDING"});
+  EXPECT_EQ(run(make_plan({{tray, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_accessory);
+  plan::Beam known = static_beam(1, 0);
+  known.blocks.push_back({1, "TRAY-T", "SHIELDING"});
+  const BeamDose r = run(make_plan({{known, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem);
+  EXPECT_DOUBLE_EQ(r.dose.factors.tray.value, 0.97);
+}
+
+TEST_F(Fixture, CompensatorIsUnsupportedAccessory) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.compensators.push_back({1, "C1", ""});
+  EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_accessory);
+}
+
+TEST_F(Fixture, UnknownMachineEnergyAndRadiation) {
+  plan::Beam machine = static_beam(1, 0);
+  machine.machine_name = "OTHER-LINAC";
+  EXPECT_EQ(run(make_plan({{machine, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_machine);
+  plan::Beam energy = static_beam(1, 0);
+  for (plan::ControlPoint& cp : energy.control_points) cp.nominal_energy_mv = 18.0;
+  EXPECT_EQ(run(make_plan({{energy, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_energy);
+  plan::Beam electron = static_beam(1, 0);
+  electron.radiation_type = "ELECTRON";
+  EXPECT_EQ(run(make_plan({{electron, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_radiation);
+  plan::Beam minutes = static_beam(1, 0);
+  minutes.primary_dosimeter_unit = "MINUTE";
+  EXPECT_EQ(run(make_plan({{minutes, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_technique);
+}
+
+TEST_F(Fixture, UnsupportedPatientPosition) {
+  const BeamDose r = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {0, 0, 0}, "ISOCENTRIC", "HFDL"));
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->reason, Reason::unsupported_patient_position);
+  EXPECT_NE(r.problem->sentence.find("(0018,5100)"), std::string::npos);
+}
+
+TEST_F(Fixture, SadMismatch) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.sad_mm = 800.0;
+  EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::sad_mismatch);
+}
+
+TEST_F(Fixture, MissingGantryAngle) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.control_points[0].gantry_deg.reset();
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->reason, Reason::missing_plan_data);
+  EXPECT_NE(r.problem->sentence.find("(300A,011E)"), std::string::npos);
+}
+
+TEST_F(Fixture, MlcyIsUnsupportedGeometry) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.control_points[0].devices.push_back({"MLCY", {0.0, 0.0}});
+  EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_geometry);
+}
+
+TEST_F(Fixture, PointAboveTheSurfaceIsUnsupportedGeometry) {
+  plan::Beam beam = static_beam(1, 0);
+  test_fixtures::set_ssd(beam, 1050.0);  // surface below the isocentre: the point is in air
+  EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, std::nullopt}})).problem->reason, Reason::unsupported_geometry);
+}
+
+TEST_F(Fixture, EquivalentDepthOnlyWhenAskedAndPresent) {
+  plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}});
+  options.depth = DepthChoice::equivalent;
+  EXPECT_EQ(run(plan).problem->reason, Reason::missing_plan_data);
+  plan.beams[0].dose_references[0].distances.equivalent_depth_mm = 120.0;
+  const BeamDose r = run(plan);
+  ASSERT_FALSE(r.problem);
+  EXPECT_DOUBLE_EQ(r.depth.depth_mm, 120.0);
+  EXPECT_EQ(r.depth.kind, DepthChoice::equivalent);
+  options.depth = DepthChoice::planned;
+  EXPECT_DOUBLE_EQ(run(plan).depth.depth_mm, 100.0);
+}
+
+TEST_F(Fixture, MethodFollowsSetupTechniqueUnlessChosen) {
+  plan::Beam beam = static_beam(1, 0);
+  test_fixtures::set_ssd(beam, 1000.0);
+  plan::Plan plan = make_plan({{beam, 100.0, 1.0, 50.0}}, {0, 50, 0}, "FIXED_SSD");
+  const BeamDose pdd = run(plan);
+  ASSERT_FALSE(pdd.problem) << pdd.problem->sentence;
+  EXPECT_EQ(pdd.method, Method::pdd);
+  EXPECT_NE(pdd.method_reason.find("FIXED_SSD"), std::string::npos);
+  options.method = MethodChoice::tmr;
+  const BeamDose tmr = run(plan);
+  EXPECT_EQ(tmr.method, Method::tmr);
+  // Same point, consistent data: the formalisms agree within 1 % (DESIGN.md §5).
+  EXPECT_NEAR(pdd.computed_dose_gy / tmr.computed_dose_gy, 1.0, 0.01);
+}
+
+// Step and shoot: half the meterset through the open 10x10, half through a segment whose leaves
+// cover the point. Expected: 50 MU open + 50 MU x transmission 0.015 with the jaw field (hand).
+TEST_F(Fixture, StepAndShootSumsSegmentsWithTransmission) {
+  plan::Beam beam = static_beam(1, 0);
+  plan::BeamLimitingDevice mlc{"MLCX", std::nullopt, 10, {}};
+  for (int i = 0; i <= 10; ++i) mlc.leaf_boundaries_mm.push_back(-100.0 + 20.0 * i);
+  beam.beam_limiting_devices.push_back(mlc);
+  std::vector<double> open(20), closed(20);
+  for (int i = 0; i < 10; ++i) {
+    open[i] = -100.0;
+    open[10 + i] = 100.0;
+    closed[i] = 20.0;  // every pair's opening lies to the right of the point at x = 0
+    closed[10 + i] = 60.0;
+  }
+  plan::ControlPoint c0 = beam.control_points[0];
+  c0.devices.push_back({"MLCX", open});
+  plan::ControlPoint c1 = c0;
+  c1.index = 1;
+  c1.cumulative_meterset_weight = 0.5;
+  plan::ControlPoint c2 = c1;
+  c2.index = 2;
+  c2.devices.back().positions_mm = closed;
+  plan::ControlPoint c3 = c2;
+  c3.index = 3;
+  c3.cumulative_meterset_weight = 1.0;
+  c3.dose_reference_coefficients.push_back({1, 1.0});
+  beam.control_points = {c0, c1, c2, c3};
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_TRUE(r.features.modulated);
+  ASSERT_EQ(r.segments.size(), 2u);
+  EXPECT_TRUE(r.segments[0].point_in_opening);
+  EXPECT_FALSE(r.segments[1].point_in_opening);
+  EXPECT_TRUE(r.segments[1].point_in_jaws);
+  const double open_dose = compute_point_dose(data(), on_axis_inputs(50.0, 10.0, 100.0, 90.0, 10.0)).dose_cgy;
+  EXPECT_NEAR(r.computed_dose_gy * 100.0, open_dose * (1.0 + 0.015), 1e-9);
+  EXPECT_FALSE(r.approximations.empty());
+}
+
+// A 180 degree arc (90 -> 270 clockwise) around a point at the isocentre in a cylinder of radius
+// 100 mm centred on it: every gantry step sees depth 100 mm and SPD 1000 mm, so the sum equals the
+// static dose with the full meterset; 180 / 5 = 36 steps.
+TEST_F(Fixture, ArcIsSplitIntoGantrySteps) {
+  plan::Beam beam = static_beam(1, 90);
+  beam.beam_type = "DYNAMIC";
+  test_fixtures::set_ssd(beam, 900.0);
+  beam.control_points[0].gantry_rotation = "CW";
+  beam.control_points[1].gantry_deg = 270.0;
+  const BeamDose r = run(make_plan({{beam, 200.0, 1.0, std::nullopt}}));
+  ASSERT_FALSE(r.problem) << r.problem->sentence;
+  EXPECT_TRUE(r.features.modulated);
+  ASSERT_EQ(r.segments.size(), 36u);
+  EXPECT_NEAR(r.segments.front().angles.gantry_deg, 92.5, 1e-9);
+  EXPECT_NEAR(r.segments[18].angles.gantry_deg, 182.5, 1e-9);  // through 180, clockwise
+  const double full = compute_point_dose(data(), on_axis_inputs(200.0, 10.0, 100.0, 90.0, 10.0)).dose_cgy;
+  EXPECT_NEAR(r.computed_dose_gy * 100.0, full, 1e-9);
+}
+
+TEST(DosePoint, SelectionOrder) {
+  plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, std::nullopt}}, {1, 2, 3});
+  plan::ReferencedBeam& rb = plan.fraction_groups[0].beams[0];
+  const plan::Beam& beam = plan.beams[0];
+  // The reference with final coefficient 1.
+  auto p = select_dose_point(plan, beam, rb);
+  ASSERT_TRUE(p);
+  EXPECT_EQ(p->source, DosePointSource::full_coefficient_reference);
+  EXPECT_EQ(p->dose_reference_number, 1);
+  // The retired specification point wins.
+  rb.dose_specification_point_mm = plan::PointMm{4, 5, 6};
+  p = select_dose_point(plan, beam, rb);
+  EXPECT_EQ(p->source, DosePointSource::beam_dose_specification_point);
+  EXPECT_EQ(p->point_mm[2], 6.0);
+  rb.dose_specification_point_mm.reset();
+  // No coefficient 1: the single reference with coordinates.
+  plan.beams[0].control_points.back().dose_reference_coefficients.clear();
+  p = select_dose_point(plan, plan.beams[0], rb);
+  EXPECT_EQ(p->source, DosePointSource::single_dose_reference);
+  // Two references with coordinates and no coefficient: no dose point.
+  plan.dose_references.push_back(plan.dose_references[0]);
+  plan.dose_references.back().number = 2;
+  EXPECT_FALSE(select_dose_point(plan, plan.beams[0], rb));
+}
+
+// The three places DICOM has kept Beam Dose Point Depth, and the dose point SSD.
+TEST_F(Fixture, DepthFromEachLayout) {
+  plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, std::nullopt}});
+  plan::ReferencedBeam& rb = plan.fraction_groups[0].beams[0];
+  rb.distances_in_referenced_beam.depth_mm = 81.0;
+  EXPECT_EQ(run(plan).depth.source, DepthSource::referenced_beam_item);
+  EXPECT_DOUBLE_EQ(run(plan).depth.depth_mm, 81.0);
+  rb.verification_dose_reference_number = 1;
+  rb.distances_in_verification_sequence.depth_mm = 82.0;
+  EXPECT_EQ(run(plan).depth.source, DepthSource::fraction_verification_item);
+  EXPECT_DOUBLE_EQ(run(plan).depth.depth_mm, 82.0);
+  plan.beams[0].dose_references.push_back({1, {}});
+  plan.beams[0].dose_references[0].distances.depth_mm = 83.0;
+  EXPECT_EQ(run(plan).depth.source, DepthSource::beam_dose_reference_item);
+  EXPECT_DOUBLE_EQ(run(plan).depth.depth_mm, 83.0);
+  // Only an SSD along the ray: depth = ray length 1000 - 920.
+  plan.beams[0].dose_references[0].distances = {};
+  plan.beams[0].dose_references[0].distances.ssd_mm = 920.0;
+  const BeamDose r = run(plan);
+  EXPECT_EQ(r.depth.source, DepthSource::derived_from_dose_point_ssd);
+  EXPECT_NEAR(r.depth.depth_mm, 80.0, 1e-9);
+}
+
+TEST_F(Fixture, ProvenanceNamesTheTables) {
+  const BeamDose r = run(make_plan({{static_beam(1, 0, 75.0, 50.0), 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem);
+  ASSERT_TRUE(r.dose.factors.tmr.lookup);
+  EXPECT_EQ(r.dose.factors.tmr.lookup->table_file, "test/tmr.csv");
+  ASSERT_EQ(r.dose.factors.tmr.lookup->axes.size(), 2u);
+  EXPECT_NEAR(r.dose.factors.tmr.lookup->axes[1].query, 2.0 * 15.0 * 10.0 / 25.0, 1e-12);  // 15x10 -> 12 cm
+  EXPECT_EQ(r.first_extrapolated(), nullptr);
+}
+
+}  // namespace
+}  // namespace countersign::engine
