@@ -38,7 +38,8 @@ void read_and_check(benchmark::State& state, const std::string& file_name) {
   }
 }
 BENCHMARK_CAPTURE(read_and_check, two_arc, std::string{"fern_two_arc.dcm"})->Unit(benchmark::kMicrosecond);
-BENCHMARK_CAPTURE(read_and_check, box_4field, std::string{"fern_box_4field.dcm"})->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(read_and_check, box_4field, std::string{"fern_box_4field.dcm"})
+    ->Unit(benchmark::kMicrosecond);
 
 }  // namespace
 }  // namespace countersign::bench

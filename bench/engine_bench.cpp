@@ -41,7 +41,8 @@ void engine_beam(benchmark::State& state, const std::string& file_name, int beam
   const beamdata::Library& library = demo_library();
   const engine::EngineOptions options;
   for (auto _ : state) {
-    engine::BeamDose dose = engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point, library, options);
+    engine::BeamDose dose =
+        engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point, library, options);
     if (dose.problem) state.SkipWithError(dose.problem->sentence.c_str());
     benchmark::DoNotOptimize(dose);
   }
@@ -49,21 +50,25 @@ void engine_beam(benchmark::State& state, const std::string& file_name, int beam
       engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point, library, options).segments.size());
 }
 // Static beams (two control points, one segment).
-BENCHMARK_CAPTURE(engine_beam, static_open_box_ap, std::string{"fern_box_4field.dcm"}, 1)->Unit(benchmark::kMicrosecond);
-BENCHMARK_CAPTURE(engine_beam, static_wedged, std::string{"fern_wedged_pair.dcm"}, 1)->Unit(benchmark::kMicrosecond);
-BENCHMARK_CAPTURE(engine_beam, static_mlc, std::string{"fern_static_mlc.dcm"}, 1)->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(engine_beam, static_open_box_ap, std::string{"fern_box_4field.dcm"}, 1)
+    ->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(engine_beam, static_wedged, std::string{"fern_wedged_pair.dcm"}, 1)
+    ->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(engine_beam, static_mlc, std::string{"fern_static_mlc.dcm"}, 1)
+    ->Unit(benchmark::kMicrosecond);
 BENCHMARK_CAPTURE(engine_beam, static_extended_ssd, std::string{"fern_extended_ssd.dcm"}, 1)
     ->Unit(benchmark::kMicrosecond);
 // Modulated beams: step-and-shoot (6 control points) and an arc (18 control points).
-BENCHMARK_CAPTURE(engine_beam, step_and_shoot, std::string{"fern_step_shoot.dcm"}, 1)->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(engine_beam, step_and_shoot, std::string{"fern_step_shoot.dcm"}, 1)
+    ->Unit(benchmark::kMicrosecond);
 BENCHMARK_CAPTURE(engine_beam, arc, std::string{"fern_two_arc.dcm"}, 1)->Unit(benchmark::kMicrosecond);
 
 // The TG-71 formula alone, with the inputs the static open beam resolves to.
 void point_dose_formula(benchmark::State& state) {
   BeamCase c;
   load_case(c, "fern_box_4field.dcm", 1);
-  const engine::BeamDose dose =
-      engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point, demo_library(), engine::EngineOptions{});
+  const engine::BeamDose dose = engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point,
+                                                          demo_library(), engine::EngineOptions{});
   if (dose.beam_data == nullptr) std::abort();
   for (auto _ : state) {
     engine::PointDose point = engine::compute_point_dose(*dose.beam_data, dose.inputs);

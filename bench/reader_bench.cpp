@@ -20,7 +20,8 @@ void read_plan_bytes(benchmark::State& state, const std::string& file_name) {
   state.SetBytesProcessed(static_cast<std::int64_t>(state.iterations() * bytes.size()));
 }
 BENCHMARK_CAPTURE(read_plan_bytes, two_arc, std::string{"fern_two_arc.dcm"})->Unit(benchmark::kMicrosecond);
-BENCHMARK_CAPTURE(read_plan_bytes, box_4field, std::string{"fern_box_4field.dcm"})->Unit(benchmark::kMicrosecond);
+BENCHMARK_CAPTURE(read_plan_bytes, box_4field, std::string{"fern_box_4field.dcm"})
+    ->Unit(benchmark::kMicrosecond);
 
 void read_plan_file(benchmark::State& state) {
   const auto path = demo_plan_path("fern_two_arc.dcm");

@@ -20,7 +20,7 @@ namespace fs = std::filesystem;
 
 // Part i of an input is written to part_files[i]; extra parts are ignored.
 constexpr std::array<std::string_view, 11> part_files = {
-    "machine.toml", "6X/pdd.csv",  "6X/tmr.csv",  "6X/sc.csv",  "6X/sp.csv", "6X/oar.csv",
+    "machine.toml", "6X/pdd.csv",  "6X/tmr.csv", "6X/sc.csv",  "6X/sp.csv",  "6X/oar.csv",
     "10X/pdd.csv",  "10X/tmr.csv", "10X/sc.csv", "10X/sp.csv", "10X/oar.csv"};
 constexpr std::string_view separator = "\n@@@\n";
 

@@ -10,9 +10,9 @@ namespace countersign::check {
 
 namespace {
 
-constexpr double meterset_step = 0.05;    // MU ±5 %
-constexpr double beam_dose_step = 0.10;   // planned beam dose +10 %
-constexpr double ssd_shift_mm = 20.0;     // SSD off by 2 cm
+constexpr double meterset_step = 0.05;         // MU ±5 %
+constexpr double beam_dose_step = 0.10;        // planned beam dose +10 %
+constexpr double ssd_shift_mm = 20.0;          // SSD off by 2 cm
 constexpr double absent_energy_step_mv = 4.0;  // used when the library has no other energy
 
 plan::ReferencedBeam* referenced_beam(plan::Plan& plan, int group_number, int beam_number) {
@@ -70,8 +70,9 @@ bool shift_ssd(plan::Beam& beam, std::string& description) {
   bool changed = false;
   for (plan::ControlPoint& cp : beam.control_points) {
     if (!cp.ssd_mm) continue;
-    if (!changed) description = fmt::format("Source to Surface Distance (300A,0130) {:.1f} -> {:.1f} mm", *cp.ssd_mm,
-                                            *cp.ssd_mm + ssd_shift_mm);
+    if (!changed)
+      description = fmt::format("Source to Surface Distance (300A,0130) {:.1f} -> {:.1f} mm", *cp.ssd_mm,
+                                *cp.ssd_mm + ssd_shift_mm);
     cp.ssd_mm = *cp.ssd_mm + ssd_shift_mm;
     changed = true;
   }
@@ -80,7 +81,8 @@ bool shift_ssd(plan::Beam& beam, std::string& description) {
 
 bool remove_wedge(plan::Beam& beam, std::string& description) {
   if (beam.wedges.empty()) return false;
-  description = fmt::format("Wedge Sequence (300A,00D1) with Wedge ID \"{}\" removed", beam.wedges.front().id);
+  description =
+      fmt::format("Wedge Sequence (300A,00D1) with Wedge ID \"{}\" removed", beam.wedges.front().id);
   beam.wedges.clear();
   for (plan::ControlPoint& cp : beam.control_points) cp.wedge_positions.clear();
   return true;
@@ -116,23 +118,34 @@ bool scale_beam_dose(plan::ReferencedBeam& rb, std::string& description) {
 
 std::string_view to_code(InjectedError error) {
   switch (error) {
-    case InjectedError::meterset_plus_5_percent: return "meterset_plus_5_percent";
-    case InjectedError::meterset_minus_5_percent: return "meterset_minus_5_percent";
-    case InjectedError::wrong_energy: return "wrong_energy";
-    case InjectedError::ssd_plus_20_mm: return "ssd_plus_20_mm";
-    case InjectedError::wedge_removed: return "wedge_removed";
-    case InjectedError::jaws_swapped: return "jaws_swapped";
-    case InjectedError::beam_dose_plus_10_percent: return "beam_dose_plus_10_percent";
+    case InjectedError::meterset_plus_5_percent:
+      return "meterset_plus_5_percent";
+    case InjectedError::meterset_minus_5_percent:
+      return "meterset_minus_5_percent";
+    case InjectedError::wrong_energy:
+      return "wrong_energy";
+    case InjectedError::ssd_plus_20_mm:
+      return "ssd_plus_20_mm";
+    case InjectedError::wedge_removed:
+      return "wedge_removed";
+    case InjectedError::jaws_swapped:
+      return "jaws_swapped";
+    case InjectedError::beam_dose_plus_10_percent:
+      return "beam_dose_plus_10_percent";
   }
   return "unknown";
 }
 
 std::optional<double> known_ratio_change(InjectedError error) {
   switch (error) {
-    case InjectedError::meterset_plus_5_percent: return meterset_step;
-    case InjectedError::meterset_minus_5_percent: return -meterset_step;
-    case InjectedError::beam_dose_plus_10_percent: return 1.0 / (1.0 + beam_dose_step) - 1.0;
-    default: return std::nullopt;
+    case InjectedError::meterset_plus_5_percent:
+      return meterset_step;
+    case InjectedError::meterset_minus_5_percent:
+      return -meterset_step;
+    case InjectedError::beam_dose_plus_10_percent:
+      return 1.0 / (1.0 + beam_dose_step) - 1.0;
+    default:
+      return std::nullopt;
   }
 }
 
@@ -150,11 +163,21 @@ std::optional<Injection> inject_error(const plan::Plan& plan, int fraction_group
     case InjectedError::meterset_minus_5_percent:
       applied = scale_meterset(*rb, 1.0 - meterset_step, out.description);
       break;
-    case InjectedError::wrong_energy: applied = change_energy(*beam, library, out.description); break;
-    case InjectedError::ssd_plus_20_mm: applied = shift_ssd(*beam, out.description); break;
-    case InjectedError::wedge_removed: applied = remove_wedge(*beam, out.description); break;
-    case InjectedError::jaws_swapped: applied = swap_jaws(*beam, out.description); break;
-    case InjectedError::beam_dose_plus_10_percent: applied = scale_beam_dose(*rb, out.description); break;
+    case InjectedError::wrong_energy:
+      applied = change_energy(*beam, library, out.description);
+      break;
+    case InjectedError::ssd_plus_20_mm:
+      applied = shift_ssd(*beam, out.description);
+      break;
+    case InjectedError::wedge_removed:
+      applied = remove_wedge(*beam, out.description);
+      break;
+    case InjectedError::jaws_swapped:
+      applied = swap_jaws(*beam, out.description);
+      break;
+    case InjectedError::beam_dose_plus_10_percent:
+      applied = scale_beam_dose(*rb, out.description);
+      break;
   }
   if (!applied) return std::nullopt;
   return out;

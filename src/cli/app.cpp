@@ -19,6 +19,9 @@ int run(int argc, const char* const* argv, Io io) {
   add_check_command(app, context);
   add_beamdata_command(app, context);
   add_selftest_command(app, context);
+  add_watch_command(app, context);
+  add_receive_command(app, context);
+  add_history_command(app, context);
 
   try {
     app.parse(argc, argv);

@@ -9,6 +9,7 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/check_text.hpp>
+#include <countersign/report/html_report.hpp>
 
 #include <algorithm>
 #include <filesystem>
@@ -104,7 +105,7 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
   if (options.json) {
     io.out << report::check_run_to_json(checks, errors, static_cast<int>(exit_code)).dump(2) << "\n";
   } else {
-    io.out << report::caution_text << "\n";
+    io.out << report::caution_text() << "\n";
   }
   return exit_code;
 }

@@ -57,12 +57,12 @@ void print_report(const check::SelfTestReport& report, std::ostream& out) {
     const std::string plan_name = fs::path(row.plan_file).filename().string();
     const std::string error = row.error ? std::string{check::to_code(*row.error)} : "none (unmodified plan)";
     out << fmt::format("{:<26} {:>4} {:<10} {:<26} {:<18} {:>8} {:>8} {:>6} {:<5} {}{}\n", plan_name,
-                       row.error ? std::to_string(row.beam_number) : "-", row.error ? row.beam_name : "-", error,
-                       check::to_code(row.status), percent_or_dash(row.deviation_percent),
+                       row.error ? std::to_string(row.beam_number) : "-", row.error ? row.beam_name : "-",
+                       error, check::to_code(row.status), percent_or_dash(row.deviation_percent),
                        percent_or_dash(row.expected_deviation_percent),
                        row.tolerance_percent ? fmt::format("{:.1f}", *row.tolerance_percent) : "-",
-                       row.error ? (row.must_flag ? "flag" : "pass") : "pass", row.passed ? "ok: " : "FAIL: ",
-                       row.verdict);
+                       row.error ? (row.must_flag ? "flag" : "pass") : "pass",
+                       row.passed ? "ok: " : "FAIL: ", row.verdict);
     if (row.error) out << fmt::format("{:<31} change: {}; check: {}\n", "", row.change, row.reason);
   }
   const auto injected = std::count_if(report.rows.begin(), report.rows.end(),
@@ -70,10 +70,11 @@ void print_report(const check::SelfTestReport& report, std::ostream& out) {
   const auto caught = std::count_if(report.rows.begin(), report.rows.end(), [](const check::SelfTestRow& r) {
     return r.error && r.must_flag && r.passed;
   });
-  out << fmt::format("\n{} case(s): {} unmodified plan(s), {} injected error(s) of which {} beyond tolerance and "
-                     "caught; {} failure(s).\n",
-                     report.rows.size(), report.rows.size() - static_cast<std::size_t>(injected), injected, caught,
-                     report.failures);
+  out << fmt::format(
+      "\n{} case(s): {} unmodified plan(s), {} injected error(s) of which {} beyond tolerance and "
+      "caught; {} failure(s).\n",
+      report.rows.size(), report.rows.size() - static_cast<std::size_t>(injected), injected, caught,
+      report.failures);
   out << (report.passed() ? "Self-test passed.\n" : "Self-test FAILED.\n");
   out << "The self-test shows the check catches these known errors; it supports, and does not replace, the\n"
          "physicist's review under local regulations and licensed practice.\n";
@@ -113,10 +114,13 @@ void add_selftest_command(CLI::App& app, CommandContext& context) {
   auto options = std::make_shared<SelfTestOptions>();
   auto* command = app.add_subcommand(
       "selftest",
-      "Deliberate-error self-test: check the demo plans as they stand (each must pass) and with known errors\n"
-      "injected in memory (MU +/-5 %, wrong energy, SSD +2 cm, wedge removed, X jaws swapped, beam dose +10 %);\n"
+      "Deliberate-error self-test: check the demo plans as they stand (each must pass) and with known "
+      "errors\n"
+      "injected in memory (MU +/-5 %, wrong energy, SSD +2 cm, wedge removed, X jaws swapped, beam dose +10 "
+      "%);\n"
       "each error that takes a beam beyond its tolerance must be flagged. Exit 0 when every case behaves.");
-  command->add_option("plans", options->paths, "RT Plan files or folders of .dcm files (default: testdata/plans)");
+  command->add_option("plans", options->paths,
+                      "RT Plan files or folders of .dcm files (default: testdata/plans)");
   command->add_option("--beamdata", options->beamdata, "beam-data library folder (default: beamdata)");
   command->callback([options, &context] { run_selftest(*options, context); });
 }

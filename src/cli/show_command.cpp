@@ -53,23 +53,26 @@ const plan::ReferencedBeam* find_reference(const plan::Plan& plan, int beam_numb
 
 void print_summary(const plan::Plan& plan, std::ostream& out) {
   out << fmt::format("{}\n", plan.source_file);
-  out << fmt::format("  Plan {} ({}), approval {}, SOP Instance UID {}\n", or_dash(plan.label), or_dash(plan.name),
-                     or_dash(plan.approval_status), or_dash(plan.sop_instance_uid));
+  out << fmt::format("  Plan {} ({}), approval {}, SOP Instance UID {}\n", or_dash(plan.label),
+                     or_dash(plan.name), or_dash(plan.approval_status), or_dash(plan.sop_instance_uid));
   out << fmt::format("  Patient {} ({})\n", or_dash(plan.patient_id), or_dash(plan.patient_name));
   for (const auto& group : plan.fraction_groups) {
     out << fmt::format("  Fraction group {}: {} fractions, {} beams\n", group.number,
-                       group.fractions_planned ? std::to_string(*group.fractions_planned) : "-", group.beams.size());
+                       group.fractions_planned ? std::to_string(*group.fractions_planned) : "-",
+                       group.beams.size());
   }
   for (const auto& ref : plan.dose_references) {
-    out << fmt::format("  Dose reference {}: {} {} {}{}\n", ref.number, or_dash(ref.description), or_dash(ref.type),
-                       or_dash(ref.structure_type),
+    out << fmt::format("  Dose reference {}: {} {} {}{}\n", ref.number, or_dash(ref.description),
+                       or_dash(ref.type), or_dash(ref.structure_type),
                        ref.point_mm ? fmt::format(" at ({:.1f}, {:.1f}, {:.1f}) mm", (*ref.point_mm)[0],
                                                   (*ref.point_mm)[1], (*ref.point_mm)[2])
                                     : "");
   }
-  out << fmt::format("  {:>4} {:<14} {:<13} {:<9} {:<8} {:>6} {:>6} {:>6} {:>6} {:>8} {:<26} {:>4} {:<9} {:>4} {:>8} {:>7} {:>9}\n",
-                     "Beam", "Name", "Machine", "Delivery", "Type", "MV", "Gantry", "Coll", "Couch", "SSD mm",
-                     "Jaws X1/X2 Y1/Y2 mm", "MLC", "Wedge", "CPs", "MU", "Dose Gy", "Depth mm");
+  out << fmt::format(
+      "  {:>4} {:<14} {:<13} {:<9} {:<8} {:>6} {:>6} {:>6} {:>6} {:>8} {:<26} {:>4} {:<9} {:>4} {:>8} {:>7} "
+      "{:>9}\n",
+      "Beam", "Name", "Machine", "Delivery", "Type", "MV", "Gantry", "Coll", "Couch", "SSD mm",
+      "Jaws X1/X2 Y1/Y2 mm", "MLC", "Wedge", "CPs", "MU", "Dose Gy", "Depth mm");
   for (const auto& beam : plan.beams) {
     const plan::ControlPoint* cp = beam.control_points.empty() ? nullptr : &beam.control_points.front();
     int group_number = 0;
@@ -82,19 +85,23 @@ void print_summary(const plan::Plan& plan, std::ostream& out) {
     for (const auto& w : beam.wedges) wedges += (wedges.empty() ? "" : ",") + or_dash(w.id);
     std::optional<double> depth_mm;
     if (ref != nullptr) {
-      depth_mm = ref->distances_in_referenced_beam.depth_mm ? ref->distances_in_referenced_beam.depth_mm
-                                                             : ref->distances_in_verification_sequence.depth_mm;
+      depth_mm = ref->distances_in_referenced_beam.depth_mm
+                     ? ref->distances_in_referenced_beam.depth_mm
+                     : ref->distances_in_verification_sequence.depth_mm;
     }
-    if (!depth_mm && !beam.dose_references.empty()) depth_mm = beam.dose_references.front().distances.depth_mm;
+    if (!depth_mm && !beam.dose_references.empty())
+      depth_mm = beam.dose_references.front().distances.depth_mm;
     out << fmt::format(
-        "  {:>4} {:<14} {:<13} {:<9} {:<8} {:>6} {:>6} {:>6} {:>6} {:>8} {:<26} {:>4} {:<9} {:>4} {:>8} {:>7} {:>9}\n",
+        "  {:>4} {:<14} {:<13} {:<9} {:<8} {:>6} {:>6} {:>6} {:>6} {:>8} {:<26} {:>4} {:<9} {:>4} {:>8} "
+        "{:>7} {:>9}\n",
         beam.number, or_dash(beam.name), or_dash(beam.machine_name), or_dash(beam.delivery_type),
         or_dash(beam.radiation_type), cp ? number_or_dash(cp->nominal_energy_mv, 0) : "-",
         cp ? number_or_dash(cp->gantry_deg, 1) : "-", cp ? number_or_dash(cp->collimator_deg, 1) : "-",
         cp ? number_or_dash(cp->couch_deg, 1) : "-", cp ? number_or_dash(cp->ssd_mm, 1) : "-",
         cp ? jaws_text(*cp) : "-", mlc_pairs == 0 ? std::string{"-"} : std::to_string(mlc_pairs),
-        wedges.empty() ? "-" : wedges, beam.control_points.size(), ref ? number_or_dash(ref->meterset_mu, 2) : "-",
-        ref ? number_or_dash(ref->dose_gy, 3) : "-", number_or_dash(depth_mm, 1));
+        wedges.empty() ? "-" : wedges, beam.control_points.size(),
+        ref ? number_or_dash(ref->meterset_mu, 2) : "-", ref ? number_or_dash(ref->dose_gy, 3) : "-",
+        number_or_dash(depth_mm, 1));
   }
 }
 
@@ -129,10 +136,12 @@ void run_show(const ShowOptions& options, CommandContext& context) {
 
 void add_show_command(CLI::App& app, CommandContext& context) {
   auto options = std::make_shared<ShowOptions>();
-  auto* command = app.add_subcommand("show", "Print what an RT Plan says, beam by beam (reads the plan only; no check)");
+  auto* command =
+      app.add_subcommand("show", "Print what an RT Plan says, beam by beam (reads the plan only; no check)");
   command->add_option("plans", options->paths, "RT Plan files (DICOM)")->required();
-  command->add_flag("--json", options->json,
-                    "Print the plan model as JSON (one plan: an object; several: an array; keys in docs/json-show.md)");
+  command->add_flag(
+      "--json", options->json,
+      "Print the plan model as JSON (one plan: an object; several: an array; keys in docs/json-show.md)");
   command->callback([options, &context] { run_show(*options, context); });
 }
 

@@ -43,12 +43,14 @@ std::optional<int> count_attribute(const ItemReader& item, const DcmTagKey& tag)
 }
 
 // A sequence whose item count a separate "Number of ..." attribute states (type 1 in the RT Beams Module).
-std::vector<ItemReader> counted_sequence(const ItemReader& beam, const DcmTagKey& count_tag, const DcmTagKey& seq_tag) {
+std::vector<ItemReader> counted_sequence(const ItemReader& beam, const DcmTagKey& count_tag,
+                                         const DcmTagKey& seq_tag) {
   const auto count = count_attribute(beam, count_tag);
   auto items = beam.sequence(seq_tag, Need::optional);
   if (count && static_cast<std::size_t>(*count) != items.size()) {
     beam.fail(ErrorKind::inconsistent, count_tag,
-              fmt::format("says {} but {} {} has {} items", *count, keyword(seq_tag), tag_text(seq_tag), items.size()));
+              fmt::format("says {} but {} {} has {} items", *count, keyword(seq_tag), tag_text(seq_tag),
+                          items.size()));
   }
   return items;
 }
@@ -59,17 +61,19 @@ std::vector<plan::BeamLimitingDevice> parse_devices(const ItemReader& beam) {
   for (const auto& item : beam.sequence(DCM_BeamLimitingDeviceSequence, Need::required)) {
     plan::BeamLimitingDevice device;
     device.type = item.text(DCM_RTBeamLimitingDeviceType, Need::required);
-    device.source_to_device_distance_mm =
-        item.within(DCM_SourceToBeamLimitingDeviceDistance,
-                    item.number(DCM_SourceToBeamLimitingDeviceDistance, Need::optional), 0.0, max_coordinate_mm, "mm");
+    device.source_to_device_distance_mm = item.within(
+        DCM_SourceToBeamLimitingDeviceDistance,
+        item.number(DCM_SourceToBeamLimitingDeviceDistance, Need::optional), 0.0, max_coordinate_mm, "mm");
     device.pair_count = item.integer(DCM_NumberOfLeafJawPairs, Need::required).value_or(0);
     if (item.failed()) return devices;
     if (device.pair_count < 1) {
-      item.fail(ErrorKind::bad_value, DCM_NumberOfLeafJawPairs, fmt::format("{} pairs, expected at least 1", device.pair_count));
+      item.fail(ErrorKind::bad_value, DCM_NumberOfLeafJawPairs,
+                fmt::format("{} pairs, expected at least 1", device.pair_count));
       return devices;
     }
     if (!seen.insert(device.type).second) {
-      item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType, "device " + printable(device.type) + " is declared twice");
+      item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType,
+                "device " + printable(device.type) + " is declared twice");
       return devices;
     }
     const bool is_mlc = device.type == "MLCX" || device.type == "MLCY";
@@ -82,7 +86,8 @@ std::vector<plan::BeamLimitingDevice> parse_devices(const ItemReader& beam) {
                               device.pair_count + 1));
         return devices;
       }
-      if (std::adjacent_find(boundaries->begin(), boundaries->end(), std::greater_equal<>()) != boundaries->end()) {
+      if (std::adjacent_find(boundaries->begin(), boundaries->end(), std::greater_equal<>()) !=
+          boundaries->end()) {
         item.fail(ErrorKind::bad_value, DCM_LeafPositionBoundaries, "values are not strictly increasing");
         return devices;
       }
@@ -100,7 +105,8 @@ std::vector<plan::Wedge> parse_wedges(const ItemReader& beam) {
     wedge.number = item.integer(DCM_WedgeNumber, Need::required);
     wedge.type = item.text(DCM_WedgeType, Need::optional);
     wedge.id = item.text(DCM_WedgeID, Need::optional);
-    wedge.angle_deg = item.within(DCM_WedgeAngle, item.number(DCM_WedgeAngle, Need::optional), 0.0, 90.0, "deg");
+    wedge.angle_deg =
+        item.within(DCM_WedgeAngle, item.number(DCM_WedgeAngle, Need::optional), 0.0, 90.0, "deg");
     wedge.factor = item.within(DCM_WedgeFactor, item.number(DCM_WedgeFactor, Need::optional), 0.0, 10.0, "");
     wedge.orientation_deg = angle(item, DCM_WedgeOrientation, Need::optional);
     wedges.push_back(std::move(wedge));
@@ -110,8 +116,9 @@ std::vector<plan::Wedge> parse_wedges(const ItemReader& beam) {
 
 // Items of an accessory sequence; number_tag is absent for sequences without a number attribute.
 std::vector<plan::Accessory> parse_accessories(const std::vector<ItemReader>& items,
-                                               const std::optional<DcmTagKey>& number_tag, const DcmTagKey& id_tag,
-                                               const DcmTagKey& type_tag, Need number_need) {
+                                               const std::optional<DcmTagKey>& number_tag,
+                                               const DcmTagKey& id_tag, const DcmTagKey& type_tag,
+                                               Need number_need) {
   std::vector<plan::Accessory> accessories;
   for (const auto& item : items) {
     plan::Accessory accessory;
@@ -138,9 +145,10 @@ struct CarriedState {
   std::vector<plan::WedgePosition> wedge_positions;
 };
 
-void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLimitingDevice>& declared, bool first,
-                           CarriedState& state) {
-  const auto items = cp.sequence(DCM_BeamLimitingDevicePositionSequence, first ? Need::required : Need::optional);
+void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLimitingDevice>& declared,
+                           bool first, CarriedState& state) {
+  const auto items =
+      cp.sequence(DCM_BeamLimitingDevicePositionSequence, first ? Need::required : Need::optional);
   std::set<std::string> seen;
   for (const auto& item : items) {
     const std::string type = item.text(DCM_RTBeamLimitingDeviceType, Need::required);
@@ -153,7 +161,8 @@ void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLim
       return;
     }
     if (!seen.insert(type).second) {
-      item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType, "device " + printable(type) + " appears twice");
+      item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType,
+                "device " + printable(type) + " appears twice");
       return;
     }
     const auto positions =
@@ -162,15 +171,16 @@ void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLim
     const auto pairs = static_cast<std::size_t>(device->pair_count);
     for (std::size_t i = 0; i < positions->size(); ++i) {
       if (std::abs((*positions)[i]) > max_coordinate_mm) {
-        item.fail(ErrorKind::bad_value, DCM_LeafJawPositions, fmt::format("position {} mm is implausible", (*positions)[i]));
+        item.fail(ErrorKind::bad_value, DCM_LeafJawPositions,
+                  fmt::format("position {} mm is implausible", (*positions)[i]));
         return;
       }
     }
     for (std::size_t i = 0; i < pairs; ++i) {
       if ((*positions)[i] > (*positions)[pairs + i]) {
         item.fail(ErrorKind::bad_value, DCM_LeafJawPositions,
-                  fmt::format("{} pair {}: bank A at {} mm is beyond bank B at {} mm", type, i + 1, (*positions)[i],
-                              (*positions)[pairs + i]));
+                  fmt::format("{} pair {}: bank A at {} mm is beyond bank B at {} mm", type, i + 1,
+                              (*positions)[i], (*positions)[pairs + i]));
         return;
       }
     }
@@ -179,8 +189,9 @@ void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLim
   if (first) {
     for (const auto& device : declared) {
       if (!state.devices.contains(device.type)) {
-        cp.fail(ErrorKind::missing_attribute, DCM_BeamLimitingDevicePositionSequence,
-                "no positions for device " + printable(device.type) + " declared in BeamLimitingDeviceSequence");
+        cp.fail(
+            ErrorKind::missing_attribute, DCM_BeamLimitingDevicePositionSequence,
+            "no positions for device " + printable(device.type) + " declared in BeamLimitingDeviceSequence");
         return;
       }
     }
@@ -195,8 +206,8 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
   const auto index = cp.integer(DCM_ControlPointIndex, Need::required);
   if (index && *index != static_cast<int>(position)) {
     cp.fail(ErrorKind::inconsistent, DCM_ControlPointIndex,
-            fmt::format("is {} but the item is number {} of the sequence (expected index {})", *index, position + 1,
-                        position));
+            fmt::format("is {} but the item is number {} of the sequence (expected index {})", *index,
+                        position + 1, position));
   }
   point_out.index = index.value_or(0);
 
@@ -206,8 +217,8 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
   auto carry_text = [](std::string& slot, std::string value) {
     if (!value.empty()) slot = std::move(value);
   };
-  carry(state.energy_mv,
-        cp.within(DCM_NominalBeamEnergy, cp.number(DCM_NominalBeamEnergy, Need::optional), 0.001, 1000.0, "MV"));
+  carry(state.energy_mv, cp.within(DCM_NominalBeamEnergy, cp.number(DCM_NominalBeamEnergy, Need::optional),
+                                   0.001, 1000.0, "MV"));
   carry(state.dose_rate_mu_per_min,
         cp.within(DCM_DoseRateSet, cp.number(DCM_DoseRateSet, Need::optional), 0.0, 100000.0, "MU/min"));
   carry(state.gantry_deg, angle(cp, DCM_GantryAngle, first_only));
@@ -219,7 +230,9 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
   const auto iso = point(cp, DCM_IsocenterPosition, Need::optional);
   if (iso) {
     for (const double c : *iso) {
-      if (std::abs(c) > max_coordinate_mm) cp.fail(ErrorKind::bad_value, DCM_IsocenterPosition, fmt::format("coordinate {} mm is implausible", c));
+      if (std::abs(c) > max_coordinate_mm)
+        cp.fail(ErrorKind::bad_value, DCM_IsocenterPosition,
+                fmt::format("coordinate {} mm is implausible", c));
     }
   }
   carry(state.isocenter_mm, iso);
@@ -253,17 +266,19 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
   point_out.couch_rotation = state.couch_rotation;
   point_out.isocenter_mm = state.isocenter_mm;
   // The SSD belongs to this control point's geometry; it is not carried forward.
-  point_out.ssd_mm = cp.within(DCM_SourceToSurfaceDistance, cp.number(DCM_SourceToSurfaceDistance, Need::optional),
-                               0.0, max_coordinate_mm, "mm");
+  point_out.ssd_mm =
+      cp.within(DCM_SourceToSurfaceDistance, cp.number(DCM_SourceToSurfaceDistance, Need::optional), 0.0,
+                max_coordinate_mm, "mm");
   for (const auto& device : beam.beam_limiting_devices) {
     const auto found = state.devices.find(device.type);
     if (found != state.devices.end()) point_out.devices.push_back({device.type, found->second});
   }
-  point_out.cumulative_meterset_weight =
-      cp.within(DCM_CumulativeMetersetWeight, cp.number(DCM_CumulativeMetersetWeight, Need::optional), 0.0, 1.0e9, "");
+  point_out.cumulative_meterset_weight = cp.within(
+      DCM_CumulativeMetersetWeight, cp.number(DCM_CumulativeMetersetWeight, Need::optional), 0.0, 1.0e9, "");
   for (const auto& item : cp.sequence(DCM_ReferencedDoseReferenceSequence, Need::optional)) {
     plan::DoseReferenceCoefficient coefficient;
-    coefficient.dose_reference_number = item.integer(DCM_ReferencedDoseReferenceNumber, Need::required).value_or(0);
+    coefficient.dose_reference_number =
+        item.integer(DCM_ReferencedDoseReferenceNumber, Need::required).value_or(0);
     coefficient.cumulative_coefficient = item.number(DCM_CumulativeDoseReferenceCoefficient, Need::optional);
     point_out.dose_reference_coefficients.push_back(coefficient);
   }
@@ -294,9 +309,10 @@ void check_meterset_weights(const ItemReader& beam_item, const plan::Beam& beam)
   const auto& last = beam.control_points.back().cumulative_meterset_weight;
   const double final_weight = *beam.final_cumulative_meterset_weight;
   if (!last || std::abs(*last - final_weight) > 1e-6 * std::max(1.0, std::abs(final_weight))) {
-    beam_item.fail(ErrorKind::inconsistent, DCM_FinalCumulativeMetersetWeight,
-                   fmt::format("is {} but the last control point's CumulativeMetersetWeight (300A,0134) is {}",
-                               final_weight, last ? fmt::format("{}", *last) : std::string{"empty"}));
+    beam_item.fail(
+        ErrorKind::inconsistent, DCM_FinalCumulativeMetersetWeight,
+        fmt::format("is {} but the last control point's CumulativeMetersetWeight (300A,0134) is {}",
+                    final_weight, last ? fmt::format("{}", *last) : std::string{"empty"}));
   }
 }
 
@@ -315,24 +331,26 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
                             max_coordinate_mm, "mm");
   beam.beam_limiting_devices = parse_devices(item);
   beam.wedges = parse_wedges(item);
-  beam.compensators = parse_accessories(counted_sequence(item, DCM_NumberOfCompensators, DCM_CompensatorSequence),
-                                        DCM_CompensatorNumber, DCM_CompensatorID, DCM_CompensatorType, Need::optional);
+  beam.compensators =
+      parse_accessories(counted_sequence(item, DCM_NumberOfCompensators, DCM_CompensatorSequence),
+                        DCM_CompensatorNumber, DCM_CompensatorID, DCM_CompensatorType, Need::optional);
   beam.boli = parse_accessories(counted_sequence(item, DCM_NumberOfBoli, DCM_ReferencedBolusSequence),
                                 DCM_ReferencedROINumber, DCM_BolusID, DCM_BolusDescription, Need::required);
-  beam.blocks = parse_accessories(counted_sequence(item, DCM_NumberOfBlocks, DCM_BlockSequence), DCM_BlockNumber,
-                                  DCM_BlockTrayID, DCM_BlockType, Need::required);
+  beam.blocks = parse_accessories(counted_sequence(item, DCM_NumberOfBlocks, DCM_BlockSequence),
+                                  DCM_BlockNumber, DCM_BlockTrayID, DCM_BlockType, Need::required);
   beam.applicators = parse_accessories(item.sequence(DCM_ApplicatorSequence, Need::optional), std::nullopt,
                                        DCM_ApplicatorID, DCM_ApplicatorType, Need::optional);
-  beam.general_accessories =
-      parse_accessories(item.sequence(DCM_GeneralAccessorySequence, Need::optional), DCM_GeneralAccessoryNumber,
-                        DCM_GeneralAccessoryID, DCM_GeneralAccessoryType, Need::required);
+  beam.general_accessories = parse_accessories(item.sequence(DCM_GeneralAccessorySequence, Need::optional),
+                                               DCM_GeneralAccessoryNumber, DCM_GeneralAccessoryID,
+                                               DCM_GeneralAccessoryType, Need::required);
   beam.final_cumulative_meterset_weight =
-      item.within(DCM_FinalCumulativeMetersetWeight, item.number(DCM_FinalCumulativeMetersetWeight, Need::optional),
-                  0.0, 1.0e9, "");
+      item.within(DCM_FinalCumulativeMetersetWeight,
+                  item.number(DCM_FinalCumulativeMetersetWeight, Need::optional), 0.0, 1.0e9, "");
   beam.referenced_patient_setup_number = item.integer(DCM_ReferencedPatientSetupNumber, Need::optional);
   for (const auto& ref : item.sequence(DCM_ReferencedDoseReferenceSequence, Need::optional)) {
     plan::BeamDoseReference dose_ref;
-    dose_ref.dose_reference_number = ref.integer(DCM_ReferencedDoseReferenceNumber, Need::required).value_or(0);
+    dose_ref.dose_reference_number =
+        ref.integer(DCM_ReferencedDoseReferenceNumber, Need::required).value_or(0);
     const auto verification = ref.sequence(DCM_BeamDoseVerificationControlPointSequence, Need::optional);
     if (!verification.empty()) dose_ref.distances = parse_verification_distances(verification.front());
     beam.dose_references.push_back(dose_ref);
@@ -344,7 +362,8 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
   if (item.failed()) return beam;
   if (*declared_count != static_cast<int>(cps.size())) {
     item.fail(ErrorKind::inconsistent, DCM_NumberOfControlPoints,
-              fmt::format("says {} but ControlPointSequence (300A,0111) has {} items", *declared_count, cps.size()));
+              fmt::format("says {} but ControlPointSequence (300A,0111) has {} items", *declared_count,
+                          cps.size()));
     return beam;
   }
   if (cps.size() < 2) {
@@ -366,12 +385,13 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
 plan::DosePointDistances parse_verification_distances(const ItemReader& item) {
   plan::DosePointDistances distances;
   distances.depth_mm =
-      item.within(DCM_BeamDosePointDepth, item.number(DCM_BeamDosePointDepth, Need::optional), 0.0, max_coordinate_mm, "mm");
+      item.within(DCM_BeamDosePointDepth, item.number(DCM_BeamDosePointDepth, Need::optional), 0.0,
+                  max_coordinate_mm, "mm");
   distances.equivalent_depth_mm = item.within(DCM_BeamDosePointEquivalentDepth,
-                                              item.number(DCM_BeamDosePointEquivalentDepth, Need::optional), 0.0,
-                                              max_coordinate_mm, "mm");
-  distances.ssd_mm =
-      item.within(DCM_BeamDosePointSSD, item.number(DCM_BeamDosePointSSD, Need::optional), 0.0, max_coordinate_mm, "mm");
+                                              item.number(DCM_BeamDosePointEquivalentDepth, Need::optional),
+                                              0.0, max_coordinate_mm, "mm");
+  distances.ssd_mm = item.within(DCM_BeamDosePointSSD, item.number(DCM_BeamDosePointSSD, Need::optional), 0.0,
+                                 max_coordinate_mm, "mm");
   distances.source_to_external_contour_mm =
       item.within(DCM_BeamDosePointSourceToExternalContourDistance,
                   item.number(DCM_BeamDosePointSourceToExternalContourDistance, Need::optional), 0.0,
@@ -385,8 +405,10 @@ std::vector<plan::Beam> parse_beams(const ItemReader& dataset) {
     beams.push_back(parse_beam(item));
     if (dataset.failed()) return beams;
     const int number = beams.back().number;
-    if (std::count_if(beams.begin(), beams.end(), [number](const plan::Beam& b) { return b.number == number; }) > 1) {
-      item.fail(ErrorKind::inconsistent, DCM_BeamNumber, fmt::format("beam number {} is used by more than one beam", number));
+    if (std::count_if(beams.begin(), beams.end(),
+                      [number](const plan::Beam& b) { return b.number == number; }) > 1) {
+      item.fail(ErrorKind::inconsistent, DCM_BeamNumber,
+                fmt::format("beam number {} is used by more than one beam", number));
       return beams;
     }
   }

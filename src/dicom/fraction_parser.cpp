@@ -21,25 +21,27 @@ plan::ReferencedBeam parse_referenced_beam(const ItemReader& raw_item,
   plan::ReferencedBeam beam;
   beam.beam_number = raw_item.integer(DCM_ReferencedBeamNumber, Need::required).value_or(0);
   const ItemReader item = raw_item.described(fmt::format(" (beam {})", beam.beam_number));
-  beam.meterset_mu = item.within(DCM_BeamMeterset, item.number(DCM_BeamMeterset, Need::optional), 0.0, 100000.0, "MU");
+  beam.meterset_mu =
+      item.within(DCM_BeamMeterset, item.number(DCM_BeamMeterset, Need::optional), 0.0, 100000.0, "MU");
   beam.dose_gy = item.within(DCM_BeamDose, item.number(DCM_BeamDose, Need::optional), 0.0, 1000.0, "Gy");
   beam.dose_type = item.text(DCM_BeamDoseType, Need::optional);
   const auto point = item.numbers(DCM_RETIRED_BeamDoseSpecificationPoint, Need::optional, 3);
   if (point) beam.dose_specification_point_mm = plan::PointMm{(*point)[0], (*point)[1], (*point)[2]};
   auto& direct = beam.distances_in_referenced_beam;
-  direct.depth_mm =
-      item.within(DCM_BeamDosePointDepth, item.number(DCM_BeamDosePointDepth, Need::optional), 0.0, max_distance_mm, "mm");
+  direct.depth_mm = item.within(DCM_BeamDosePointDepth, item.number(DCM_BeamDosePointDepth, Need::optional),
+                                0.0, max_distance_mm, "mm");
   direct.equivalent_depth_mm =
-      item.within(DCM_BeamDosePointEquivalentDepth, item.number(DCM_BeamDosePointEquivalentDepth, Need::optional), 0.0,
-                  max_distance_mm, "mm");
-  direct.ssd_mm =
-      item.within(DCM_BeamDosePointSSD, item.number(DCM_BeamDosePointSSD, Need::optional), 0.0, max_distance_mm, "mm");
+      item.within(DCM_BeamDosePointEquivalentDepth,
+                  item.number(DCM_BeamDosePointEquivalentDepth, Need::optional), 0.0, max_distance_mm, "mm");
+  direct.ssd_mm = item.within(DCM_BeamDosePointSSD, item.number(DCM_BeamDosePointSSD, Need::optional), 0.0,
+                              max_distance_mm, "mm");
 
   const auto verification = item.sequence(DCM_BeamDoseVerificationControlPointSequence, Need::optional);
   if (!verification.empty()) {
     const auto& first = verification.front();
     beam.distances_in_verification_sequence = parse_verification_distances(first);
-    beam.verification_dose_reference_number = first.integer(DCM_ReferencedDoseReferenceNumber, Need::optional);
+    beam.verification_dose_reference_number =
+        first.integer(DCM_ReferencedDoseReferenceNumber, Need::optional);
   }
   // Editions that name the dose reference by UID in the Referenced Beam item.
   const std::string ref_uid = item.text(DCM_ReferencedDoseReferenceUID, Need::optional);
@@ -75,7 +77,8 @@ std::vector<plan::FractionGroup> parse_fraction_groups(const ItemReader& dataset
     if (item.failed()) return groups;
     if (*declared != static_cast<int>(beams.size())) {
       item.fail(ErrorKind::inconsistent, DCM_NumberOfBeams,
-                fmt::format("says {} but ReferencedBeamSequence (300C,0004) has {} items", *declared, beams.size()));
+                fmt::format("says {} but ReferencedBeamSequence (300C,0004) has {} items", *declared,
+                            beams.size()));
       return groups;
     }
     for (const auto& beam_item : beams) {
@@ -89,7 +92,8 @@ std::vector<plan::FractionGroup> parse_fraction_groups(const ItemReader& dataset
         return groups;
       }
     }
-    if (std::any_of(groups.begin(), groups.end(), [&group](const plan::FractionGroup& g) { return g.number == group.number; })) {
+    if (std::any_of(groups.begin(), groups.end(),
+                    [&group](const plan::FractionGroup& g) { return g.number == group.number; })) {
       item.fail(ErrorKind::inconsistent, DCM_FractionGroupNumber,
                 fmt::format("fraction group number {} is used twice", group.number));
       return groups;

@@ -31,9 +31,23 @@ std::string_view without_plus(std::string_view text) {
 
 bool is_text_vr(DcmEVR vr) {
   switch (vr) {
-    case EVR_AE: case EVR_AS: case EVR_CS: case EVR_DA: case EVR_DS: case EVR_DT: case EVR_IS:
-    case EVR_LO: case EVR_LT: case EVR_PN: case EVR_SH: case EVR_ST: case EVR_TM: case EVR_UI:
-    case EVR_UC: case EVR_UR: case EVR_UT:
+    case EVR_AE:
+    case EVR_AS:
+    case EVR_CS:
+    case EVR_DA:
+    case EVR_DS:
+    case EVR_DT:
+    case EVR_IS:
+    case EVR_LO:
+    case EVR_LT:
+    case EVR_PN:
+    case EVR_SH:
+    case EVR_ST:
+    case EVR_TM:
+    case EVR_UI:
+    case EVR_UC:
+    case EVR_UR:
+    case EVR_UT:
       return true;
     default:
       return false;
@@ -75,7 +89,8 @@ std::optional<double> parse_decimal(const std::string& text) {
   }
   double value = 0.0;
   const auto [end, error] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
-  if (error != std::errc{} || end != digits.data() + digits.size() || !std::isfinite(value)) return std::nullopt;
+  if (error != std::errc{} || end != digits.data() + digits.size() || !std::isfinite(value))
+    return std::nullopt;
   return value;
 }
 
@@ -103,7 +118,8 @@ bool ItemReader::present(const DcmTagKey& tag) const { return element(tag) != nu
 bool ItemReader::has(const DcmTagKey& tag) const {
   DcmElement* found = element(tag);
   if (found == nullptr) return false;
-  if (found->ident() == EVR_SQ) return found->getVM() > 0 || static_cast<DcmSequenceOfItems*>(found)->card() > 0;
+  if (found->ident() == EVR_SQ)
+    return found->getVM() > 0 || static_cast<DcmSequenceOfItems*>(found)->card() > 0;
   return found->getLength() > 0;
 }
 
@@ -115,11 +131,13 @@ void ItemReader::fail(ErrorKind kind, const DcmTagKey& tag, const std::string& d
 std::string ItemReader::text(const DcmTagKey& tag, Need need) const {
   DcmElement* found = element(tag);
   if (found == nullptr || found->getLength() == 0) {
-    if (need == Need::required) fail(ErrorKind::missing_attribute, tag, found ? "present but empty" : "missing");
+    if (need == Need::required)
+      fail(ErrorKind::missing_attribute, tag, found ? "present but empty" : "missing");
     return {};
   }
   if (!is_text_vr(found->ident())) {
-    fail(ErrorKind::bad_value, tag, fmt::format("stored with VR {}, expected a text VR", DcmVR(found->ident()).getVRName()));
+    fail(ErrorKind::bad_value, tag,
+         fmt::format("stored with VR {}, expected a text VR", DcmVR(found->ident()).getVRName()));
     return {};
   }
   OFString value;
@@ -133,7 +151,8 @@ std::string ItemReader::text(const DcmTagKey& tag, Need need) const {
 std::optional<std::vector<double>> ItemReader::all_numbers(const DcmTagKey& tag, Need need) const {
   DcmElement* found = element(tag);
   if (found == nullptr || found->getLength() == 0) {
-    if (need == Need::required) fail(ErrorKind::missing_attribute, tag, found ? "present but empty" : "missing");
+    if (need == Need::required)
+      fail(ErrorKind::missing_attribute, tag, found ? "present but empty" : "missing");
     return std::nullopt;
   }
   std::vector<double> values;
@@ -160,7 +179,8 @@ std::optional<std::vector<double>> ItemReader::all_numbers(const DcmTagKey& tag,
   for (unsigned long i = 0; i < count; ++i) {
     std::optional<double> value;
     switch (vr) {
-      case EVR_DS: case EVR_IS: {
+      case EVR_DS:
+      case EVR_IS: {
         const std::string& raw = texts[i];
         value = (vr == EVR_DS) ? parse_decimal(raw) : [&raw]() -> std::optional<double> {
           const auto integer = parse_integer(raw);
@@ -184,12 +204,29 @@ std::optional<std::vector<double>> ItemReader::all_numbers(const DcmTagKey& tag,
         if (found->getFloat64(v, i).good()) value = v;
         break;
       }
-      case EVR_US: { Uint16 v = 0; if (found->getUint16(v, i).good()) value = v; break; }
-      case EVR_SS: { Sint16 v = 0; if (found->getSint16(v, i).good()) value = v; break; }
-      case EVR_UL: { Uint32 v = 0; if (found->getUint32(v, i).good()) value = v; break; }
-      case EVR_SL: { Sint32 v = 0; if (found->getSint32(v, i).good()) value = v; break; }
+      case EVR_US: {
+        Uint16 v = 0;
+        if (found->getUint16(v, i).good()) value = v;
+        break;
+      }
+      case EVR_SS: {
+        Sint16 v = 0;
+        if (found->getSint16(v, i).good()) value = v;
+        break;
+      }
+      case EVR_UL: {
+        Uint32 v = 0;
+        if (found->getUint32(v, i).good()) value = v;
+        break;
+      }
+      case EVR_SL: {
+        Sint32 v = 0;
+        if (found->getSint32(v, i).good()) value = v;
+        break;
+      }
       default:
-        fail(ErrorKind::bad_value, tag, fmt::format("stored with VR {}, expected a numeric VR", DcmVR(vr).getVRName()));
+        fail(ErrorKind::bad_value, tag,
+             fmt::format("stored with VR {}, expected a numeric VR", DcmVR(vr).getVRName()));
         return std::nullopt;
     }
     if (!value || !std::isfinite(*value)) {
@@ -205,7 +242,8 @@ std::optional<std::vector<double>> ItemReader::all_numbers(const DcmTagKey& tag,
   return values;
 }
 
-std::optional<std::vector<double>> ItemReader::numbers(const DcmTagKey& tag, Need need, std::size_t count) const {
+std::optional<std::vector<double>> ItemReader::numbers(const DcmTagKey& tag, Need need,
+                                                       std::size_t count) const {
   auto values = all_numbers(tag, need);
   if (values && count != 0 && values->size() != count) {
     fail(ErrorKind::bad_value, tag, fmt::format("has {} values, expected {}", values->size(), count));
@@ -242,7 +280,8 @@ std::vector<ItemReader> ItemReader::sequence(const DcmTagKey& tag, Need need) co
     return items;
   }
   if (found->ident() != EVR_SQ) {
-    fail(ErrorKind::bad_value, tag, fmt::format("stored with VR {}, expected SQ", DcmVR(found->ident()).getVRName()));
+    fail(ErrorKind::bad_value, tag,
+         fmt::format("stored with VR {}, expected SQ", DcmVR(found->ident()).getVRName()));
     return items;
   }
   auto* sequence = static_cast<DcmSequenceOfItems*>(found);
@@ -260,12 +299,13 @@ std::vector<ItemReader> ItemReader::sequence(const DcmTagKey& tag, Need need) co
   return items;
 }
 
-std::optional<double> ItemReader::within(const DcmTagKey& tag, std::optional<double> value, double low, double high,
-                                         const char* unit) const {
+std::optional<double> ItemReader::within(const DcmTagKey& tag, std::optional<double> value, double low,
+                                         double high, const char* unit) const {
   if (!value) return value;
   if (*value < low || *value > high) {
-    fail(ErrorKind::bad_value, tag, fmt::format("value {} {} is outside the plausible range {} to {} {}", *value,
-                                                unit, low, high, unit));
+    fail(
+        ErrorKind::bad_value, tag,
+        fmt::format("value {} {} is outside the plausible range {} to {} {}", *value, unit, low, high, unit));
     return std::nullopt;
   }
   return value;

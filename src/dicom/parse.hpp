@@ -16,8 +16,8 @@ namespace countersign::dicom::detail {
 [[nodiscard]] std::vector<plan::Beam> parse_beams(const ItemReader& dataset);
 
 // Fraction Group Sequence (300A,0070).
-[[nodiscard]] std::vector<plan::FractionGroup> parse_fraction_groups(const ItemReader& dataset,
-                                                                     const std::vector<plan::DoseReference>& dose_refs);
+[[nodiscard]] std::vector<plan::FractionGroup> parse_fraction_groups(
+    const ItemReader& dataset, const std::vector<plan::DoseReference>& dose_refs);
 
 // Dose-point distances of the first item of a Beam Dose Verification Control Point Sequence.
 [[nodiscard]] plan::DosePointDistances parse_verification_distances(const ItemReader& item);

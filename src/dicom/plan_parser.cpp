@@ -42,8 +42,10 @@ std::vector<plan::PatientSetup> parse_patient_setups(const ItemReader& dataset) 
     setup.patient_position = item.text(DCM_PatientPosition, Need::optional);
     setup.setup_technique = item.text(DCM_SetupTechnique, Need::optional);
     setup.setup_technique_description = item.text(DCM_SetupTechniqueDescription, Need::optional);
-    if (std::any_of(setups.begin(), setups.end(), [&setup](const plan::PatientSetup& s) { return s.number == setup.number; })) {
-      item.fail(ErrorKind::inconsistent, DCM_PatientSetupNumber, fmt::format("number {} is used twice", setup.number));
+    if (std::any_of(setups.begin(), setups.end(),
+                    [&setup](const plan::PatientSetup& s) { return s.number == setup.number; })) {
+      item.fail(ErrorKind::inconsistent, DCM_PatientSetupNumber,
+                fmt::format("number {} is used twice", setup.number));
     }
     setups.push_back(std::move(setup));
   }
@@ -74,8 +76,10 @@ std::vector<plan::DoseReference> parse_dose_references(const ItemReader& dataset
     ref.organ_at_risk_full_volume_dose_gy = dose(DCM_OrganAtRiskFullVolumeDose);
     ref.organ_at_risk_limit_dose_gy = dose(DCM_OrganAtRiskLimitDose);
     ref.organ_at_risk_maximum_dose_gy = dose(DCM_OrganAtRiskMaximumDose);
-    if (std::any_of(refs.begin(), refs.end(), [&ref](const plan::DoseReference& r) { return r.number == ref.number; })) {
-      item.fail(ErrorKind::inconsistent, DCM_DoseReferenceNumber, fmt::format("number {} is used twice", ref.number));
+    if (std::any_of(refs.begin(), refs.end(),
+                    [&ref](const plan::DoseReference& r) { return r.number == ref.number; })) {
+      item.fail(ErrorKind::inconsistent, DCM_DoseReferenceNumber,
+                fmt::format("number {} is used twice", ref.number));
     }
     refs.push_back(std::move(ref));
   }
@@ -88,12 +92,14 @@ void check_references(const ItemReader& dataset, const plan::Plan& plan) {
   for (const auto& group : plan.fraction_groups) {
     for (const auto& ref : group.beams) {
       if (plan.beam(ref.beam_number) == nullptr) {
-        dataset.fail(ErrorKind::inconsistent, DCM_ReferencedBeamNumber,
-                     fmt::format("fraction group {} refers to beam {}, which is not in BeamSequence (300A,00B0)",
-                                 group.number, ref.beam_number));
+        dataset.fail(
+            ErrorKind::inconsistent, DCM_ReferencedBeamNumber,
+            fmt::format("fraction group {} refers to beam {}, which is not in BeamSequence (300A,00B0)",
+                        group.number, ref.beam_number));
         return;
       }
-      if (ref.verification_dose_reference_number && plan.dose_reference(*ref.verification_dose_reference_number) == nullptr) {
+      if (ref.verification_dose_reference_number &&
+          plan.dose_reference(*ref.verification_dose_reference_number) == nullptr) {
         dataset.fail(ErrorKind::inconsistent, DCM_ReferencedDoseReferenceNumber,
                      fmt::format("fraction group {}, beam {} refers to dose reference {}, which is not in "
                                  "DoseReferenceSequence (300A,0010)",
@@ -103,18 +109,21 @@ void check_references(const ItemReader& dataset, const plan::Plan& plan) {
     }
   }
   for (const auto& beam : plan.beams) {
-    if (beam.referenced_patient_setup_number && plan.patient_setup(*beam.referenced_patient_setup_number) == nullptr) {
-      dataset.fail(ErrorKind::inconsistent, DCM_ReferencedPatientSetupNumber,
-                   fmt::format("beam {} refers to patient setup {}, which is not in PatientSetupSequence (300A,0180)",
-                               beam.number, *beam.referenced_patient_setup_number));
+    if (beam.referenced_patient_setup_number &&
+        plan.patient_setup(*beam.referenced_patient_setup_number) == nullptr) {
+      dataset.fail(
+          ErrorKind::inconsistent, DCM_ReferencedPatientSetupNumber,
+          fmt::format("beam {} refers to patient setup {}, which is not in PatientSetupSequence (300A,0180)",
+                      beam.number, *beam.referenced_patient_setup_number));
       return;
     }
     auto check_dose_ref = [&](int number, const char* where) {
       if (plan.dose_reference(number) != nullptr) return true;
-      dataset.fail(ErrorKind::inconsistent, DCM_ReferencedDoseReferenceNumber,
-                   fmt::format("beam {} {} refers to dose reference {}, which is not in DoseReferenceSequence "
-                               "(300A,0010)",
-                               beam.number, where, number));
+      dataset.fail(
+          ErrorKind::inconsistent, DCM_ReferencedDoseReferenceNumber,
+          fmt::format("beam {} {} refers to dose reference {}, which is not in DoseReferenceSequence "
+                      "(300A,0010)",
+                      beam.number, where, number));
       return false;
     };
     for (const auto& ref : beam.dose_references) {
@@ -122,7 +131,9 @@ void check_references(const ItemReader& dataset, const plan::Plan& plan) {
     }
     for (const auto& cp : beam.control_points) {
       for (const auto& coefficient : cp.dose_reference_coefficients) {
-        if (!check_dose_ref(coefficient.dose_reference_number, fmt::format("control point {}", cp.index).c_str())) return;
+        if (!check_dose_ref(coefficient.dose_reference_number,
+                            fmt::format("control point {}", cp.index).c_str()))
+          return;
       }
     }
   }

@@ -34,8 +34,9 @@ void quiet_dcmtk_logging() {
 
 bool has_part10_preamble(std::span<const std::byte> bytes) {
   constexpr std::size_t offset = 128;
-  return bytes.size() >= offset + 4 && bytes[offset] == std::byte{'D'} && bytes[offset + 1] == std::byte{'I'} &&
-         bytes[offset + 2] == std::byte{'C'} && bytes[offset + 3] == std::byte{'M'};
+  return bytes.size() >= offset + 4 && bytes[offset] == std::byte{'D'} &&
+         bytes[offset + 1] == std::byte{'I'} && bytes[offset + 2] == std::byte{'C'} &&
+         bytes[offset + 3] == std::byte{'M'};
 }
 
 // The last element DCMTK managed to read, to say where a truncated file ends.
@@ -61,8 +62,9 @@ Error load_error(const std::string& name, bool part10, const OFCondition& condit
   if (DcmObject* last = last_element_read(partial)) {
     error.attribute = detail::keyword(last->getTag());
     error.tag = detail::tag_text(last->getTag());
-    error.detail = fmt::format("the DICOM file is truncated or corrupt; reading stopped at or after this element ({})",
-                               condition.text());
+    error.detail =
+        fmt::format("the DICOM file is truncated or corrupt; reading stopped at or after this element ({})",
+                    condition.text());
   } else {
     error.detail = fmt::format("the DICOM file is truncated or corrupt ({})", condition.text());
   }
@@ -73,7 +75,8 @@ Error load_error(const std::string& name, bool part10, const OFCondition& condit
 
 Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes, std::string display_name) {
   quiet_dcmtk_logging();
-  if (bytes.empty()) return Error{ErrorKind::not_dicom, display_name, "", "", "the file is empty, not a DICOM file"};
+  if (bytes.empty())
+    return Error{ErrorKind::not_dicom, display_name, "", "", "the file is empty, not a DICOM file"};
   const bool part10 = has_part10_preamble(bytes);
 
   DcmInputBufferStream stream;
@@ -88,7 +91,8 @@ Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes, std::stri
   if (dataset == nullptr) return Error{ErrorKind::not_dicom, display_name, "", "", "no DICOM dataset found"};
   if (condition.bad()) return load_error(display_name, part10, condition, *dataset);
   if (!part10 && !dataset->tagExists(DCM_SOPClassUID)) {
-    return Error{ErrorKind::not_dicom, display_name, detail::keyword(DCM_SOPClassUID), detail::tag_text(DCM_SOPClassUID),
+    return Error{ErrorKind::not_dicom, display_name, detail::keyword(DCM_SOPClassUID),
+                 detail::tag_text(DCM_SOPClassUID),
                  "not a DICOM file (no DICOM preamble and no SOP Class UID)"};
   }
   return read_plan_dataset(*dataset, std::move(display_name));
@@ -97,11 +101,13 @@ Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes, std::stri
 Expected<plan::Plan> read_plan_file(const std::filesystem::path& path) {
   const std::string name = path.string();
   std::error_code ec;
-  if (std::filesystem::is_directory(path, ec)) return Error{ErrorKind::io, name, "", "", "is a directory, not a file"};
+  if (std::filesystem::is_directory(path, ec))
+    return Error{ErrorKind::io, name, "", "", "is a directory, not a file"};
   const auto size = std::filesystem::file_size(path, ec);
   if (ec) return Error{ErrorKind::io, name, "", "", "cannot be read: " + ec.message()};
   if (size > max_file_bytes) {
-    return Error{ErrorKind::not_dicom, name, "", "", fmt::format("is {} bytes, too large for an RT Plan", size)};
+    return Error{ErrorKind::not_dicom, name, "", "",
+                 fmt::format("is {} bytes, too large for an RT Plan", size)};
   }
   std::ifstream in(path, std::ios::binary);
   if (!in) return Error{ErrorKind::io, name, "", "", "cannot be opened"};

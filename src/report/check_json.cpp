@@ -1,5 +1,7 @@
 #include <countersign/report/check_json.hpp>
 
+#include <countersign/report/html_report.hpp>
+
 namespace countersign::report {
 
 using nlohmann::json;
@@ -247,7 +249,7 @@ json check_run_to_json(const std::vector<check::PlanCheck>& checks, const std::v
                        int exit_code) {
   json plans = json::array();
   for (const check::PlanCheck& c : checks) plans.push_back(check_to_json(c));
-  return json{{"plans", std::move(plans)}, {"errors", errors}, {"exit_code", exit_code}, {"caution", caution_text}};
+  return json{{"plans", std::move(plans)}, {"errors", errors}, {"exit_code", exit_code}, {"caution", std::string(caution_text())}};
 }
 
 }  // namespace countersign::report

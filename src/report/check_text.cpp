@@ -1,6 +1,5 @@
 #include <countersign/report/check_text.hpp>
 
-#include <countersign/report/check_json.hpp>
 
 #include <fmt/format.h>
 

@@ -29,7 +29,9 @@ json distances(const plan::DosePointDistances& d) {
 json accessories(const std::vector<plan::Accessory>& items) {
   json list = json::array();
   for (const auto& item : items) {
-    list.push_back({{"number", optional_value(item.number)}, {"id", optional_text(item.id)}, {"type", optional_text(item.type)}});
+    list.push_back({{"number", optional_value(item.number)},
+                    {"id", optional_text(item.id)},
+                    {"type", optional_text(item.type)}});
   }
   return list;
 }
@@ -62,7 +64,8 @@ json control_point(const plan::ControlPoint& cp) {
                             {"cumulative_coefficient", optional_value(c.cumulative_coefficient)}});
   }
   json wedges = json::array();
-  for (const auto& w : cp.wedge_positions) wedges.push_back({{"wedge_number", w.wedge_number}, {"position", w.position}});
+  for (const auto& w : cp.wedge_positions)
+    wedges.push_back({{"wedge_number", w.wedge_number}, {"position", w.position}});
   return {{"index", cp.index},
           {"energy_mv", optional_value(cp.nominal_energy_mv)},
           {"dose_rate_mu_per_min", optional_value(cp.dose_rate_mu_per_min)},
@@ -143,9 +146,12 @@ json beam_json(const plan::Plan& plan, const plan::Beam& beam) {
   }
   json cps = json::array();
   for (const auto& cp : beam.control_points) cps.push_back(control_point(cp));
-  const plan::PatientSetup* setup =
-      beam.referenced_patient_setup_number ? plan.patient_setup(*beam.referenced_patient_setup_number) : nullptr;
-  auto first_value = [first](auto member) -> json { return first ? optional_value((*first).*member) : json(nullptr); };
+  const plan::PatientSetup* setup = beam.referenced_patient_setup_number
+                                        ? plan.patient_setup(*beam.referenced_patient_setup_number)
+                                        : nullptr;
+  auto first_value = [first](auto member) -> json {
+    return first ? optional_value((*first).*member) : json(nullptr);
+  };
   return {{"number", beam.number},
           {"name", optional_text(beam.name)},
           {"description", optional_text(beam.description)},
@@ -184,8 +190,11 @@ json referenced_beam(const plan::ReferencedBeam& ref) {
   // the fraction-level verification sequence; both are also listed separately.
   const bool direct = !ref.distances_in_referenced_beam.empty();
   const bool verification = !ref.distances_in_verification_sequence.empty();
-  const plan::DosePointDistances& chosen = direct ? ref.distances_in_referenced_beam : ref.distances_in_verification_sequence;
-  json source = direct ? json("referenced_beam") : verification ? json("verification_sequence") : json(nullptr);
+  const plan::DosePointDistances& chosen =
+      direct ? ref.distances_in_referenced_beam : ref.distances_in_verification_sequence;
+  json source = direct         ? json("referenced_beam")
+                : verification ? json("verification_sequence")
+                               : json(nullptr);
   return {{"beam_number", ref.beam_number},
           {"meterset_mu", optional_value(ref.meterset_mu)},
           {"dose_gy", optional_value(ref.dose_gy)},
@@ -212,20 +221,21 @@ json plan_to_json(const plan::Plan& plan) {
   }
   json dose_refs = json::array();
   for (const auto& d : plan.dose_references) {
-    dose_refs.push_back({{"number", d.number},
-                         {"uid", optional_text(d.uid)},
-                         {"structure_type", optional_text(d.structure_type)},
-                         {"description", optional_text(d.description)},
-                         {"type", optional_text(d.type)},
-                         {"point_mm", point(d.point_mm)},
-                         {"delivery_warning_dose_gy", optional_value(d.delivery_warning_dose_gy)},
-                         {"delivery_maximum_dose_gy", optional_value(d.delivery_maximum_dose_gy)},
-                         {"target_minimum_dose_gy", optional_value(d.target_minimum_dose_gy)},
-                         {"target_prescription_dose_gy", optional_value(d.target_prescription_dose_gy)},
-                         {"target_maximum_dose_gy", optional_value(d.target_maximum_dose_gy)},
-                         {"organ_at_risk_full_volume_dose_gy", optional_value(d.organ_at_risk_full_volume_dose_gy)},
-                         {"organ_at_risk_limit_dose_gy", optional_value(d.organ_at_risk_limit_dose_gy)},
-                         {"organ_at_risk_maximum_dose_gy", optional_value(d.organ_at_risk_maximum_dose_gy)}});
+    dose_refs.push_back(
+        {{"number", d.number},
+         {"uid", optional_text(d.uid)},
+         {"structure_type", optional_text(d.structure_type)},
+         {"description", optional_text(d.description)},
+         {"type", optional_text(d.type)},
+         {"point_mm", point(d.point_mm)},
+         {"delivery_warning_dose_gy", optional_value(d.delivery_warning_dose_gy)},
+         {"delivery_maximum_dose_gy", optional_value(d.delivery_maximum_dose_gy)},
+         {"target_minimum_dose_gy", optional_value(d.target_minimum_dose_gy)},
+         {"target_prescription_dose_gy", optional_value(d.target_prescription_dose_gy)},
+         {"target_maximum_dose_gy", optional_value(d.target_maximum_dose_gy)},
+         {"organ_at_risk_full_volume_dose_gy", optional_value(d.organ_at_risk_full_volume_dose_gy)},
+         {"organ_at_risk_limit_dose_gy", optional_value(d.organ_at_risk_limit_dose_gy)},
+         {"organ_at_risk_maximum_dose_gy", optional_value(d.organ_at_risk_maximum_dose_gy)}});
   }
   json groups = json::array();
   for (const auto& g : plan.fraction_groups) {

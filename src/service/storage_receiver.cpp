@@ -22,6 +22,7 @@
 
 #include <algorithm>
 #include <cerrno>
+#include <chrono>
 #include <cstring>
 #include <thread>
 
@@ -176,6 +177,11 @@ class PlanStoragePool : public DcmBaseSCPPool {
     }
     OFBool busy() override { return PlanStorageScp::isConnected(); }
     OFCondition workerListen(T_ASC_Association* const association) override {
+      // DCMTK 3.6.7's OFThread::start() stores the new thread's id into this object after
+      // pthread_create returns, while the pool deletes a worker as soon as its association ends.
+      // A refused association can end before that store, which then writes into freed memory
+      // (seen as heap corruption under load). The id appears once the store is done: wait for it.
+      while (threadID() == 0) std::this_thread::sleep_for(std::chrono::microseconds{50});
       return PlanStorageScp::run(association);
     }
   };

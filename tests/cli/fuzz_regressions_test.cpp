@@ -25,7 +25,8 @@ fs::path regressions() { return test::source_dir() / "testdata" / "fuzz-regressi
 std::vector<fs::path> entries(const fs::path& folder, bool directories) {
   std::vector<fs::path> out;
   for (const auto& entry : fs::directory_iterator(folder)) {
-    if (entry.is_directory() == directories && entry.path().filename() != ".gitkeep") out.push_back(entry.path());
+    if (entry.is_directory() == directories && entry.path().filename() != ".gitkeep")
+      out.push_back(entry.path());
   }
   std::sort(out.begin(), out.end());
   return out;
@@ -56,7 +57,8 @@ TEST(FuzzRegressions, EachBeamDataFolderGivesACleanErrorNamingTheFile) {
     SCOPED_TRACE(folder.string());
     const auto library = beamdata::load_library(folder);
     if (library) continue;  // a fixed parser may accept what once crashed it
-    EXPECT_NE(library.error().message().find(folder.string()), std::string::npos) << library.error().message();
+    EXPECT_NE(library.error().message().find(folder.string()), std::string::npos)
+        << library.error().message();
   }
 }
 

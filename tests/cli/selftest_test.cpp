@@ -120,9 +120,12 @@ TEST(SelfTest, EveryDemoPlanPassesAndEveryErrorBeyondToleranceIsFlagged) {
       case InjectedError::meterset_minus_5_percent:
       case InjectedError::beam_dose_plus_10_percent:
         ASSERT_TRUE(row.expected_deviation_percent);
-        if (row.deviation_percent) EXPECT_NEAR(*row.deviation_percent, *row.expected_deviation_percent, 0.01);
+        if (row.deviation_percent) {
+          EXPECT_NEAR(*row.deviation_percent, *row.expected_deviation_percent, 0.01);
+        }
         break;
-      case InjectedError::wrong_energy: break;
+      case InjectedError::wrong_energy:
+        break;
     }
   }
   // Every kind of error was exercised on at least one demo beam.
@@ -142,9 +145,9 @@ TEST(SelfTestCli, PrintsATableAndExitsZero) {
 }
 
 TEST(SelfTestCli, UnreadablePlanIsBadInput) {
-  const auto result = test::run_command("cd " + test::quote(test::source_dir().string()) + " && " +
-                                        test::quote(test::program().string()) +
-                                        " selftest testdata/malformed/not_dicom.dcm");
+  const auto result =
+      test::run_command("cd " + test::quote(test::source_dir().string()) + " && " +
+                        test::quote(test::program().string()) + " selftest testdata/malformed/not_dicom.dcm");
   EXPECT_EQ(result.exit_code, 3) << result.out << result.err;
   EXPECT_NE(result.err.find("not_dicom.dcm"), std::string::npos) << result.err;
 }

@@ -14,7 +14,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-CommandOutput show(const std::string& arguments) { return run_command(quote(program().string()) + " show " + arguments); }
+CommandOutput show(const std::string& arguments) {
+  return run_command(quote(program().string()) + " show " + arguments);
+}
 
 std::string plan_path(const std::string& name) { return (source_dir() / "testdata/plans" / name).string(); }
 
@@ -22,7 +24,8 @@ TEST(ShowCli, SummaryListsEveryBeamWithItsMeterset) {
   const auto result = show(quote(plan_path("fern_box_4field.dcm")));
   ASSERT_EQ(result.exit_code, 0) << result.err;
   EXPECT_TRUE(result.err.empty()) << result.err;  // no DCMTK log noise
-  for (const char* expected : {"BOX4", "FERN-PH-0101", "AP", "LAT-L", "PA", "LAT-R", "FERN-LINAC-1", "67.70", "55.90"}) {
+  for (const char* expected :
+       {"BOX4", "FERN-PH-0101", "AP", "LAT-L", "PA", "LAT-R", "FERN-LINAC-1", "67.70", "55.90"}) {
     EXPECT_NE(result.out.find(expected), std::string::npos) << expected << "\n" << result.out;
   }
 }
@@ -42,14 +45,16 @@ TEST(ShowCli, SetupBeamsShowNoMeterset) {
 }
 
 TEST(ShowCli, JsonHasTheDocumentedKeysAndNullForAbsentValues) {
-  const auto result = show("--json " + quote("/usr/lib/python3/dist-packages/pydicom/data/test_files/rtplan.dcm"));
+  const auto result =
+      show("--json " + quote("/usr/lib/python3/dist-packages/pydicom/data/test_files/rtplan.dcm"));
   ASSERT_EQ(result.exit_code, 0) << result.err;
   const auto json = nlohmann::json::parse(result.out);
   for (const char* key : {"label", "name", "sop_instance_uid", "patient_id", "approval_status"}) {
     EXPECT_TRUE(json.at("plan").contains(key)) << key;
   }
   const auto& dose_ref = json.at("dose_references").at(0);
-  for (const char* key : {"number", "description", "type", "point_mm"}) EXPECT_TRUE(dose_ref.contains(key)) << key;
+  for (const char* key : {"number", "description", "type", "point_mm"})
+    EXPECT_TRUE(dose_ref.contains(key)) << key;
   const auto& group = json.at("fraction_groups").at(0);
   EXPECT_EQ(group.at("number"), 1);
   EXPECT_EQ(group.at("fractions_planned"), 30);
@@ -63,9 +68,10 @@ TEST(ShowCli, JsonHasTheDocumentedKeysAndNullForAbsentValues) {
   EXPECT_TRUE(ref.at("dose_point_ssd_mm").is_null());
   EXPECT_DOUBLE_EQ(ref.at("meterset_mu").get<double>(), 116.0036697);
   const auto& beam = json.at("beams").at(0);
-  for (const char* key : {"number", "name", "machine", "radiation_type", "delivery_type", "beam_type", "energy_mv",
-                          "sad_mm", "ssd_mm", "gantry_deg", "collimator_deg", "couch_deg", "isocenter_mm", "jaws_mm",
-                          "mlc_leaf_pairs", "wedges", "control_points", "patient_position", "dose_reference_points"}) {
+  for (const char* key :
+       {"number", "name", "machine", "radiation_type", "delivery_type", "beam_type", "energy_mv", "sad_mm",
+        "ssd_mm", "gantry_deg", "collimator_deg", "couch_deg", "isocenter_mm", "jaws_mm", "mlc_leaf_pairs",
+        "wedges", "control_points", "patient_position", "dose_reference_points"}) {
     EXPECT_TRUE(beam.contains(key)) << key;
   }
   EXPECT_EQ(beam.at("mlc_leaf_pairs"), 0);
@@ -74,7 +80,8 @@ TEST(ShowCli, JsonHasTheDocumentedKeysAndNullForAbsentValues) {
   EXPECT_DOUBLE_EQ(beam.at("jaws_mm").at("x1").get<double>(), -100.0);
   for (const char* key : {"x1", "x2", "y1", "y2"}) EXPECT_TRUE(beam.at("jaws_mm").contains(key));
   const auto& point = beam.at("dose_reference_points").at(0);
-  for (const char* key : {"dose_reference_number", "depth_mm", "equivalent_depth_mm", "ssd_mm", "final_coefficient"}) {
+  for (const char* key :
+       {"dose_reference_number", "depth_mm", "equivalent_depth_mm", "ssd_mm", "final_coefficient"}) {
     EXPECT_TRUE(point.contains(key)) << key;
   }
   EXPECT_TRUE(point.at("depth_mm").is_null());
@@ -82,7 +89,8 @@ TEST(ShowCli, JsonHasTheDocumentedKeysAndNullForAbsentValues) {
 }
 
 TEST(ShowCli, JsonOfSeveralPlansIsAnArray) {
-  const auto result = show("--json " + quote(plan_path("fern_half_beam.dcm")) + " " + quote(plan_path("fern_two_arc.dcm")));
+  const auto result =
+      show("--json " + quote(plan_path("fern_half_beam.dcm")) + " " + quote(plan_path("fern_two_arc.dcm")));
   ASSERT_EQ(result.exit_code, 0) << result.err;
   const auto json = nlohmann::json::parse(result.out);
   ASSERT_TRUE(json.is_array());

@@ -33,7 +33,8 @@ void compare(const json& ours, const json& theirs, const std::string& path, int&
   }
   if (ours.is_array() && theirs.is_array()) {
     ASSERT_EQ(ours.size(), theirs.size()) << path;
-    for (std::size_t i = 0; i < ours.size(); ++i) compare(ours[i], theirs[i], path + "[" + std::to_string(i) + "]", leaves);
+    for (std::size_t i = 0; i < ours.size(); ++i)
+      compare(ours[i], theirs[i], path + "[" + std::to_string(i) + "]", leaves);
     return;
   }
   ++leaves;
@@ -50,8 +51,9 @@ class ShowMatchesPydicom : public ::testing::TestWithParam<std::string> {};
 
 TEST_P(ShowMatchesPydicom, EveryFieldEqual) {
   const auto python = python_with_pydicom();
-  ASSERT_TRUE(python.has_value()) << "python3-pydicom is needed for the independent cross-check (apt-get install "
-                                     "python3-pydicom)";
+  ASSERT_TRUE(python.has_value())
+      << "python3-pydicom is needed for the independent cross-check (apt-get install "
+         "python3-pydicom)";
   const std::string file = GetParam();
   const auto ours = run_command(quote(program().string()) + " show --json " + quote(file));
   ASSERT_EQ(ours.exit_code, 0) << ours.err;

@@ -161,7 +161,8 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
     } else if (layout == "referenced_beam_2012") {
       distances = &ref->distances_in_referenced_beam;
       ASSERT_TRUE(ref->dose_specification_point_mm.has_value());
-      for (int i = 0; i < 3; ++i) EXPECT_NEAR((*ref->dose_specification_point_mm)[i], expected_point[i], 1e-6);
+      for (int i = 0; i < 3; ++i)
+        EXPECT_NEAR((*ref->dose_specification_point_mm)[i], expected_point[i], 1e-6);
       EXPECT_TRUE(beam->dose_references.empty());
     } else {
       ASSERT_EQ(layout, "fraction_verification");
@@ -208,7 +209,8 @@ TEST(ReadPlanDemo, ArcControlPointsCarryForwardWhatTheyOmit) {
   EXPECT_DOUBLE_EQ(arc.control_points[9].gantry_deg.value(), 10.0);
   EXPECT_DOUBLE_EQ(arc.control_points[17].gantry_deg.value(), 170.0);
   EXPECT_EQ(arc.control_points[0].gantry_rotation, "CW");
-  EXPECT_NE(arc.control_points[0].device("MLCX")->positions_mm, arc.control_points[9].device("MLCX")->positions_mm);
+  EXPECT_NE(arc.control_points[0].device("MLCX")->positions_mm,
+            arc.control_points[9].device("MLCX")->positions_mm);
   EXPECT_EQ(plan->beams.at(1).control_points[0].gantry_rotation, "CC");
 }
 

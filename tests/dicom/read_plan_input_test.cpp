@@ -22,16 +22,26 @@ const fs::path pydicom_files = "/usr/lib/python3/dist-packages/pydicom/data/test
 
 std::string kind_name(ErrorKind kind) {
   switch (kind) {
-    case ErrorKind::io: return "io";
-    case ErrorKind::not_dicom: return "not_dicom";
-    case ErrorKind::truncated: return "truncated";
-    case ErrorKind::wrong_sop_class: return "wrong_sop_class";
-    case ErrorKind::missing_attribute: return "missing_attribute";
-    case ErrorKind::bad_value: return "bad_value";
-    case ErrorKind::inconsistent: return "inconsistent";
-    case ErrorKind::bad_beamdata: return "bad_beamdata";
-    case ErrorKind::bad_configuration: return "bad_configuration";
-    case ErrorKind::usage: return "usage";
+    case ErrorKind::io:
+      return "io";
+    case ErrorKind::not_dicom:
+      return "not_dicom";
+    case ErrorKind::truncated:
+      return "truncated";
+    case ErrorKind::wrong_sop_class:
+      return "wrong_sop_class";
+    case ErrorKind::missing_attribute:
+      return "missing_attribute";
+    case ErrorKind::bad_value:
+      return "bad_value";
+    case ErrorKind::inconsistent:
+      return "inconsistent";
+    case ErrorKind::bad_beamdata:
+      return "bad_beamdata";
+    case ErrorKind::bad_configuration:
+      return "bad_configuration";
+    case ErrorKind::usage:
+      return "usage";
   }
   return "?";
 }
@@ -76,7 +86,8 @@ TEST(ReadPlanPydicomFiles, RtPlanValues) {
   // Control point 1 gives only its index, weight and coefficients; the rest is carried forward.
   EXPECT_DOUBLE_EQ(beam.control_points[1].nominal_energy_mv.value(), 6.0);
   EXPECT_DOUBLE_EQ(beam.control_points[1].device("X")->positions_mm.at(0), -100.0);
-  EXPECT_DOUBLE_EQ(beam.control_points[1].dose_reference_coefficients.at(0).cumulative_coefficient.value(), 0.9990268);
+  EXPECT_DOUBLE_EQ(beam.control_points[1].dose_reference_coefficients.at(0).cumulative_coefficient.value(),
+                   0.9990268);
   EXPECT_EQ(plan->patient_setups.at(0).patient_position, "HFS");
 }
 
@@ -117,17 +128,19 @@ TEST(ReadPlanTransferSyntax, EveryEncodingReadsTheSamePlan) {
        {test::source_dir() / "testdata/plans/fern_two_arc.dcm", pydicom_files / "rtplan.dcm"}) {
     const auto reference = read_plan_file(original);
     ASSERT_TRUE(reference.has_value()) << reference.error().message();
-    for (const Syntax syntax : {Syntax{"+ti", "Little Endian Implicit"}, Syntax{"+te", "Little Endian Explicit"},
-                                Syntax{"+tb", "Big Endian Explicit"}, Syntax{"+td", "Deflated Explicit VR Little Endian"},
-                                Syntax{"-F +ti", ""}}) {
+    for (const Syntax syntax : {Syntax{"+ti", "Little Endian Implicit"},
+                                Syntax{"+te", "Little Endian Explicit"}, Syntax{"+tb", "Big Endian Explicit"},
+                                Syntax{"+td", "Deflated Explicit VR Little Endian"}, Syntax{"-F +ti", ""}}) {
       SCOPED_TRACE(original.filename().string() + " " + syntax.dcmconv_option);
       const auto copy = dir / "copy.dcm";
-      const auto convert = test::run_command(std::string{"dcmconv "} + syntax.dcmconv_option + " " +
-                                             test::quote(original.string()) + " " + test::quote(copy.string()));
+      const auto convert =
+          test::run_command(std::string{"dcmconv "} + syntax.dcmconv_option + " " +
+                            test::quote(original.string()) + " " + test::quote(copy.string()));
       ASSERT_EQ(convert.exit_code, 0) << convert.err;
       if (*syntax.dcmdump_name != '\0') {
         const auto dump = test::run_command("dcmdump -M " + test::quote(copy.string()));
-        ASSERT_NE(dump.out.find(std::string{"# Used TransferSyntax: "} + syntax.dcmdump_name), std::string::npos)
+        ASSERT_NE(dump.out.find(std::string{"# Used TransferSyntax: "} + syntax.dcmdump_name),
+                  std::string::npos)
             << dump.out.substr(0, 400);
       }
       const auto plan = read_plan_file(copy);
@@ -142,15 +155,18 @@ TEST(ReadPlanTransferSyntax, EveryEncodingReadsTheSamePlan) {
         ASSERT_EQ(got.control_points.size(), want.control_points.size());
         for (std::size_t c = 0; c < got.control_points.size(); ++c) {
           EXPECT_EQ(got.control_points[c].gantry_deg, want.control_points[c].gantry_deg);
-          EXPECT_EQ(got.control_points[c].cumulative_meterset_weight, want.control_points[c].cumulative_meterset_weight);
+          EXPECT_EQ(got.control_points[c].cumulative_meterset_weight,
+                    want.control_points[c].cumulative_meterset_weight);
           ASSERT_EQ(got.control_points[c].devices.size(), want.control_points[c].devices.size());
           for (std::size_t d = 0; d < got.control_points[c].devices.size(); ++d) {
-            EXPECT_EQ(got.control_points[c].devices[d].positions_mm, want.control_points[c].devices[d].positions_mm);
+            EXPECT_EQ(got.control_points[c].devices[d].positions_mm,
+                      want.control_points[c].devices[d].positions_mm);
           }
         }
         EXPECT_EQ(got.dose_references.size(), want.dose_references.size());
         for (std::size_t r = 0; r < got.dose_references.size(); ++r) {
-          EXPECT_EQ(got.dose_references[r].distances.depth_mm, want.dose_references[r].distances.depth_mm);  // FL
+          EXPECT_EQ(got.dose_references[r].distances.depth_mm,
+                    want.dose_references[r].distances.depth_mm);  // FL
         }
       }
       const auto& got_ref = plan->fraction_groups.at(0).beams.at(0);
@@ -171,7 +187,8 @@ TEST(ReadPlanBytes, BytesReadLikeTheFile) {
   const auto from_file = read_plan_file(path);
   ASSERT_TRUE(from_file.has_value());
   EXPECT_EQ(plan->beams.at(1).wedges.at(0).factor, from_file->beams.at(1).wedges.at(0).factor);
-  EXPECT_EQ(plan->fraction_groups.at(0).beams.at(1).meterset_mu, from_file->fraction_groups.at(0).beams.at(1).meterset_mu);
+  EXPECT_EQ(plan->fraction_groups.at(0).beams.at(1).meterset_mu,
+            from_file->fraction_groups.at(0).beams.at(1).meterset_mu);
 
   const std::span<const std::byte> half(bytes.data(), bytes.size() / 2);
   const auto truncated = read_plan_bytes(half, "half a plan");

@@ -22,9 +22,12 @@ namespace {
 
 const char* layout_name(make_demo_plans::DosePointLayout layout) {
   switch (layout) {
-    case make_demo_plans::DosePointLayout::beam_level: return "beam_level";
-    case make_demo_plans::DosePointLayout::referenced_beam_2012: return "referenced_beam_2012";
-    case make_demo_plans::DosePointLayout::fraction_verification: return "fraction_verification";
+    case make_demo_plans::DosePointLayout::beam_level:
+      return "beam_level";
+    case make_demo_plans::DosePointLayout::referenced_beam_2012:
+      return "referenced_beam_2012";
+    case make_demo_plans::DosePointLayout::fraction_verification:
+      return "fraction_verification";
   }
   return "?";
 }
@@ -36,25 +39,27 @@ std::string optional_text(const std::optional<double>& value) { return value ? n
 void write_plans(const std::vector<make_demo_plans::PlanSpec>& plans, const std::filesystem::path& dir) {
   std::filesystem::create_directories(dir);
   std::ofstream manifest(dir / "EXPECTED_BEAMS.tsv");
-  manifest << "# Expected per-beam values of the INVENTED demo plans, written by tools/make_demo_plans from its\n"
-              "# own plan specification (not by reading the DICOM files back). Doses in Gy, distances in mm.\n"
-              "file\tpatient_position\tsetup_technique\tlayout\tbeam_number\tbeam_name\tdelivery_type\tenergy_mv\t"
-              "gantry_deg\tcontrol_points\tmlc\twedge_id\ttray_id\tmeterset_mu\tbeam_dose_gy\tssd_mm\tdepth_mm\t"
-              "off_axis_mm\tdose_point_mm\n";
+  manifest
+      << "# Expected per-beam values of the INVENTED demo plans, written by tools/make_demo_plans from its\n"
+         "# own plan specification (not by reading the DICOM files back). Doses in Gy, distances in mm.\n"
+         "file\tpatient_position\tsetup_technique\tlayout\tbeam_number\tbeam_name\tdelivery_type\tenergy_mv\t"
+         "gantry_deg\tcontrol_points\tmlc\twedge_id\ttray_id\tmeterset_mu\tbeam_dose_gy\tssd_mm\tdepth_mm\t"
+         "off_axis_mm\tdose_point_mm\n";
   for (const auto& plan : plans) {
     auto file = make_demo_plans::build_plan(plan);
     const auto path = dir / plan.file_name;
-    if (file->saveFile(path.c_str(), EXS_LittleEndianExplicit).bad()) throw std::runtime_error("cannot write " + path.string());
+    if (file->saveFile(path.c_str(), EXS_LittleEndianExplicit).bad())
+      throw std::runtime_error("cannot write " + path.string());
     for (const auto& beam : plan.beams) {
-      manifest << fmt::format("{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\\{}\\{}\n",
-                              plan.file_name, plan.patient_position, plan.setup_technique, layout_name(plan.layout),
-                              beam.number, beam.name, beam.delivery_type, beam.energy_mv,
-                              beam.control_points.front().gantry_deg, beam.control_points.size(),
-                              beam.has_mlc ? "MLCX" : "-", beam.wedge_id.empty() ? "-" : beam.wedge_id,
-                              beam.tray_id.empty() ? "-" : beam.tray_id, optional_text(beam.meterset_mu),
-                              optional_text(beam.beam_dose_gy), number_text(beam.ssd_mm), number_text(beam.depth_mm),
-                              number_text(beam.off_axis_mm), number_text(beam.dose_point_mm[0]),
-                              number_text(beam.dose_point_mm[1]), number_text(beam.dose_point_mm[2]));
+      manifest << fmt::format(
+          "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\\{}\\{}\n",
+          plan.file_name, plan.patient_position, plan.setup_technique, layout_name(plan.layout), beam.number,
+          beam.name, beam.delivery_type, beam.energy_mv, beam.control_points.front().gantry_deg,
+          beam.control_points.size(), beam.has_mlc ? "MLCX" : "-",
+          beam.wedge_id.empty() ? "-" : beam.wedge_id, beam.tray_id.empty() ? "-" : beam.tray_id,
+          optional_text(beam.meterset_mu), optional_text(beam.beam_dose_gy), number_text(beam.ssd_mm),
+          number_text(beam.depth_mm), number_text(beam.off_axis_mm), number_text(beam.dose_point_mm[0]),
+          number_text(beam.dose_point_mm[1]), number_text(beam.dose_point_mm[2]));
     }
   }
 }
@@ -74,7 +79,8 @@ int main(int argc, char** argv) {
     const auto plans = make_demo_plans::demo_plans();
     write_plans(plans, root / "plans");
     make_demo_plans::write_malformed_corpus(plans, root / "malformed");
-    std::cout << "wrote " << plans.size() << " demo plans and the malformed corpus under " << root.string() << "\n";
+    std::cout << "wrote " << plans.size() << " demo plans and the malformed corpus under " << root.string()
+              << "\n";
     return 0;
   } catch (const std::exception& e) {
     std::cerr << "make_demo_plans: " << e.what() << "\n";

@@ -12,11 +12,11 @@ namespace make_demo_plans {
 
 // Where the plan keeps the depth of each beam's dose point (DICOM has used three places).
 enum class DosePointLayout {
-  beam_level,              // current edition: Beam Sequence > Referenced Dose Reference Sequence >
-                           // Beam Dose Verification Control Point Sequence
-  referenced_beam_2012,    // 2012 edition: Beam Dose Point Depth etc. directly in the fraction group's
-                           // Referenced Beam Sequence item, with the retired Beam Dose Specification Point
-  fraction_verification,   // Referenced Beam Sequence item > Beam Dose Verification Control Point Sequence
+  beam_level,             // current edition: Beam Sequence > Referenced Dose Reference Sequence >
+                          // Beam Dose Verification Control Point Sequence
+  referenced_beam_2012,   // 2012 edition: Beam Dose Point Depth etc. directly in the fraction group's
+                          // Referenced Beam Sequence item, with the retired Beam Dose Specification Point
+  fraction_verification,  // Referenced Beam Sequence item > Beam Dose Verification Control Point Sequence
 };
 
 enum class JawKind { symmetric_xy, asymmetric };  // X/Y or ASYMX/ASYMY device types
@@ -44,14 +44,14 @@ struct BeamSpec {
   std::vector<double> segment_weights;  // step-and-shoot: relative MU per segment (pairs of CPs)
   std::string wedge_id;                 // "W15".."W60" or empty
   double wedge_orientation_deg = 0.0;
-  std::string tray_id;                  // "TRAY-A" (with one shielding block) or empty
+  std::string tray_id;  // "TRAY-A" (with one shielding block) or empty
 
   // Dose point, by construction: depth below a flat surface, SSD along the central axis, off-axis
   // distance in the isocentre plane along IEC X of the collimator.
   double ssd_mm = 900.0;
   double depth_mm = 100.0;
   double off_axis_mm = 0.0;
-  bool fixed_ssd = false;   // FIXED_SSD technique: PDD form instead of TMR form
+  bool fixed_ssd = false;        // FIXED_SSD technique: PDD form instead of TMR form
   double planned_dose_gy = 0.0;  // the beam's dose at its dose point per fraction (0 for setup beams)
   double mu_error_factor = 1.0;  // an invented transcription error, written into the MU only
 
@@ -64,8 +64,8 @@ struct BeamSpec {
 };
 
 struct PlanSpec {
-  std::string file_name;     // e.g. "fern_box_4field.dcm"
-  std::string uid_suffix;    // distinct digits for this plan's UIDs
+  std::string file_name;   // e.g. "fern_box_4field.dcm"
+  std::string uid_suffix;  // distinct digits for this plan's UIDs
   std::string label;
   std::string name;
   std::string description;

@@ -38,13 +38,14 @@ double dose_per_mu_cgy(const BeamSpec& beam, const std::vector<double>& mlc_mm) 
     const double surface_cm = aperture_iso_cm * ssd_cm / sad_cm;
     const double at_dmax_cm = aperture_iso_cm * (ssd_cm + dmax_cm) / sad_cm;
     const double inverse_square = std::pow((calibration_ssd_cm + dmax_cm) / (ssd_cm + dmax_cm), 2);
-    return factors * demo_linac::sp(model, at_dmax_cm) * demo_linac::pdd(model, depth_cm, surface_cm, ssd_cm) / 100.0 *
-           inverse_square;
+    return factors * demo_linac::sp(model, at_dmax_cm) *
+           demo_linac::pdd(model, depth_cm, surface_cm, ssd_cm) / 100.0 * inverse_square;
   }
   const double spd_cm = ssd_cm + depth_cm;  // source to point along the central axis
   const double at_depth_cm = aperture_iso_cm * spd_cm / sad_cm;
   const double inverse_square = std::pow((calibration_ssd_cm + dmax_cm) / spd_cm, 2);
-  return factors * demo_linac::sp(model, at_depth_cm) * demo_linac::tmr(model, depth_cm, at_depth_cm) * inverse_square;
+  return factors * demo_linac::sp(model, at_depth_cm) * demo_linac::tmr(model, depth_cm, at_depth_cm) *
+         inverse_square;
 }
 
 std::vector<double> mean_aperture(const std::vector<double>& a, const std::vector<double>& b) {
@@ -68,7 +69,8 @@ void plan_beam(BeamSpec& beam) {
   std::vector<double> interval_dose_per_mu(n - 1, 0.0);
   const bool step_and_shoot = !beam.segment_weights.empty();
   if (step_and_shoot) {
-    if (beam.segment_weights.size() * 2 != n) throw std::logic_error("step-and-shoot needs two control points per segment");
+    if (beam.segment_weights.size() * 2 != n)
+      throw std::logic_error("step-and-shoot needs two control points per segment");
     const double total = std::accumulate(beam.segment_weights.begin(), beam.segment_weights.end(), 0.0);
     for (std::size_t k = 0; k < beam.segment_weights.size(); ++k) {
       weights[2 * k] = beam.segment_weights[k] / total;  // the beam is on between the segment's two CPs
@@ -79,9 +81,10 @@ void plan_beam(BeamSpec& beam) {
       weights[i] = 1.0 / static_cast<double>(n - 1);
       // Arcs: the leaves move linearly between control points; the interval's aperture is
       // approximated by the mean of the two (stated in testdata/plans/README.md).
-      const auto aperture = beam.control_points[i].mlc_mm.empty()
-                                ? std::vector<double>{}
-                                : mean_aperture(beam.control_points[i].mlc_mm, beam.control_points[i + 1].mlc_mm);
+      const auto aperture =
+          beam.control_points[i].mlc_mm.empty()
+              ? std::vector<double>{}
+              : mean_aperture(beam.control_points[i].mlc_mm, beam.control_points[i + 1].mlc_mm);
       interval_dose_per_mu[i] = dose_per_mu_cgy(beam, aperture);
     }
   }
@@ -115,7 +118,8 @@ std::vector<double> leaf_boundaries_mm() {
   return boundaries;
 }
 
-double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm, const std::vector<double>& mlc_mm) {
+double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm,
+                                     const std::vector<double>& mlc_mm) {
   if (mlc_mm.empty()) {
     return rectangle_equivalent_square_cm((jaws_mm[1] - jaws_mm[0]) / 10.0, (jaws_mm[3] - jaws_mm[2]) / 10.0);
   }

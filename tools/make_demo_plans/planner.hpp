@@ -4,7 +4,8 @@
 // point from the invented FERN-LINAC-1 model (tools/demo_linac/model.hpp), then the MU for the
 // planned dose. Methods (AAPM TG-71, 2014, the isocentric TMR form and the SSD/PDD form):
 //   isocentric: D/MU = output Sc(s_c) Sp(s_d) TMR(d, s_d) WF TF OAR(d, r) ((SSDcal + dmax)/SPD)^2
-//   fixed SSD:  D/MU = output Sc(s_c) Sp(s_d0) PDD(d, s_s, SSD)/100 WF TF OAR ((SSDcal + dmax)/(SSD + dmax))^2
+//   fixed SSD:  D/MU = output Sc(s_c) Sp(s_d0) PDD(d, s_s, SSD)/100 WF TF OAR ((SSDcal + dmax)/(SSD +
+//   dmax))^2
 // with equivalent squares by Sterling's 4A/P; an MLC aperture's area and perimeter are those of
 // the union of its open leaf pairs within the jaws.
 
@@ -18,7 +19,8 @@ namespace make_demo_plans {
 [[nodiscard]] std::vector<double> leaf_boundaries_mm();
 
 // Equivalent square (cm) of the aperture at the isocentre plane: jaws, and the MLC if given.
-[[nodiscard]] double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm, const std::vector<double>& mlc_mm);
+[[nodiscard]] double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm,
+                                                   const std::vector<double>& mlc_mm);
 
 // Fills meterset_mu, beam_dose_gy, cumulative weights and dose fractions of every beam.
 void plan_doses(PlanSpec& plan);

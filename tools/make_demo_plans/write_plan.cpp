@@ -42,7 +42,8 @@ std::string ds_list(const std::vector<double>& values) {
 }
 
 void put_fl(DcmItem& item, const DcmTagKey& tag, double value) {
-  if (item.putAndInsertFloat32(tag, static_cast<Float32>(value)).bad()) throw std::runtime_error("cannot write FL");
+  if (item.putAndInsertFloat32(tag, static_cast<Float32>(value)).bad())
+    throw std::runtime_error("cannot write FL");
 }
 
 DcmItem& new_item(DcmItem& parent, const DcmTagKey& sequence, long index) {
@@ -65,7 +66,8 @@ struct RayDistances {
 };
 RayDistances ray_distances(const BeamSpec& beam) {
   const double plane_mm = beam.ssd_mm + beam.depth_mm;  // source to the point's plane
-  const double scale = std::hypot(plane_mm, beam.off_axis_mm * plane_mm / (demo_linac::sad_cm * 10.0)) / plane_mm;
+  const double scale =
+      std::hypot(plane_mm, beam.off_axis_mm * plane_mm / (demo_linac::sad_cm * 10.0)) / plane_mm;
   return {beam.depth_mm * scale, beam.ssd_mm * scale};
 }
 
@@ -229,7 +231,8 @@ void write_control_points(DcmItem& beam_item, const PlanSpec& plan, const BeamSp
     // Later control points repeat only what changes (PS3.3 C.8.8.14); the reader carries the rest.
     if (first || arc) {
       put(cp, DCM_GantryAngle, ds(spec.gantry_deg));
-      put(cp, DCM_GantryRotationDirection, (arc && i + 1 < beam.control_points.size()) ? beam.gantry_rotation : "NONE");
+      put(cp, DCM_GantryRotationDirection,
+          (arc && i + 1 < beam.control_points.size()) ? beam.gantry_rotation : "NONE");
     }
     if (first) {
       put(cp, DCM_BeamLimitingDeviceAngle, ds(beam.collimator_deg));
@@ -238,7 +241,8 @@ void write_control_points(DcmItem& beam_item, const PlanSpec& plan, const BeamSp
       put(cp, DCM_PatientSupportRotationDirection, "NONE");
       put(cp, DCM_TableTopEccentricAngle, "0");
       put(cp, DCM_TableTopEccentricRotationDirection, "NONE");
-      put(cp, DCM_IsocenterPosition, ds_list({plan.isocenter_mm[0], plan.isocenter_mm[1], plan.isocenter_mm[2]}));
+      put(cp, DCM_IsocenterPosition,
+          ds_list({plan.isocenter_mm[0], plan.isocenter_mm[1], plan.isocenter_mm[2]}));
     }
     if (first || arc) put(cp, DCM_SourceToSurfaceDistance, ds(beam.ssd_mm));
     put(cp, DCM_CumulativeMetersetWeight, ds(beam.cumulative_weights[i]));
@@ -293,7 +297,8 @@ void write_beam(DcmItem& item, const PlanSpec& plan, const BeamSpec& beam) {
     const double x2 = beam.jaws_mm[1];
     const double y2 = beam.jaws_mm[3];
     put(block, DCM_BlockNumberOfPoints, "4");
-    put(block, DCM_BlockData, ds_list({x2 - 20.0, y2 - 40.0, x2 + 5.0, y2 - 40.0, x2 + 5.0, y2 + 5.0, x2 - 20.0, y2 + 5.0}));
+    put(block, DCM_BlockData,
+        ds_list({x2 - 20.0, y2 - 40.0, x2 + 5.0, y2 - 40.0, x2 + 5.0, y2 + 5.0, x2 - 20.0, y2 + 5.0}));
   }
   put(item, DCM_FinalCumulativeMetersetWeight, "1");
   put(item, DCM_NumberOfControlPoints, std::to_string(beam.control_points.size()));
@@ -321,7 +326,8 @@ std::unique_ptr<DcmFileFormat> build_plan(const PlanSpec& plan) {
   put(setup, DCM_PatientSetupNumber, "1");
   put(setup, DCM_PatientPosition, plan.patient_position);
   put(setup, DCM_SetupTechnique, plan.setup_technique);
-  put(setup, DCM_SetupTechniqueDescription, plan.setup_technique == "FIXED_SSD" ? "extended SSD" : "isocentric");
+  put(setup, DCM_SetupTechniqueDescription,
+      plan.setup_technique == "FIXED_SSD" ? "extended SSD" : "isocentric");
   return file;
 }
 

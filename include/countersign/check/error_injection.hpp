@@ -15,18 +15,22 @@
 namespace countersign::check {
 
 enum class InjectedError {
-  meterset_plus_5_percent,   // Beam Meterset (300A,0086) x 1.05
-  meterset_minus_5_percent,  // Beam Meterset (300A,0086) x 0.95
-  wrong_energy,              // Nominal Beam Energy (300A,0114): another energy of the machine in the library
-  ssd_plus_20_mm,            // Source to Surface Distance (300A,0130) + 20 mm at every control point
-  wedge_removed,             // Wedge Sequence (300A,00D1) and Wedge Position Sequence (300A,0116) removed
-  jaws_swapped,              // the two X jaw positions (300A,011C) exchanged at every control point
-  beam_dose_plus_10_percent, // the fraction group's Beam Dose (300A,0084) x 1.10
+  meterset_plus_5_percent,    // Beam Meterset (300A,0086) x 1.05
+  meterset_minus_5_percent,   // Beam Meterset (300A,0086) x 0.95
+  wrong_energy,               // Nominal Beam Energy (300A,0114): another energy of the machine in the library
+  ssd_plus_20_mm,             // Source to Surface Distance (300A,0130) + 20 mm at every control point
+  wedge_removed,              // Wedge Sequence (300A,00D1) and Wedge Position Sequence (300A,0116) removed
+  jaws_swapped,               // the two X jaw positions (300A,011C) exchanged at every control point
+  beam_dose_plus_10_percent,  // the fraction group's Beam Dose (300A,0084) x 1.10
 };
 
 inline constexpr std::array<InjectedError, 7> all_injected_errors = {
-    InjectedError::meterset_plus_5_percent, InjectedError::meterset_minus_5_percent, InjectedError::wrong_energy,
-    InjectedError::ssd_plus_20_mm,          InjectedError::wedge_removed,            InjectedError::jaws_swapped,
+    InjectedError::meterset_plus_5_percent,
+    InjectedError::meterset_minus_5_percent,
+    InjectedError::wrong_energy,
+    InjectedError::ssd_plus_20_mm,
+    InjectedError::wedge_removed,
+    InjectedError::jaws_swapped,
     InjectedError::beam_dose_plus_10_percent};
 
 // snake_case code, as printed in the self-test table.

@@ -20,18 +20,18 @@ namespace countersign::check {
 struct SelfTestRow {
   std::string plan_file;
   int fraction_group_number = 0;
-  int beam_number = 0;                          // 0 for an unmodified-plan row
+  int beam_number = 0;  // 0 for an unmodified-plan row
   std::string beam_name;
-  std::optional<InjectedError> error;           // nullopt: the unmodified plan
-  std::string change;                           // what was changed
-  Status status = Status::not_checked;          // the beam's (or, unmodified, the plan's) status
-  std::string reason;                           // the check's sentence
-  std::optional<double> deviation_percent;      // as the check reported it
+  std::optional<InjectedError> error;       // nullopt: the unmodified plan
+  std::string change;                       // what was changed
+  Status status = Status::not_checked;      // the beam's (or, unmodified, the plan's) status
+  std::string reason;                       // the check's sentence
+  std::optional<double> deviation_percent;  // as the check reported it
   std::optional<double> tolerance_percent;
   std::optional<double> expected_deviation_percent;  // from the baseline and a known ratio change
-  bool must_flag = false;                       // the error takes the beam beyond its tolerance
+  bool must_flag = false;                            // the error takes the beam beyond its tolerance
   bool passed = false;
-  std::string verdict;                          // one sentence: why passed or failed
+  std::string verdict;  // one sentence: why passed or failed
 };
 
 struct SelfTestReport {
@@ -41,7 +41,7 @@ struct SelfTestReport {
 };
 
 // Runs the self-test over `plans` (already read) with `library` and `options`.
-[[nodiscard]] SelfTestReport run_self_test(const std::vector<plan::Plan>& plans, const beamdata::Library& library,
-                                           const CheckOptions& options);
+[[nodiscard]] SelfTestReport run_self_test(const std::vector<plan::Plan>& plans,
+                                           const beamdata::Library& library, const CheckOptions& options);
 
 }  // namespace countersign::check

@@ -51,7 +51,7 @@ struct TolerancePolicy {
 
   // A beam giving less than this share of its point's planned dose is also judged against the
   // point's total (common practice, no source).
-  double small_share_fraction = 0.2;
+  double small_share_fraction = 0.1;
 
   [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
 };

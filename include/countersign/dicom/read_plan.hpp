@@ -24,6 +24,7 @@ inline constexpr const char* rt_plan_storage_uid = "1.2.840.10008.5.1.4.1.1.481.
 // Reads a DICOM object held in memory (Part 10 bytes, or a bare dataset in implicit VR LE), e.g.
 // one received over the network. display_name stands for the file name in messages and in
 // Plan::source_file.
-[[nodiscard]] Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes, std::string display_name);
+[[nodiscard]] Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes,
+                                                   std::string display_name);
 
 }  // namespace countersign::dicom

@@ -22,13 +22,8 @@ namespace countersign::report {
 [[nodiscard]] nlohmann::json lookup_to_json(const beamdata::Lookup& lookup);
 
 // The whole run: {"plans": [...], "errors": [...], "status", "exit_code", "caution"}; errors are the
-// one-line messages of files that could not be read.
+// one-line messages of files that could not be read; "caution" is report::caution_text().
 [[nodiscard]] nlohmann::json check_run_to_json(const std::vector<check::PlanCheck>& checks,
                                                const std::vector<std::string>& errors, int exit_code);
-
-// The caution every report carries.
-inline constexpr const char* caution_text =
-    "This independent check supports, and does not replace, the physicist's review under local "
-    "regulations and licensed practice.";
 
 }  // namespace countersign::report

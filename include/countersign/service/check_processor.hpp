@@ -1,0 +1,31 @@
+#pragma once
+
+// The real checking pipeline as the services' PlanProcessor: the strict DICOM reader, check_plan
+// with a beam-data library loaded once for the whole service, the JSON record (the same document
+// `countersign check --json` prints for one plan) and the printable HTML record.
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/check/check_plan.hpp>
+#include <countersign/plan/plan.hpp>
+#include <countersign/service/plan_outcome.hpp>
+
+#include <filesystem>
+#include <memory>
+#include <optional>
+
+namespace countersign::service {
+
+// The history fields of one plan check. Technique is "<field category>/<formalism>", e.g.
+// "simple/tmr", "modulated/pdd", or "unknown" when no calculation was attempted.
+[[nodiscard]] PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& plan);
+
+// A processor over `library` (shared, never copied per plan) with `options`.
+[[nodiscard]] PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> library,
+                                                 check::CheckOptions options);
+
+// Loads the beam-data library and the tolerance policy (built-in defaults when none is named) once,
+// and returns the processor that uses them for every plan. Errors name the file and the key.
+[[nodiscard]] Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
+                                                           const std::optional<std::filesystem::path>& policy_file);
+
+}  // namespace countersign::service

@@ -1,0 +1,106 @@
+// `countersign watch INBOX --out RESULTS ...`: checks every RT Plan file that arrives in a folder,
+// exactly once, until SIGTERM or SIGINT (or, with --once, until the folder is empty).
+
+#include <countersign/cli/commands.hpp>
+#include <countersign/service/check_processor.hpp>
+#include <countersign/service/checking_service.hpp>
+#include <countersign/service/stop_signals.hpp>
+
+#include <chrono>
+#include <memory>
+#include <ostream>
+#include <string>
+#include <system_error>
+
+#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
+#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
+#endif
+
+namespace countersign::cli {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+struct WatchCommandOptions {
+  std::string inbox;
+  std::string results;
+  std::string quarantine;
+  std::string beamdata;
+  std::string policy;
+  double settle_s = 10.0;
+  bool once = false;
+};
+
+ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
+  try {
+    // Before any other thread exists, so that every thread inherits the blocked signals.
+    const service::TerminationSignals signals;
+    service::ServiceLog log{io.out};
+
+    const fs::path library_dir = options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
+    auto processor = service::load_check_processor(
+        library_dir, options.policy.empty() ? std::nullopt : std::optional<fs::path>{options.policy});
+    if (!processor) {
+      io.err << "countersign watch: " << processor.error().message() << "\n";
+      return ExitCode::bad_input;
+    }
+
+    service::ServiceSettings settings;
+    settings.inbox = options.inbox;
+    settings.results = options.results;
+    if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
+    settings.intake.settle_time = std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
+    auto opened = service::CheckingService::open(settings, std::move(processor.value()), log);
+    if (!opened) {
+      io.err << "countersign watch: " << opened.error().message() << "\n";
+      return ExitCode::bad_input;
+    }
+    log.line("beam data " + library_dir.string() + "; " +
+             (options.once ? "checking what is there, then stopping" : "stop with SIGTERM or SIGINT"));
+
+    const int stop_fds[] = {signals.fd()};
+    const auto summary =
+        opened.value()->run(options.once ? service::RunUntil::idle : service::RunUntil::stopped, stop_fds);
+    if (!summary) {
+      io.err << "countersign watch: " << summary.error().message() << "\n";
+      return ExitCode::bad_input;
+    }
+    const auto signal = signals.take();
+    log.line(std::string{"stopped"} + (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) +
+             ": " + std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
+             " already checked, " + std::to_string(summary->quarantined) + " quarantined, " +
+             std::to_string(summary->failures) + " failed attempts");
+    return ExitCode::all_within_tolerance;
+  } catch (const std::system_error& e) {
+    io.err << "countersign watch: " << e.what() << "\n";
+    return ExitCode::bad_input;
+  }
+}
+
+}  // namespace
+
+void add_watch_command(CLI::App& app, CommandContext& context) {
+  auto options = std::make_shared<WatchCommandOptions>();
+  auto* command = app.add_subcommand(
+      "watch",
+      "Check every RT Plan file that arrives in INBOX, exactly once (by SOP Instance UID and content hash). "
+      "Results: RESULTS/<SOPInstanceUID>.json and .html, written atomically; history: RESULTS/history.sqlite; "
+      "checked plan files are kept in RESULTS/plans; files that are not usable plans go to the quarantine "
+      "folder with a .reason.txt. Files already waiting are checked first. SIGTERM or SIGINT finishes the "
+      "current plan and stops. The check supports, and does not replace, the physicist's review.");
+  command->add_option("inbox", options->inbox, "folder the planning system exports to")->required();
+  command->add_option("--out", options->results, "results folder (created 0750)")->required();
+  command->add_option("--quarantine", options->quarantine, "folder for bad files (default: RESULTS/quarantine)");
+  command->add_option("--beamdata", options->beamdata,
+                      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in values)");
+  command->add_option("--settle-seconds", options->settle_s,
+                      "a file that does not read as a plan is retried until it has been unchanged this long, "
+                      "then quarantined (default 10)")
+      ->check(CLI::Range(0.1, 3600.0));
+  command->add_flag("--once", options->once, "check what is in INBOX now, then stop");
+  command->callback([options, &context] { context.exit_code = run_watch(*options, context.io); });
+}
+
+}  // namespace countersign::cli

@@ -1,0 +1,159 @@
+// The beam's-eye view geometry: what is drawn where, in millimetres of paper.
+
+#include <countersign/geometry/beam_frame.hpp>
+#include <countersign/report/beams_eye_view.hpp>
+
+#include <gtest/gtest.h>
+
+#include <regex>
+#include <string>
+
+namespace countersign::report {
+namespace {
+
+constexpr double tol_mm = 1e-9;
+
+TEST(BeamsEyeView, TenByTenFieldIsAHundredMillimetreSquareAtFullScale) {
+  const BevMapping m(1.0, 0.0, {60.0, 60.0});
+  const PaperMm lower_left = m.to_paper(-50.0, -50.0);
+  const PaperMm upper_right = m.to_paper(50.0, 50.0);
+  EXPECT_NEAR(upper_right.x - lower_left.x, 100.0, tol_mm);
+  EXPECT_NEAR(lower_left.y - upper_right.y, 100.0, tol_mm);  // +Y is up, paper y grows down
+  EXPECT_NEAR(lower_left.x, 10.0, tol_mm);
+  EXPECT_NEAR(upper_right.y, 10.0, tol_mm);
+}
+
+TEST(BeamsEyeView, PanelChoosesFullScaleForTenByTenAndSvgUnitsAreMillimetres) {
+  BevContent c;
+  c.jaws = {-50.0, 50.0, -50.0, 50.0};
+  c.open = {{-50.0, 50.0, -50.0, 50.0}};
+  c.dose_point_mm = PaperMm{0.0, 0.0};
+  const BevPanel panel;  // 120 mm with 11 mm kept for labels: 49 mm of room each side
+  EXPECT_DOUBLE_EQ(bev_mapping(c, panel).scale(), 0.8);
+  const BevPanel roomy{130.0, 130.0, 10.0};
+  EXPECT_DOUBLE_EQ(bev_mapping(c, roomy).scale(), 1.0);
+
+  const std::string svg = beams_eye_view_svg(c, roomy);
+  EXPECT_NE(svg.find("width=\"130.00mm\" height=\"130.00mm\" viewBox=\"0 0 130.00 130.00\""), std::string::npos) << svg;
+  // The jaw rectangle: corners 100 mm apart, centred on the panel.
+  EXPECT_NE(svg.find("points=\"15.00,115.00 115.00,115.00 115.00,15.00 15.00,15.00\""), std::string::npos) << svg;
+  EXPECT_NE(svg.find("scale 1:1 at isocentre plane"), std::string::npos);
+  EXPECT_NE(svg.find("5 cm at isocentre"), std::string::npos);
+}
+
+TEST(BeamsEyeView, ScalesAreRoundAndFitTheField) {
+  EXPECT_DOUBLE_EQ(choose_scale(50.0, 50.0), 1.0);
+  EXPECT_DOUBLE_EQ(choose_scale(60.0, 50.0), 0.8);
+  EXPECT_DOUBLE_EQ(choose_scale(200.0, 50.0), 0.25);
+  EXPECT_DOUBLE_EQ(choose_scale(2000.0, 50.0), 0.05);
+  EXPECT_EQ(scale_text(1.0), "1:1");
+  EXPECT_EQ(scale_text(0.8), "1:1.25");
+  EXPECT_EQ(scale_text(0.25), "1:4");
+}
+
+TEST(BeamsEyeView, RotatedCollimatorTurnsTheFieldCounterClockwiseSeenFromTheSource) {
+  // Collimator 90 degrees: the collimator's +X points along the gantry system's +Y (IEC 61217,
+  // right-handed about Z), which is up on the drawing.
+  const BevMapping m(1.0, 90.0, {60.0, 60.0});
+  const PaperMm p = m.to_paper(20.0, 0.0);
+  EXPECT_NEAR(p.x, 60.0, tol_mm);
+  EXPECT_NEAR(p.y, 40.0, tol_mm);
+  const PaperMm q = m.to_paper(0.0, 20.0);  // the collimator's +Y points to the gantry system's -X: left
+  EXPECT_NEAR(q.x, 40.0, tol_mm);
+  EXPECT_NEAR(q.y, 60.0, tol_mm);
+}
+
+TEST(BeamsEyeView, DosePointLandsWhereTheBeamSeesItWhateverTheCollimatorAngle) {
+  // A point of a head-first-supine patient, 30 mm towards the patient's left and 20 mm towards the
+  // head of an isocentre at the origin, gantry 0. Seen from the source the drawing is fixed to the
+  // gantry, so turning the collimator must not move the point on paper, only the field around it.
+  const plan::PointMm point{30.0, 0.0, 20.0};
+  const geometry::BeamAngles straight{0.0, 0.0, 0.0};
+  const geometry::BeamFrame frame0(geometry::PatientPosition::hfs, straight, {0.0, 0.0, 0.0}, 1000.0);
+  const geometry::PointInBeam seen0 = frame0.locate(point);
+  const PaperMm reference = BevMapping(1.0, 0.0, {60.0, 60.0}).to_paper(seen0.iso_plane_x_mm, seen0.iso_plane_y_mm);
+  for (const double collimator : {30.0, 90.0, 135.0, 270.0, 345.0}) {
+    const geometry::BeamAngles turned{0.0, collimator, 0.0};
+    const geometry::BeamFrame frame(geometry::PatientPosition::hfs, turned, {0.0, 0.0, 0.0}, 1000.0);
+    const geometry::PointInBeam seen = frame.locate(point);
+    const PaperMm p = BevMapping(1.0, collimator, {60.0, 60.0}).to_paper(seen.iso_plane_x_mm, seen.iso_plane_y_mm);
+    EXPECT_NEAR(p.x, reference.x, 1e-9) << "collimator " << collimator;
+    EXPECT_NEAR(p.y, reference.y, 1e-9) << "collimator " << collimator;
+  }
+  // And where that is: HFS at gantry 0 has IEC X towards the patient's left (DICOM +x) and IEC Y
+  // towards the head (DICOM +z), so the point is 30 mm right and 20 mm up of the axis on paper.
+  EXPECT_NEAR(reference.x, 90.0, 1e-9);
+  EXPECT_NEAR(reference.y, 40.0, 1e-9);
+}
+
+TEST(BeamsEyeView, DrawsTheDosePointOfARotatedCollimatorInTheSvg) {
+  BevContent c;
+  c.collimator_deg = 90.0;
+  c.jaws = {-40.0, 40.0, -40.0, 40.0};
+  c.open = {{-40.0, 40.0, -40.0, 40.0}};
+  c.dose_point_mm = PaperMm{20.0, 0.0};
+  const BevPanel panel{130.0, 130.0, 10.0};
+  const std::string svg = beams_eye_view_svg(c, panel);
+  // Collimator +X is up at 90 degrees: 20 mm above the centre (65, 65).
+  EXPECT_NE(svg.find("class=\"dose-point\" cx=\"65.00\" cy=\"45.00\""), std::string::npos) << svg;
+  EXPECT_NE(svg.find("coll. 90.0\u00B0"), std::string::npos);
+}
+
+TEST(BeamsEyeView, MlcLeavesAreDrawnOnlyWhereTheyBlockInsideTheJaws) {
+  BevContent c;
+  c.jaws = {-50.0, 50.0, -20.0, 20.0};
+  c.shaped_by_mlc = true;
+  c.open = {{-20.0, 0.0, -30.0, 30.0}, {0.0, 20.0, -50.0, 50.0}};  // lower pair narrower than the jaws
+  const BevPanel panel{130.0, 130.0, 10.0};
+  const std::string svg = beams_eye_view_svg(c, panel);
+  const std::regex leaf("fill=\"#c4c4c4\"");
+  const auto leaves = std::distance(std::sregex_iterator(svg.begin(), svg.end(), leaf), std::sregex_iterator());
+  EXPECT_EQ(leaves, 2);  // bank A and bank B of the lower pair; the upper pair is open to the jaws
+}
+
+TEST(BeamsEyeView, SweptOpeningOfStepAndShootIsTheUnionOfItsSegments) {
+  plan::Beam beam;
+  beam.beam_limiting_devices = {{"ASYMX", std::nullopt, 1, {}},
+                                {"ASYMY", std::nullopt, 1, {}},
+                                {"MLCX", std::nullopt, 2, {-20.0, 0.0, 20.0}}};
+  const auto cp = [](int index, double weight, std::vector<double> leaves) {
+    plan::ControlPoint p;
+    p.index = index;
+    p.cumulative_meterset_weight = weight;
+    p.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-20.0, 20.0}}, {"MLCX", std::move(leaves)}};
+    return p;
+  };
+  // Segment 1: pairs open -30..-10 and -30..-10; segment 2: 10..30 and 10..30 (disjoint).
+  beam.control_points = {cp(0, 0.0, {-30, -30, -10, -10}), cp(1, 0.5, {-30, -30, -10, -10}),
+                         cp(2, 0.5, {10, 10, 30, 30}), cp(3, 1.0, {10, 10, 30, 30})};
+  const auto swept = swept_opening(beam);
+  ASSERT_TRUE(swept);
+  ASSERT_EQ(swept->open.size(), 4u);  // two disjoint intervals in each of the two leaf pairs
+  EXPECT_DOUBLE_EQ(swept->open[0].lo_mm, -30.0);
+  EXPECT_DOUBLE_EQ(swept->open[0].hi_mm, -10.0);
+  EXPECT_DOUBLE_EQ(swept->open[1].lo_mm, 10.0);
+  EXPECT_DOUBLE_EQ(swept->open[1].hi_mm, 30.0);
+  EXPECT_DOUBLE_EQ(swept->envelope.x1_mm, -50.0);
+  EXPECT_DOUBLE_EQ(swept->envelope.y2_mm, 20.0);
+}
+
+TEST(BeamsEyeView, SweptOpeningOfMovingLeavesCoversTheirPath) {
+  plan::Beam beam;
+  beam.beam_limiting_devices = {{"MLCX", std::nullopt, 1, {-5.0, 5.0}}};
+  plan::ControlPoint a;
+  a.cumulative_meterset_weight = 0.0;
+  a.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-5.0, 5.0}}, {"MLCX", {-40.0, -30.0}}};
+  plan::ControlPoint b = a;
+  b.index = 1;
+  b.cumulative_meterset_weight = 1.0;
+  b.devices[2].positions_mm = {20.0, 30.0};  // a 10 mm gap sliding from -40 to +30
+  beam.control_points = {a, b};
+  const auto swept = swept_opening(beam);
+  ASSERT_TRUE(swept);
+  ASSERT_EQ(swept->open.size(), 1u);
+  EXPECT_DOUBLE_EQ(swept->open[0].lo_mm, -40.0);
+  EXPECT_DOUBLE_EQ(swept->open[0].hi_mm, 30.0);
+}
+
+}  // namespace
+}  // namespace countersign::report
