@@ -158,14 +158,14 @@ class MachineLoader {
   MachineLoader(const fs::path& machine_folder, const fs::path& manifest_path, Inspection& inspection,
                 Sha256& hash)
       : folder_(machine_folder),
+        fingerprint_name_(fingerprint_name(machine_folder)),
         inspection_(inspection),
         hash_(hash),
         reader_(manifest_path.string(), inspection.problems) {}
 
   // Adds one file to the fingerprint: "<machine folder>/<path>\n<size>\n<bytes>".
   void fingerprint(const std::string& relative, const std::string& bytes) {
-    hash_.update(folder_.filename().generic_string() + "/" + relative + "\n" + std::to_string(bytes.size()) +
-                 "\n");
+    hash_.update(fingerprint_name_ + "/" + relative + "\n" + std::to_string(bytes.size()) + "\n");
     hash_.update(bytes);
   }
 
@@ -382,7 +382,16 @@ class MachineLoader {
   }
 
  private:
+  // The machine folder's own name, however the user spelt the path ("dir/", ".", "../x").
+  static std::string fingerprint_name(const fs::path& folder) {
+    std::error_code ec;
+    const fs::path canonical = fs::weakly_canonical(folder, ec);
+    const fs::path named = ec ? folder.lexically_normal() : canonical;
+    return (named.has_filename() ? named.filename() : named.parent_path().filename()).generic_string();
+  }
+
   fs::path folder_;
+  std::string fingerprint_name_;
   Inspection& inspection_;
   Sha256& hash_;
   ManifestReader reader_;

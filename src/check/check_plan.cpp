@@ -274,13 +274,12 @@ void total_dose_references(const plan::Plan& plan, const beamdata::Library& libr
             return b.fraction_group_number == group.number && b.beam_number == rb.beam_number && b.calculation &&
                    same_point(b.calculation->dose_point.point_mm, *ref.point_mm);
           });
-          engine::BeamDose computed;
-          if (own != check.beams.end()) {
-            computed = *own->calculation;
-          } else {
+          std::optional<engine::BeamDose> fresh;
+          if (own == check.beams.end()) {
             const engine::DosePoint point{*ref.point_mm, engine::DosePointSource::dose_reference, ref.number};
-            computed = engine::compute_beam_dose(plan, *beam, rb, point, library, options.engine);
+            fresh = engine::compute_beam_dose(plan, *beam, rb, point, library, options.engine);
           }
+          const engine::BeamDose& computed = fresh ? *fresh : *own->calculation;
           if (computed.problem) {
             part.problem = computed.problem;
           } else if (const engine::Factor* f = computed.first_extrapolated()) {

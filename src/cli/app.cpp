@@ -22,6 +22,7 @@ int run(int argc, const char* const* argv, Io io) {
   add_watch_command(app, context);
   add_receive_command(app, context);
   add_history_command(app, context);
+  add_explain_command(app, context);
 
   try {
     app.parse(argc, argv);

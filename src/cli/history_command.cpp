@@ -38,11 +38,14 @@ struct HistoryCommandOptions {
   bool json = false;
 };
 
-std::string fixed(std::optional<double> value, int decimals, bool sign = false) {
-  if (!value) return "-";
+std::string fixed(double value, int decimals, bool sign = false) {
   char text[32];
-  std::snprintf(text, sizeof text, sign ? "%+.*f" : "%.*f", decimals, *value);
+  std::snprintf(text, sizeof text, sign ? "%+.*f" : "%.*f", decimals, value);
   return text;
+}
+
+std::string fixed(const std::optional<double>& value, int decimals, bool sign = false) {
+  return value ? fixed(*value, decimals, sign) : std::string{"-"};
 }
 
 std::string padded(std::string text, std::size_t width) {
@@ -121,12 +124,12 @@ void print_trends(std::ostream& out, const std::vector<service::TrendGroup>& gro
       << padded("mean_%", 9) << padded("sd_%", 8) << padded("min_%", 9) << padded("max_%", 9)
       << padded("outside_%", 11) << "not_checked\n";
   for (const auto& group : groups) {
-    const std::optional<double> outside_percent =
-        group.share_outside_tolerance ? std::optional<double>{*group.share_outside_tolerance * 100.0} : std::nullopt;
+    const std::string outside_percent =
+        group.share_outside_tolerance ? fixed(*group.share_outside_tolerance * 100.0, 1) : std::string{"-"};
     out << "  " << padded(group.machine, 16) << padded(fixed(group.energy_mv, 1), 11) << padded(group.technique, 18)
         << padded(std::to_string(group.checked_beams), 7) << padded(fixed(group.mean_deviation_percent, 2, true), 9)
         << padded(fixed(group.sd_deviation_percent, 2), 8) << padded(fixed(group.min_deviation_percent, 2, true), 9)
-        << padded(fixed(group.max_deviation_percent, 2, true), 9) << padded(fixed(outside_percent, 1), 11)
+        << padded(fixed(group.max_deviation_percent, 2, true), 9) << padded(outside_percent, 11)
         << group.not_checked_beams << "\n";
   }
   if (groups.empty()) out << "  (no beams match)\n";

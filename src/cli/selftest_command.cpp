@@ -62,7 +62,7 @@ void print_report(const check::SelfTestReport& report, std::ostream& out) {
                        percent_or_dash(row.expected_deviation_percent),
                        row.tolerance_percent ? fmt::format("{:.1f}", *row.tolerance_percent) : "-",
                        row.error ? (row.must_flag ? "flag" : "pass") : "pass",
-                       row.passed ? "ok: " : "FAIL: ", row.verdict);
+                       row.excluded ? "" : (row.passed ? "ok: " : "FAIL: "), row.verdict);
     if (row.error) out << fmt::format("{:<31} change: {}; check: {}\n", "", row.change, row.reason);
   }
   const auto injected = std::count_if(report.rows.begin(), report.rows.end(),

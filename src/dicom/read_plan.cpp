@@ -5,6 +5,7 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom/read_plan_dataset.hpp>
 
+#include "buffer_stream.hpp"
 #include "item_reader.hpp"
 
 #include <dcmtk/config/osconfig.h>
@@ -79,9 +80,8 @@ Expected<plan::Plan> read_plan_bytes(std::span<const std::byte> bytes, std::stri
     return Error{ErrorKind::not_dicom, display_name, "", "", "the file is empty, not a DICOM file"};
   const bool part10 = has_part10_preamble(bytes);
 
-  DcmInputBufferStream stream;
-  stream.setBuffer(bytes.data(), static_cast<offile_off_t>(bytes.size()));
-  stream.setEos();
+  // Reopenable, so that a declared length beyond the end of the bytes is an error, not an allocation.
+  detail::ReopenableBufferStream stream(bytes);
   DcmFileFormat file_format;
   file_format.transferInit();
   const OFCondition condition = file_format.read(stream, EXS_Unknown, EGL_noChange, DCM_MaxReadLength);

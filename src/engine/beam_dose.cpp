@@ -111,8 +111,22 @@ plan::ControlPoint interpolate(const plan::ControlPoint& a, const plan::ControlP
 struct PartPlan {
   int from_control_point = 0;
   double meterset_mu = 0.0;
-  plan::ControlPoint control_point;  // interpolated at the middle of the part
+  const plan::ControlPoint* control_point = nullptr;  // the part's geometry: a plan control point ...
+  std::optional<plan::ControlPoint> interpolated;     // ... or one interpolated at the middle of the part
 };
+
+// Whether nothing that shapes or aims the beam changes between two control points.
+bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b) {
+  if (a.gantry_deg != b.gantry_deg || a.collimator_deg != b.collimator_deg || a.couch_deg != b.couch_deg ||
+      a.isocenter_mm != b.isocenter_mm || a.ssd_mm != b.ssd_mm || a.devices.size() != b.devices.size()) {
+    return false;
+  }
+  for (const plan::DevicePositions& d : a.devices) {
+    const plan::DevicePositions* other = b.device(d.type);
+    if (other == nullptr || other->positions_mm != d.positions_mm) return false;
+  }
+  return true;
+}
 
 }  // namespace
 
@@ -292,7 +306,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   std::vector<PartPlan> parts;
   bool moving = false;
   if (beam.control_points.size() == 1) {
-    parts.push_back({cp0.index, r.meterset_mu, cp0});
+    parts.push_back({cp0.index, r.meterset_mu, &cp0, std::nullopt});
   }
   for (std::size_t i = 0; i + 1 < beam.control_points.size(); ++i) {
     const plan::ControlPoint& a = beam.control_points[i];
@@ -307,15 +321,21 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     if (std::abs(gantry_step) > 1e-6) moving = true;
     const int steps = std::max(1, static_cast<int>(std::ceil(std::abs(gantry_step) / max_arc_step_deg - 1e-9)));
     const double part_mu = r.meterset_mu * weight / final_weight / steps;
+    if (steps == 1 && same_geometry(a, b)) {
+      parts.push_back({a.index, part_mu, &a, std::nullopt});
+      continue;
+    }
     for (int k = 0; k < steps; ++k) {
-      parts.push_back({a.index, part_mu, interpolate(a, b, (k + 0.5) / steps)});
+      parts.push_back({a.index, part_mu, nullptr, interpolate(a, b, (k + 0.5) / steps)});
     }
   }
   if (parts.empty()) return fail(missing("a delivered meterset between control points", "(all weights equal)"));
   r.features.modulated = moving || parts.size() > 1;
 
   if (r.features.modulated && !data.mlc_transmission) {
-    const bool needs_transmission = std::any_of(parts.begin(), parts.end(), [](const PartPlan& p) { return p.control_point.device("MLCX") != nullptr; });
+    const bool needs_transmission = std::any_of(parts.begin(), parts.end(), [](const PartPlan& p) {
+      return (p.interpolated ? *p.interpolated : *p.control_point).device("MLCX") != nullptr;
+    });
     if (needs_transmission) {
       return fail({Reason::missing_beam_data,
                    fmt::format("beam {} of machine {} has no mlc_transmission; modulated beams need it", data.id,
@@ -326,7 +346,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   r.segments.reserve(parts.size());
   double total_cgy = 0.0;
   for (const PartPlan& part : parts) {
-    const plan::ControlPoint& cp = part.control_point;
+    const plan::ControlPoint& cp = part.interpolated ? *part.interpolated : *part.control_point;
     Segment s;
     s.from_control_point = part.from_control_point;
     s.meterset_mu = part.meterset_mu;
@@ -338,11 +358,17 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
       return fail({Reason::unsupported_geometry,
                    fmt::format("the dose point is not in front of the source at control point {}", s.from_control_point)});
     }
-    auto aperture = geometry::build_aperture(beam, cp);
-    if (!aperture) {
-      return fail({reason_for_geometry_error(aperture.error()),
-                   fmt::format("{} at control point {}", aperture.error().message(), s.from_control_point)});
+    // Control point 0's aperture is already built; other parts build their own.
+    std::optional<geometry::Aperture> own_aperture;
+    if (&cp != &cp0 && !same_geometry(cp, cp0)) {
+      auto built = geometry::build_aperture(beam, cp);
+      if (!built) {
+        return fail({reason_for_geometry_error(built.error()),
+                     fmt::format("{} at control point {}", built.error().message(), s.from_control_point)});
+      }
+      own_aperture = std::move(built.value());
     }
+    const geometry::Aperture* aperture = own_aperture ? &*own_aperture : &r.aperture;
     s.jaws = aperture->jaws();
     s.open_area_mm2 = aperture->area_mm2();
     s.open_perimeter_mm = aperture->perimeter_mm();

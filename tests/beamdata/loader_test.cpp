@@ -65,6 +65,13 @@ TEST(LoadLibrary, MachineFolderGivesTheSameLibraryAndFingerprint) {
   ASSERT_TRUE(single) << single.error().message();
   EXPECT_EQ(single->machines.size(), 1u);
   EXPECT_EQ(whole->sha256_hex, single->sha256_hex);
+  // However the path is spelt.
+  const auto slash = load_library((dir.path() / "TEST-LINAC-H").string() + "/");
+  ASSERT_TRUE(slash);
+  EXPECT_EQ(slash->sha256_hex, whole->sha256_hex);
+  const auto dotted = load_library(dir.path() / "TEST-LINAC-H" / "x6" / "..");
+  ASSERT_TRUE(dotted);
+  EXPECT_EQ(dotted->sha256_hex, whole->sha256_hex);
 }
 
 TEST(LoadLibrary, FingerprintIsTheDocumentedStreamHashedBySha256sum) {

@@ -97,10 +97,12 @@ TEST(SelfTest, EveryDemoPlanPassesAndEveryErrorBeyondToleranceIsFlagged) {
   const SelfTestReport report = run_self_test(all_demo_plans(), library(), CheckOptions{});
   ASSERT_FALSE(report.rows.empty());
   std::map<InjectedError, int> rows_per_error;
+  std::vector<std::string> excluded;
   for (const SelfTestRow& row : report.rows) {
-    EXPECT_TRUE(row.passed) << row.plan_file << " beam " << row.beam_number << " "
-                            << (row.error ? to_code(*row.error) : "unmodified") << ": " << row.verdict << " ("
-                            << row.reason << ")";
+    if (row.excluded) excluded.push_back(fs::path(row.plan_file).filename().string());
+    EXPECT_TRUE(row.passed || row.excluded) << row.plan_file << " beam " << row.beam_number << " "
+                                            << (row.error ? to_code(*row.error) : "unmodified") << ": "
+                                            << row.verdict << " (" << row.reason << ")";
     if (!row.error) continue;
     ++rows_per_error[*row.error];
     switch (*row.error) {
@@ -128,11 +130,28 @@ TEST(SelfTest, EveryDemoPlanPassesAndEveryErrorBeyondToleranceIsFlagged) {
         break;
     }
   }
+  // Only the demo plan with the deliberate +7 % MU error in beam 2 (README; tools/make_demo_plans)
+  // is flagged as it stands.
+  EXPECT_EQ(excluded, std::vector<std::string>{"fern_box_4field.dcm"});
   // Every kind of error was exercised on at least one demo beam.
   for (const InjectedError error : all_injected_errors) {
     EXPECT_GT(rows_per_error[error], 0) << to_code(error);
   }
   EXPECT_TRUE(report.passed());
+}
+
+TEST(SelfTest, TheDemoPlanWithADeliberateErrorFlagsExactlyThatBeam) {
+  const PlanCheck check = check_plan(demo_plan("fern_box_4field.dcm"), library(), CheckOptions{});
+  for (const BeamCheck& beam : check.beams) {
+    EXPECT_EQ(beam.status, beam.beam_number == 2 ? Status::outside_tolerance : Status::within_tolerance)
+        << beam.beam_number << ": " << beam.reason.sentence;
+  }
+  // The MU was raised by 7 % (tools/make_demo_plans), so the computed dose is about 7 % high.
+  const auto beam2 = std::find_if(check.beams.begin(), check.beams.end(),
+                                  [](const BeamCheck& b) { return b.beam_number == 2; });
+  ASSERT_NE(beam2, check.beams.end());
+  ASSERT_TRUE(beam2->deviation_percent);
+  EXPECT_NEAR(*beam2->deviation_percent, 7.0, 0.5);
 }
 
 TEST(SelfTestCli, PrintsATableAndExitsZero) {

@@ -3,7 +3,8 @@
 // The deliberate-error self-test: every treatment beam of every given plan is checked as it stands
 // and then with each injected error (error_injection.hpp). The check passes the self-test when each
 // unmodified plan is within tolerance and each injected error that takes a beam beyond its
-// tolerance is flagged (outside_tolerance or not_checked).
+// tolerance is flagged (outside_tolerance or not_checked). A plan flagged as it stands (such as the
+// demo plan with a deliberate MU error) is listed as excluded; its beams that pass still serve.
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/check_plan.hpp>
@@ -31,7 +32,8 @@ struct SelfTestRow {
   std::optional<double> expected_deviation_percent;  // from the baseline and a known ratio change
   bool must_flag = false;                            // the error takes the beam beyond its tolerance
   bool passed = false;
-  std::string verdict;  // one sentence: why passed or failed
+  bool excluded = false;  // an unmodified plan flagged as it stands: no baseline
+  std::string verdict;    // one sentence: why passed or failed
 };
 
 struct SelfTestReport {

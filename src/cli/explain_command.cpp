@@ -1,0 +1,126 @@
+// `countersign explain PLAN.dcm --beam N [--json]`: one beam in depth. The plan is checked exactly
+// as `check` does it; the beam's factors, geometry, both formalisms and what would reconcile the
+// two doses are then written out. The exit code is that beam's outcome (0, 1, 2; 3 for bad input).
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/check/check_plan.hpp>
+#include <countersign/cli/commands.hpp>
+#include <countersign/dicom/read_plan.hpp>
+#include <countersign/report/explain_report.hpp>
+
+#include <filesystem>
+#include <map>
+#include <memory>
+#include <optional>
+#include <ostream>
+#include <string>
+
+#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
+#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
+#endif
+
+namespace countersign::cli {
+
+namespace {
+
+struct ExplainCommandOptions {
+  std::string plan;
+  int beam = 0;
+  std::optional<int> fraction_group;
+  std::string beamdata;
+  std::string policy;
+  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
+  engine::DepthChoice depth = engine::DepthChoice::planned;
+  engine::SensitivityLimits limits;
+  bool json = false;
+};
+
+ExitCode beam_exit_code(check::Status status) {
+  switch (status) {
+    case check::Status::within_tolerance: return ExitCode::all_within_tolerance;
+    case check::Status::outside_tolerance: return ExitCode::outside_tolerance;
+    case check::Status::not_checked: return ExitCode::not_checked;
+    case check::Status::skipped: return ExitCode::all_within_tolerance;
+  }
+  return ExitCode::not_checked;
+}
+
+ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
+  check::CheckOptions check_options;
+  check_options.engine.method = options.method;
+  check_options.engine.depth = options.depth;
+  if (!options.policy.empty()) {
+    auto policy = check::load_policy(options.policy);
+    if (!policy) {
+      io.err << "countersign explain: " << policy.error().message() << "\n";
+      return ExitCode::bad_input;
+    }
+    check_options.policy = std::move(policy.value());
+  }
+  const std::filesystem::path library_dir =
+      options.beamdata.empty() ? std::filesystem::path(COUNTERSIGN_BUNDLED_BEAMDATA) : std::filesystem::path(options.beamdata);
+  auto library = beamdata::load_library(library_dir);
+  if (!library) {
+    io.err << "countersign explain: " << library.error().message() << "\n";
+    return ExitCode::bad_input;
+  }
+  auto plan = dicom::read_plan_file(options.plan);
+  if (!plan) {
+    io.err << plan.error().message() << "\n";
+    return ExitCode::bad_input;
+  }
+  const check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
+  const check::BeamCheck* beam = report::find_beam(result, options.beam, options.fraction_group);
+  if (beam == nullptr) {
+    io.err << options.plan << ": BeamNumber (300A,00C0): no beam " << options.beam
+           << (options.fraction_group ? " in fraction group " + std::to_string(*options.fraction_group) : std::string{})
+           << " is referenced by a fraction group of the plan\n";
+    return ExitCode::bad_input;
+  }
+  const report::BeamExplanation explanation = report::explain_beam(*beam, options.limits);
+  if (options.json) {
+    io.out << report::explanation_to_json(result, *beam, explanation).dump(2) << "\n";
+  } else {
+    io.out << report::explanation_text(result, *beam, explanation);
+  }
+  return beam_exit_code(beam->status);
+}
+
+}  // namespace
+
+void add_explain_command(CLI::App& app, CommandContext& context) {
+  auto options = std::make_shared<ExplainCommandOptions>();
+  auto* command = app.add_subcommand(
+      "explain",
+      "Explain one beam: every factor and where it came from in the tables, the geometry, the TMR and PDD "
+      "formalisms side by side, and the change of depth, SSD or field size that alone would reconcile the "
+      "independent dose with the planned dose. Exit code: the beam's outcome (0 within, 1 outside, 2 not "
+      "checked; 3 bad input).");
+  command->add_option("plan", options->plan, "RT Plan file")->required();
+  command->add_option("--beam", options->beam, "Beam Number (300A,00C0) of the beam to explain")->required();
+  command->add_option("--fraction-group", options->fraction_group,
+                      "Fraction Group Number (300A,0071) (default: the first that references the beam)");
+  command->add_option("--beamdata", options->beamdata,
+                      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in TG-114 based values)");
+  const std::map<std::string, engine::MethodChoice> methods{{"auto", engine::MethodChoice::by_setup_technique},
+                                                            {"tmr", engine::MethodChoice::tmr},
+                                                            {"pdd", engine::MethodChoice::pdd}};
+  command->add_option("--method", options->method, "formalism used for the verdict: auto (the default), tmr or pdd")
+      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
+  const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
+                                                          {"equivalent", engine::DepthChoice::equivalent}};
+  command->add_option("--depth", options->depth, "depth: planned (the default) or equivalent")
+      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
+  command->add_option("--search-depth-cm", options->limits.depth_cm, "how far the depth search goes each way (default 10)")
+      ->check(CLI::PositiveNumber);
+  command->add_option("--search-ssd-cm", options->limits.ssd_cm, "how far the SSD search goes each way (default 20)")
+      ->check(CLI::PositiveNumber);
+  command->add_option("--search-field-cm", options->limits.field_cm,
+                      "how far the field-size search goes each way (default 10)")
+      ->check(CLI::PositiveNumber);
+  command->add_flag("--json", options->json, "write JSON instead of text");
+  command->callback([options, &context] { context.exit_code = run_explain(*options, context.io); });
+}
+
+}  // namespace countersign::cli

@@ -1,0 +1,60 @@
+#include <countersign/report/explain_report.hpp>
+
+namespace countersign::report {
+
+namespace {
+
+// Parts the engine counted (a part outside the jaws of a modulated beam gets no calculation).
+bool delivers_dose(const engine::Segment& s) { return s.dose.dose_per_mu_cgy > 0.0; }
+
+FormalismDose with_method(const beamdata::BeamData& data, const std::vector<engine::DoseInputs>& parts,
+                          engine::Method method) {
+  FormalismDose result;
+  result.method = method;
+  for (std::size_t i = 0; i < parts.size(); ++i) {
+    engine::DoseInputs in = parts[i];
+    in.method = method;
+    engine::PointDose dose = engine::compute_point_dose(data, in);
+    result.dose_cgy += dose.dose_cgy;
+    if (i == 0) result.first_part = std::move(dose);
+  }
+  return result;
+}
+
+}  // namespace
+
+const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number, std::optional<int> fraction_group) {
+  for (const check::BeamCheck& b : check.beams) {
+    if (b.beam_number == beam_number && (!fraction_group || b.fraction_group_number == *fraction_group)) return &b;
+  }
+  return nullptr;
+}
+
+BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::SensitivityLimits& limits) {
+  BeamExplanation e;
+  if (!beam.calculation || !beam.calculation->dose_computed || beam.calculation->beam_data == nullptr) {
+    e.sensitivity_note = "no dose was computed for this beam";
+    return e;
+  }
+  const engine::BeamDose& c = *beam.calculation;
+  for (const engine::Segment& s : c.segments) {
+    if (delivers_dose(s)) e.parts.push_back(s.inputs);
+  }
+  if (e.parts.empty()) {
+    e.sensitivity_note = "no part of the beam delivers dose at the point";
+    return e;
+  }
+  e.tmr = with_method(*c.beam_data, e.parts, engine::Method::tmr);
+  e.pdd = with_method(*c.beam_data, e.parts, engine::Method::pdd);
+  if (e.tmr->dose_cgy > 0.0) e.formalism_difference_percent = 100.0 * (e.pdd->dose_cgy - e.tmr->dose_cgy) / e.tmr->dose_cgy;
+  if (!beam.planned_dose_gy) {
+    e.sensitivity_note = "the plan gives no Beam Dose (300A,0084) to reconcile with";
+  } else if (!(*beam.planned_dose_gy > 0.0)) {
+    e.sensitivity_note = "the planned Beam Dose (300A,0084) is not positive";
+  } else {
+    e.sensitivity = engine::reconcile(*c.beam_data, e.parts, *beam.planned_dose_gy * 100.0, limits);
+  }
+  return e;
+}
+
+}  // namespace countersign::report

@@ -1,0 +1,237 @@
+#include <countersign/report/explain_report.hpp>
+
+#include <countersign/geometry/patient_position.hpp>
+#include <countersign/report/factor_rows.hpp>
+#include <countersign/report/html_report.hpp>
+
+namespace countersign::report {
+
+namespace {
+
+using nlohmann::json;
+
+template <class T>
+json optional_json(const std::optional<T>& value) {
+  return value ? json(*value) : json(nullptr);
+}
+
+json point_json(const plan::PointMm& p) { return json::array({p[0], p[1], p[2]}); }
+
+json lookup_json(const beamdata::Lookup& lookup) {
+  json axes = json::array();
+  for (const beamdata::AxisBracket& a : lookup.axes) {
+    axes.push_back({{"axis", a.axis},
+                    {"query", a.query},
+                    {"lower_index", a.lower_index},
+                    {"upper_index", a.upper_index},
+                    {"lower_node", a.lower_node},
+                    {"upper_node", a.upper_node},
+                    {"lower_weight", 1.0 - a.upper_weight},
+                    {"upper_weight", a.upper_weight},
+                    {"extrapolated", a.extrapolated}});
+  }
+  return axes;
+}
+
+json factors_json(const engine::PointDose& dose) {
+  json out = json::array();
+  for (const FactorRow& row : factor_rows(dose)) {
+    const engine::Factor& f = *row.factor;
+    out.push_back({{"key", row.key},
+                   {"name", row.name},
+                   {"role", row.role},
+                   {"value", f.value},
+                   {"basis", engine::to_code(f.basis)},
+                   {"table_file", f.lookup ? json(f.lookup->table_file) : json(nullptr)},
+                   {"quantity", f.lookup ? json(f.lookup->quantity) : json(nullptr)},
+                   {"extrapolated", f.extrapolated()},
+                   {"axes", f.lookup ? lookup_json(*f.lookup) : json::array()}});
+  }
+  return out;
+}
+
+json fields_json(const engine::FieldSizes& s) {
+  return {{"collimator_cm", s.collimator_cm},
+          {"isocentre_cm", s.isocentre_cm},
+          {"surface_cm", s.surface_cm},
+          {"point_cm", s.point_cm},
+          {"normalisation_depth_cm", s.normalisation_depth_cm}};
+}
+
+json formalism_json(const FormalismDose& f) {
+  return {{"method", engine::to_code(f.method)},
+          {"dose_gy", f.dose_cgy / 100.0},
+          {"first_part_dose_per_mu_cgy", f.first_part.dose_per_mu_cgy},
+          {"first_part_factors", factors_json(f.first_part)}};
+}
+
+json geometry_json(const engine::BeamDose& c) {
+  json g;
+  g["patient_position"] = c.patient_position ? json(geometry::to_code(*c.patient_position)) : json(nullptr);
+  if (c.patient_position) {
+    const Eigen::Matrix3d m = geometry::patient_to_table_top(*c.patient_position);
+    g["patient_to_table_top"] = json::array({json::array({m(0, 0), m(0, 1), m(0, 2)}), json::array({m(1, 0), m(1, 1), m(1, 2)}),
+                                             json::array({m(2, 0), m(2, 1), m(2, 2)})});
+  } else {
+    g["patient_to_table_top"] = nullptr;
+  }
+  g["gantry_deg"] = c.angles.gantry_deg;
+  g["collimator_deg"] = c.angles.collimator_deg;
+  g["couch_deg"] = c.angles.couch_deg;
+  g["isocenter_mm"] = point_json(c.isocenter_mm);
+  g["sad_mm"] = c.sad_mm;
+  g["dose_point_mm"] = point_json(c.dose_point.point_mm);
+  g["dose_point_source"] = engine::to_code(c.dose_point.source);
+  g["dose_reference_number"] = optional_json(c.dose_point.dose_reference_number);
+  const auto& p = c.point.collimator_mm;
+  g["point_in_collimator_mm"] = json::array({p.x(), p.y(), p.z()});
+  g["spd_mm"] = c.point.spd_mm;
+  g["ray_length_mm"] = c.point.ray_length_mm;
+  g["ssd_mm"] = optional_json(c.ssd_mm);
+  g["depth_mm"] = c.depth.depth_mm;
+  g["depth_kind"] = engine::to_code(c.depth.kind);
+  g["depth_source"] = engine::to_code(c.depth.source);
+  g["depth_description"] = c.depth.description;
+  g["plan_depth_mm"] = optional_json(c.depth.plan_depth_mm);
+  g["plan_equivalent_depth_mm"] = optional_json(c.depth.plan_equivalent_depth_mm);
+  g["spd_minus_ssd_mm"] = optional_json(c.depth.spd_minus_ssd_mm);
+  g["iso_plane_x_mm"] = c.point.iso_plane_x_mm;
+  g["iso_plane_y_mm"] = c.point.iso_plane_y_mm;
+  g["off_axis_mm"] = c.point.off_axis_mm;
+  g["point_in_field"] = c.point_in_field;
+  g["edge_distance_mm"] = c.edge_distance_mm;
+  const auto& j = c.aperture.jaws();
+  g["jaws"] = {{"x1_mm", j.x1_mm}, {"x2_mm", j.x2_mm}, {"y1_mm", j.y1_mm}, {"y2_mm", j.y2_mm},
+               {"x_from_mlc_envelope", j.x_source == geometry::JawSource::mlc_envelope},
+               {"y_from_mlc_envelope", j.y_source == geometry::JawSource::mlc_envelope}};
+  g["aperture_area_cm2"] = c.aperture.area_mm2() / 100.0;
+  g["aperture_perimeter_cm"] = c.aperture.perimeter_mm() / 10.0;
+  g["shaped_by_mlc"] = c.aperture.shaped_by_mlc();
+  g["field_sizes"] = c.dose_computed ? fields_json(c.dose.fields) : json(nullptr);
+  return g;
+}
+
+json beam_data_json(const check::PlanCheck& check, const engine::BeamDose& c) {
+  json b = {{"library", check.beamdata_root}, {"sha256", check.beamdata_sha256}};
+  b["machine"] = c.machine != nullptr ? json(c.machine->name) : json(nullptr);
+  b["manifest"] = c.machine != nullptr ? json(c.machine->manifest.string()) : json(nullptr);
+  if (c.beam_data != nullptr) {
+    const beamdata::BeamData& d = *c.beam_data;
+    b["beam_id"] = d.id;
+    b["radiation"] = d.radiation;
+    b["energy_mv"] = d.energy_mv;
+    b["dmax_cm"] = d.dmax_cm;
+    b["pdd_ssd_cm"] = d.pdd_ssd_cm;
+    b["calibration"] = {{"output_cgy_per_mu", d.calibration.output_cgy_per_mu},
+                        {"field_cm", d.calibration.field_cm},
+                        {"ssd_cm", d.calibration.ssd_cm},
+                        {"depth_cm", d.calibration.depth_cm}};
+  }
+  return b;
+}
+
+json sensitivity_json(const BeamExplanation& e) {
+  if (!e.sensitivity) return {{"note", e.sensitivity_note}, {"changes", json::array()}, {"factor_needed", json::array()}};
+  const engine::Sensitivity& s = *e.sensitivity;
+  json changes = json::array();
+  for (const engine::Reconciliation& r : s.changes) {
+    changes.push_back({{"quantity", engine::to_code(r.quantity)},
+                       {"baseline_cm", r.baseline_cm},
+                       {"change_cm", optional_json(r.change_cm)},
+                       {"reconciled_cm", r.change_cm ? json(r.baseline_cm + *r.change_cm) : json(nullptr)},
+                       {"search_min_change_cm", r.search_min_change_cm},
+                       {"search_max_change_cm", r.search_max_change_cm},
+                       {"extrapolated", r.extrapolated},
+                       {"sentence", r.sentence}});
+  }
+  // If a single factor alone were wrong: the value it would need (the calculation is a product).
+  json needed = json::array();
+  const double ratio = s.baseline_dose_cgy > 0.0 ? s.target_dose_cgy / s.baseline_dose_cgy : 0.0;
+  if (ratio > 0.0 && e.tmr && e.pdd) {
+    const engine::PointDose& used = e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
+    for (const FactorRow& row : factor_rows(used)) {
+      const double value = row.factor->value;
+      needed.push_back({{"key", row.key}, {"value", value}, {"needed_value", row.role == "divides" ? value / ratio : value * ratio}});
+    }
+  }
+  return {{"target_dose_gy", s.target_dose_cgy / 100.0},
+          {"baseline_dose_gy", s.baseline_dose_cgy / 100.0},
+          {"planned_to_computed_ratio", ratio},
+          {"changes", changes},
+          {"factor_needed", needed},
+          {"note", e.sensitivity_note}};
+}
+
+json parts_json(const engine::BeamDose& c) {
+  json parts = json::array();
+  for (const engine::Segment& s : c.segments) {
+    parts.push_back({{"from_control_point", s.from_control_point},
+                     {"meterset_mu", s.meterset_mu},
+                     {"gantry_deg", s.angles.gantry_deg},
+                     {"collimator_deg", s.angles.collimator_deg},
+                     {"depth_mm", s.depth_mm},
+                     {"ssd_mm", s.ssd_mm},
+                     {"spd_mm", s.point.spd_mm},
+                     {"off_axis_mm", s.point.off_axis_mm},
+                     {"collimator_field_cm", s.inputs.collimator_field_cm},
+                     {"field_at_isocentre_cm", s.inputs.field_at_isocentre_cm},
+                     {"point_in_opening", s.point_in_opening},
+                     {"point_in_jaws", s.point_in_jaws},
+                     {"dose_cgy", s.dose.dose_cgy}});
+  }
+  return parts;
+}
+
+}  // namespace
+
+nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::BeamCheck& beam,
+                                   const BeamExplanation& e) {
+  json j;
+  j["source_file"] = check.source_file;
+  j["sop_instance_uid"] = check.sop_instance_uid;
+  j["patient_id"] = check.patient_id;
+  j["plan_label"] = check.plan_label;
+  j["beam"] = {{"number", beam.beam_number}, {"name", beam.beam_name}, {"fraction_group_number", beam.fraction_group_number}};
+  j["status"] = check::to_code(beam.status);
+  j["reason"] = {{"code", engine::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
+  j["meterset_mu"] = optional_json(beam.meterset_mu);
+  j["planned_dose_gy"] = optional_json(beam.planned_dose_gy);
+  j["computed_dose_gy"] = optional_json(beam.computed_dose_gy);
+  j["deviation_percent"] = optional_json(beam.deviation_percent);
+  j["tolerance_percent"] = optional_json(beam.tolerance_percent);
+  j["independent_mu"] = optional_json(beam.independent_mu);
+  j["category"] = beam.category ? json(check::to_code(*beam.category)) : json(nullptr);
+  j["medium"] = check::to_code(beam.medium);
+  j["tolerance_policy"] = check.options.policy.source;
+
+  const engine::BeamDose* c = beam.calculation ? &*beam.calculation : nullptr;
+  j["calculation_problem"] = c != nullptr && c->problem ? json({{"code", engine::reason_code(c->problem->reason)},
+                                                                {"sentence", c->problem->sentence}})
+                                                        : json(nullptr);
+  j["beam_data"] = c != nullptr ? beam_data_json(check, *c) : json(nullptr);
+  j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c) : json(nullptr);
+  if (c != nullptr && c->dose_computed) {
+    j["method"] = {{"used", engine::to_code(c->method)}, {"reason", c->method_reason}};
+    j["factors"] = factors_json(c->dose);
+    j["dose_per_mu_cgy"] = c->dose.dose_per_mu_cgy;
+    j["parts"] = parts_json(*c);
+  } else {
+    j["method"] = nullptr;
+    j["factors"] = json::array();
+    j["dose_per_mu_cgy"] = nullptr;
+    j["parts"] = json::array();
+  }
+  if (e.tmr && e.pdd) {
+    j["formalisms"] = {{"tmr", formalism_json(*e.tmr)},
+                       {"pdd", formalism_json(*e.pdd)},
+                       {"difference_percent", optional_json(e.formalism_difference_percent)}};
+  } else {
+    j["formalisms"] = nullptr;
+  }
+  j["sensitivity"] = sensitivity_json(e);
+  j["approximations"] = c != nullptr ? json(c->approximations) : json::array();
+  j["caution"] = caution_text();
+  return j;
+}
+
+}  // namespace countersign::report

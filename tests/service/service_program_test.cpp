@@ -1,0 +1,312 @@
+// The services end to end, through the built `countersign` program and the real checking pipeline
+// (strict reader, engine, bundled beam data), on the invented demo plans in testdata/plans. DCMTK's
+// storescu is the sending peer; SIGTERM and SIGKILL are real signals to a real process.
+
+#include <countersign/service/history.hpp>
+
+#include "service/dicom_plans.hpp"
+#include "support/paths.hpp"
+
+#include <arpa/inet.h>
+#include <fcntl.h>
+#include <gtest/gtest.h>
+#include <netinet/in.h>
+#include <signal.h>
+#include <spawn.h>
+#include <sys/socket.h>
+#include <sys/stat.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <fstream>
+#include <functional>
+#include <map>
+#include <sstream>
+#include <thread>
+#include <vector>
+
+extern char** environ;
+
+namespace countersign::service {
+namespace {
+
+namespace fs = std::filesystem;
+using namespace std::chrono_literals;
+
+std::string slurp(const fs::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+bool wait_until(const std::function<bool()>& condition, std::chrono::milliseconds timeout) {
+  const auto deadline = std::chrono::steady_clock::now() + timeout;
+  while (std::chrono::steady_clock::now() < deadline) {
+    if (condition()) return true;
+    std::this_thread::sleep_for(20ms);
+  }
+  return condition();
+}
+
+std::size_t count_suffix(const fs::path& dir, const std::string& suffix) {
+  std::size_t n = 0;
+  std::error_code ec;
+  for (const auto& entry : fs::directory_iterator{dir, ec}) {
+    const std::string name = entry.path().filename().string();
+    if (name.front() != '.' && name.size() >= suffix.size() &&
+        name.compare(name.size() - suffix.size(), suffix.size(), suffix) == 0) {
+      ++n;
+    }
+  }
+  return n;
+}
+
+std::vector<fs::path> demo_plans() {
+  std::vector<fs::path> plans;
+  for (const auto& entry : fs::directory_iterator{test::source_dir() / "testdata" / "plans"}) {
+    if (entry.path().extension() == ".dcm") plans.push_back(entry.path());
+  }
+  std::sort(plans.begin(), plans.end());
+  return plans;
+}
+
+// The demo plan `source` under a new SOP Instance UID, so that many distinct plans can be made.
+std::string copy_with_new_uid(const fs::path& source, const fs::path& target) {
+  DcmFileFormat format;
+  if (format.loadFile(source.c_str()).bad()) return {};
+  const std::string uid = test::new_dicom_uid();
+  format.getDataset()->putAndInsertString(DCM_SOPInstanceUID, uid.c_str());
+  format.getMetaInfo()->putAndInsertString(DCM_MediaStorageSOPInstanceUID, uid.c_str());
+  return format.saveFile(target.c_str(), EXS_LittleEndianExplicit).good() ? uid : std::string{};
+}
+
+// A running `countersign` with its output going to a file.
+class Program {
+ public:
+  Program(const std::vector<std::string>& arguments, const fs::path& output) {
+    std::vector<std::string> all{test::program().string()};
+    all.insert(all.end(), arguments.begin(), arguments.end());
+    std::vector<char*> argv;
+    for (auto& a : all) argv.push_back(a.data());
+    argv.push_back(nullptr);
+    posix_spawn_file_actions_t actions;
+    posix_spawn_file_actions_init(&actions);
+    posix_spawn_file_actions_addopen(&actions, STDOUT_FILENO, output.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0600);
+    posix_spawn_file_actions_adddup2(&actions, STDOUT_FILENO, STDERR_FILENO);
+    if (::posix_spawn(&pid_, argv[0], &actions, nullptr, argv.data(), environ) != 0) pid_ = -1;
+    posix_spawn_file_actions_destroy(&actions);
+  }
+  Program(const Program&) = delete;
+  Program& operator=(const Program&) = delete;
+  ~Program() {
+    if (pid_ > 0) {
+      ::kill(pid_, SIGKILL);
+      ::waitpid(pid_, nullptr, 0);
+    }
+  }
+  [[nodiscard]] bool running() const { return pid_ > 0; }
+  void signal(int number) const { ::kill(pid_, number); }
+  // The wait status.
+  int wait() {
+    int status = 0;
+    ::waitpid(pid_, &status, 0);
+    pid_ = -1;
+    return status;
+  }
+
+ private:
+  pid_t pid_ = -1;
+};
+
+std::uint16_t free_port() {
+  const int fd = ::socket(AF_INET, SOCK_STREAM, 0);
+  sockaddr_in address{};
+  address.sin_family = AF_INET;
+  address.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+  ::bind(fd, reinterpret_cast<const sockaddr*>(&address), sizeof address);
+  socklen_t length = sizeof address;
+  ::getsockname(fd, reinterpret_cast<sockaddr*>(&address), &length);
+  ::close(fd);
+  return ntohs(address.sin_port);
+}
+
+std::size_t recorded(const fs::path& results) {
+  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  if (!history) return 0;
+  auto all = history->list(HistoryFilter{});
+  return all ? all->size() : 0;
+}
+
+class ServiceProgramTest : public ::testing::Test {
+ protected:
+  void SetUp() override { dir_ = test::make_temp_dir("countersign-program"); }
+  void TearDown() override { fs::remove_all(dir_); }
+  fs::path dir_;
+};
+
+TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
+  const auto plans = demo_plans();
+  ASSERT_FALSE(plans.empty());
+  fs::create_directories(dir_ / "inbox");
+  for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
+  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ct_sop_class.dcm", dir_ / "inbox" / "ct.dcm");
+  const fs::path results = dir_ / "results";
+
+  const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
+                                     test::quote((dir_ / "inbox").string()) + " --out " + test::quote(results.string()) +
+                                     " --once --settle-seconds 0.2");
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  EXPECT_EQ(count_suffix(results, ".json"), plans.size()) << run.out;
+  EXPECT_EQ(count_suffix(results, ".html"), plans.size());
+  EXPECT_EQ(count_suffix(dir_ / "inbox", ".dcm"), 0U);
+  EXPECT_EQ(recorded(results), plans.size());
+  // One log line per plan.
+  std::size_t checked_lines = 0;
+  std::istringstream lines{run.out};
+  for (std::string line; std::getline(lines, line);) checked_lines += line.find(" checked ") != std::string::npos;
+  EXPECT_EQ(checked_lines, plans.size()) << run.out;
+
+  // The CT object is quarantined with a reason naming the attribute and its tag.
+  ASSERT_TRUE(fs::exists(results / "quarantine" / "ct.dcm"));
+  const std::string reason = slurp(results / "quarantine" / "ct.dcm.reason.txt");
+  EXPECT_NE(reason.find("(0008,0016)"), std::string::npos) << reason;
+
+  // Each result is the document `countersign check --json` prints for that plan.
+  for (const auto& plan : plans) {
+    const auto checked = test::run_command(test::quote(test::program().string()) + " check --json " +
+                                           test::quote(plan.string()));
+    const auto uid_at = checked.out.find("\"sop_instance_uid\": \"");
+    ASSERT_NE(uid_at, std::string::npos) << checked.out;
+    const auto uid_begin = uid_at + std::string{"\"sop_instance_uid\": \""}.size();
+    const std::string uid = checked.out.substr(uid_begin, checked.out.find('"', uid_begin) - uid_begin);
+    const std::string written = slurp(results / (uid + ".json"));
+    ASSERT_FALSE(written.empty()) << uid;
+    const auto status_of = [](const std::string& json) {
+      const auto at = json.rfind("\"exit_code\": ");
+      return at == std::string::npos ? std::string{} : json.substr(at, 16);
+    };
+    EXPECT_EQ(status_of(written), status_of(checked.out)) << plan;
+  }
+
+  // Results and history are private (patient data).
+  struct stat info {};
+  ASSERT_EQ(::stat(results.c_str(), &info), 0);
+  EXPECT_EQ(info.st_mode & 0777, 0750U);
+  ASSERT_EQ(::stat((results / "history.sqlite").c_str(), &info), 0);
+  EXPECT_EQ(info.st_mode & 0777, 0640U);
+
+  // The history command lists them and prints trends per machine, energy and technique.
+  const auto history = test::run_command(test::quote(test::program().string()) + " history --results " +
+                                         test::quote(results.string()));
+  EXPECT_EQ(history.exit_code, 0) << history.err;
+  EXPECT_NE(history.out.find("FERN-LINAC-1"), std::string::npos) << history.out;
+  EXPECT_NE(history.out.find(std::to_string(plans.size()) + " check(s) match"), std::string::npos) << history.out;
+
+  // A second run over the same files (copied in again) checks nothing twice.
+  for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
+  const auto again = test::run_command(test::quote(test::program().string()) + " watch " +
+                                       test::quote((dir_ / "inbox").string()) + " --out " +
+                                       test::quote(results.string()) + " --once");
+  ASSERT_EQ(again.exit_code, 0) << again.out << again.err;
+  EXPECT_EQ(recorded(results), plans.size());
+  EXPECT_NE(again.out.find("0 checked, " + std::to_string(plans.size()) + " already checked"), std::string::npos)
+      << again.out;
+}
+
+TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNothing) {
+  const auto plans = demo_plans();
+  ASSERT_FALSE(plans.empty());
+  fs::create_directories(dir_ / "inbox");
+  fs::create_directories(dir_ / "staging");
+  constexpr int total = 150;
+  std::vector<std::string> uids;
+  for (int i = 0; i < total; ++i) {
+    uids.push_back(copy_with_new_uid(plans[static_cast<std::size_t>(i) % plans.size()],
+                                     dir_ / "staging" / ("RP" + std::to_string(i) + ".dcm")));
+    ASSERT_FALSE(uids.back().empty());
+  }
+  const fs::path results = dir_ / "results";
+  const std::vector<std::string> arguments{"watch", (dir_ / "inbox").string(), "--out", results.string()};
+  int moved = 0;
+  const auto deliver = [&](int up_to) {  // each file arrives whole (rename), as an export would
+    for (; moved < up_to; ++moved) {
+      fs::rename(dir_ / "staging" / ("RP" + std::to_string(moved) + ".dcm"),
+                 dir_ / "inbox" / ("RP" + std::to_string(moved) + ".dcm"));
+    }
+  };
+
+  {  // SIGKILL in the middle of the stream.
+    Program watcher{arguments, dir_ / "run1.log"};
+    ASSERT_TRUE(watcher.running());
+    deliver(60);
+    ASSERT_TRUE(wait_until([&] { return count_suffix(results, ".json") >= 20; }, 60s)) << slurp(dir_ / "run1.log");
+    deliver(100);  // still arriving
+    watcher.signal(SIGKILL);
+    const int status = watcher.wait();
+    EXPECT_TRUE(WIFSIGNALED(status));
+  }
+  deliver(total);  // and more while it is down
+
+  {  // Restart; SIGTERM once everything is done.
+    Program watcher{arguments, dir_ / "run2.log"};
+    ASSERT_TRUE(watcher.running());
+    ASSERT_TRUE(wait_until([&] { return count_suffix(dir_ / "inbox", ".dcm") == 0 && recorded(results) == total; },
+                           120s))
+        << slurp(dir_ / "run2.log");
+    watcher.signal(SIGTERM);
+    const int status = watcher.wait();
+    ASSERT_TRUE(WIFEXITED(status)) << slurp(dir_ / "run2.log");
+    EXPECT_EQ(WEXITSTATUS(status), 0);
+    EXPECT_NE(slurp(dir_ / "run2.log").find("stopped on signal 15"), std::string::npos) << slurp(dir_ / "run2.log");
+  }
+
+  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  ASSERT_TRUE(history);
+  auto records = history->list(HistoryFilter{});
+  ASSERT_TRUE(records);
+  std::map<std::string, int> per_uid;
+  for (const auto& record : *records) ++per_uid[record.sop_instance_uid];
+  EXPECT_EQ(records->size(), static_cast<std::size_t>(total));
+  for (const auto& uid : uids) EXPECT_EQ(per_uid[uid], 1) << uid;
+  EXPECT_EQ(count_suffix(results, ".json"), static_cast<std::size_t>(total));
+  EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U);
+}
+
+TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrangers) {
+  if (test::run_command("command -v storescu").exit_code != 0) GTEST_SKIP() << "DCMTK's storescu not installed";
+  const auto plans = demo_plans();
+  ASSERT_FALSE(plans.empty());
+  const fs::path results = dir_ / "results";
+  const std::uint16_t port = free_port();
+  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae", "FERN-TPS",
+                    "--out", results.string()},
+                   dir_ / "receive.log"};
+  ASSERT_TRUE(receiver.running());
+  ASSERT_TRUE(wait_until([&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; },
+                         20s))
+      << slurp(dir_ / "receive.log");
+
+  const std::string send = "storescu -to 10 -aec FERN-CHECK ";
+  const auto sent = test::run_command(send + "-aet FERN-TPS 127.0.0.1 " + std::to_string(port) + " " +
+                                      test::quote(plans.front().string()));
+  EXPECT_EQ(sent.exit_code, 0) << sent.err;
+  const auto stranger = test::run_command(send + "-aet UNKNOWN-AE 127.0.0.1 " + std::to_string(port) + " " +
+                                          test::quote(plans.back().string()));
+  EXPECT_NE(stranger.exit_code, 0);
+  ASSERT_TRUE(wait_until([&] { return recorded(results) == 1; }, 20s)) << slurp(dir_ / "receive.log");
+  EXPECT_EQ(count_suffix(results, ".json"), 1U);
+
+  receiver.signal(SIGTERM);
+  const int status = receiver.wait();
+  ASSERT_TRUE(WIFEXITED(status)) << slurp(dir_ / "receive.log");
+  EXPECT_EQ(WEXITSTATUS(status), 0);
+  const std::string log = slurp(dir_ / "receive.log");
+  EXPECT_NE(log.find("refused association from AE \"UNKNOWN-AE\""), std::string::npos) << log;
+  EXPECT_NE(log.find("receiver stopped"), std::string::npos) << log;
+}
+
+}  // namespace
+}  // namespace countersign::service
