@@ -12,20 +12,27 @@ using engine::Reason;
 
 std::string_view to_code(Status status) {
   switch (status) {
-    case Status::within_tolerance: return "within_tolerance";
-    case Status::outside_tolerance: return "outside_tolerance";
-    case Status::not_checked: return "not_checked";
-    case Status::skipped: return "skipped";
+    case Status::within_tolerance:
+      return "within_tolerance";
+    case Status::outside_tolerance:
+      return "outside_tolerance";
+    case Status::not_checked:
+      return "not_checked";
+    case Status::skipped:
+      return "skipped";
   }
   return "unknown";
 }
 
 ExitCode PlanCheck::exit_code() const {
   switch (status) {
-    case Status::within_tolerance: return ExitCode::all_within_tolerance;
-    case Status::outside_tolerance: return ExitCode::outside_tolerance;
+    case Status::within_tolerance:
+      return ExitCode::all_within_tolerance;
+    case Status::outside_tolerance:
+      return ExitCode::outside_tolerance;
     case Status::not_checked:
-    case Status::skipped: return ExitCode::not_checked;
+    case Status::skipped:
+      return ExitCode::not_checked;
   }
   return ExitCode::not_checked;
 }
@@ -51,7 +58,8 @@ std::string describe_extrapolation(const engine::Factor& factor) {
     if (!where.empty()) where += " and ";
     where += fmt::format("{} {:.2f}", axis.axis, axis.query);
   }
-  return fmt::format("{} from {} looked up outside the table ({})", lookup.quantity, lookup.table_file, where);
+  return fmt::format("{} from {} looked up outside the table ({})", lookup.quantity, lookup.table_file,
+                     where);
 }
 
 FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& policy) {
@@ -59,7 +67,8 @@ FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& polic
   const bool off_axis = c.point.off_axis_mm > policy.simple_max_off_axis_cm * 10.0;
   const bool asymmetric = c.features.jaw_centre_offset_mm > policy.simple_max_jaw_offset_cm * 10.0;
   const bool shaped = c.features.open_to_jaw_area_ratio < policy.simple_min_open_fraction;
-  return (off_axis || asymmetric || shaped || c.features.blocks) ? FieldCategory::complex : FieldCategory::simple;
+  return (off_axis || asymmetric || shaped || c.features.blocks) ? FieldCategory::complex
+                                                                 : FieldCategory::simple;
 }
 
 Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
@@ -68,7 +77,7 @@ Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (!geometric || !equivalent || *geometric <= 0.0) return Medium::homogeneous;
   const double difference_percent = 100.0 * std::abs(*equivalent - *geometric) / *geometric;
   return difference_percent > policy.heterogeneous_depth_difference_percent ? Medium::heterogeneous
-                                                                             : Medium::homogeneous;
+                                                                            : Medium::homogeneous;
 }
 
 // Conditions that keep a computed beam from a verdict; the first found, or nullopt.
@@ -78,24 +87,29 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
   }
   if (!c.features.modulated) {
     if (!c.point_in_field) {
-      return Finding{Reason::point_outside_field,
-                     fmt::format("the dose point ({:.1f}, {:.1f}) mm at the isocentre plane is outside the field opening",
-                                 c.point.iso_plane_x_mm, c.point.iso_plane_y_mm)};
+      return Finding{
+          Reason::point_outside_field,
+          fmt::format(
+              "the dose point ({:.1f}, {:.1f}) mm at the isocentre plane is outside the field opening",
+              c.point.iso_plane_x_mm, c.point.iso_plane_y_mm)};
     }
     if (c.edge_distance_mm < policy.min_edge_distance_cm * 10.0) {
-      return Finding{Reason::point_near_field_edge,
-                     fmt::format("the dose point is {:.1f} mm from the nearest field edge (policy minimum {:.1f} mm)",
-                                 c.edge_distance_mm, policy.min_edge_distance_cm * 10.0)};
+      return Finding{
+          Reason::point_near_field_edge,
+          fmt::format("the dose point is {:.1f} mm from the nearest field edge (policy minimum {:.1f} mm)",
+                      c.edge_distance_mm, policy.min_edge_distance_cm * 10.0)};
     }
   } else if (std::none_of(c.segments.begin(), c.segments.end(),
                           [](const engine::Segment& s) { return s.point_in_opening; })) {
-    return Finding{Reason::point_outside_field, "the dose point is under the leaves or jaws in every segment"};
+    return Finding{Reason::point_outside_field,
+                   "the dose point is under the leaves or jaws in every segment"};
   }
   if (c.features.wedged && c.point.off_axis_mm > policy.wedge_max_off_axis_cm * 10.0) {
-    return Finding{Reason::unsupported_geometry,
-                   fmt::format("wedged field with the point {:.1f} cm off axis: the open-field OAR does not apply "
-                               "(policy limit {:.1f} cm)",
-                               c.point.off_axis_mm / 10.0, policy.wedge_max_off_axis_cm)};
+    return Finding{
+        Reason::unsupported_geometry,
+        fmt::format("wedged field with the point {:.1f} cm off axis: the open-field OAR does not apply "
+                    "(policy limit {:.1f} cm)",
+                    c.point.off_axis_mm / 10.0, policy.wedge_max_off_axis_cm)};
   }
   const bool plan_depth_used = c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&
@@ -104,11 +118,12 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
       c.point.off_axis_mm <= policy.depth_check_max_off_axis_cm * 10.0) {
     const double discrepancy_mm = c.depth.depth_mm - *c.depth.spd_minus_ssd_mm;
     if (std::abs(discrepancy_mm) > policy.max_depth_discrepancy_cm * 10.0) {
-      return Finding{Reason::inconsistent_depth,
-                     fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
-                                 "{:.1f} mm): check the SSD and the dose point",
-                                 c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
-                                 policy.max_depth_discrepancy_cm * 10.0)};
+      return Finding{
+          Reason::inconsistent_depth,
+          fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
+                      "{:.1f} mm): check the SSD and the dose point",
+                      c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
+                      policy.max_depth_discrepancy_cm * 10.0)};
     }
   }
   return std::nullopt;
@@ -128,7 +143,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   beam.medium = medium_of(c, policy);
   beam.tolerance_percent = policy.tolerance_percent(*beam.category, beam.medium);
   if (!beam.planned_dose_gy || !(*beam.planned_dose_gy > 0.0)) {
-    set_not_checked(beam, Reason::no_planned_dose, "the plan gives no positive Beam Dose (300A,0084) for this beam");
+    set_not_checked(beam, Reason::no_planned_dose,
+                    "the plan gives no positive Beam Dose (300A,0084) for this beam");
     return;
   }
   const double planned = *beam.planned_dose_gy;
@@ -154,10 +170,11 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     const double of_total = 100.0 * (computed - planned) / total;
     if (share < policy.small_share_fraction && std::abs(of_total) <= tolerance) {
       beam.status = Status::within_tolerance;
-      beam.reason = {Reason::deviation_within_tolerance_of_point_total,
-                     fmt::format("deviation {:+.2f} % of this beam's dose, but the beam gives {:.0f} % of the point's "
-                                 "planned {:.3f} Gy and the difference is {:+.2f} % of that total, within {:.1f} %",
-                                 deviation, 100.0 * share, total, of_total, tolerance)};
+      beam.reason = {
+          Reason::deviation_within_tolerance_of_point_total,
+          fmt::format("deviation {:+.2f} % of this beam's dose, but the beam gives {:.0f} % of the point's "
+                      "planned {:.3f} Gy and the difference is {:+.2f} % of that total, within {:.1f} %",
+                      deviation, 100.0 * share, total, of_total, tolerance)};
       return;
     }
   }
@@ -170,11 +187,13 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
 namespace {
 
 bool is_treatment(const plan::Beam& beam) {
-  return beam.delivery_type.empty() || beam.delivery_type == "TREATMENT" || beam.delivery_type == "CONTINUATION";
+  return beam.delivery_type.empty() || beam.delivery_type == "TREATMENT" ||
+         beam.delivery_type == "CONTINUATION";
 }
 
-BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& group, const plan::ReferencedBeam& rb,
-                         const beamdata::Library& library, const CheckOptions& options) {
+BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& group,
+                         const plan::ReferencedBeam& rb, const beamdata::Library& library,
+                         const CheckOptions& options) {
   BeamCheck out;
   out.fraction_group_number = group.number;
   out.beam_number = rb.beam_number;
@@ -182,15 +201,17 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
   out.planned_dose_gy = rb.dose_gy;
   const plan::Beam* beam = plan.beam(rb.beam_number);
   if (beam == nullptr) {
-    set_not_checked(out, Reason::missing_plan_data,
-                    fmt::format("Referenced Beam Number (300C,0006) {} names no beam of the plan", rb.beam_number));
+    set_not_checked(
+        out, Reason::missing_plan_data,
+        fmt::format("Referenced Beam Number (300C,0006) {} names no beam of the plan", rb.beam_number));
     return out;
   }
   out.beam_name = beam->name;
   if (!is_treatment(*beam)) {
     out.status = Status::skipped;
-    out.reason = {Reason::setup_beam,
-                  fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged", beam->delivery_type)};
+    out.reason = {
+        Reason::setup_beam,
+        fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged", beam->delivery_type)};
     return out;
   }
   if (!rb.meterset_mu || !(*rb.meterset_mu > 0.0)) {
@@ -200,9 +221,10 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
   }
   const std::optional<engine::DosePoint> point = engine::select_dose_point(plan, *beam, rb);
   if (!point) {
-    set_not_checked(out, Reason::no_dose_point,
-                    "no Beam Dose Specification Point (300A,0082), no dose reference with a final coefficient of 1 "
-                    "for this beam, and not exactly one dose reference with coordinates");
+    set_not_checked(
+        out, Reason::no_dose_point,
+        "no Beam Dose Specification Point (300A,0082), no dose reference with a final coefficient of 1 "
+        "for this beam, and not exactly one dose reference with coordinates");
     return out;
   }
   out.calculation = engine::compute_beam_dose(plan, *beam, rb, *point, library, options.engine);
@@ -233,8 +255,9 @@ void judge_plan(PlanCheck& check) {
                     fmt::format("all {} judged beam(s) within tolerance", within)};
   } else {
     check.status = Status::not_checked;
-    check.reason = {Reason::nothing_to_check, check.beams.empty() ? "the plan has no fraction group with beams"
-                                                                  : "no beam of the plan could be judged"};
+    check.reason = {Reason::nothing_to_check, check.beams.empty()
+                                                  ? "the plan has no fraction group with beams"
+                                                  : "no beam of the plan could be judged"};
   }
 }
 
@@ -246,8 +269,8 @@ std::optional<double> final_coefficient(const plan::Beam& beam, int reference_nu
   return std::nullopt;
 }
 
-void total_dose_references(const plan::Plan& plan, const beamdata::Library& library, const CheckOptions& options,
-                           PlanCheck& check) {
+void total_dose_references(const plan::Plan& plan, const beamdata::Library& library,
+                           const CheckOptions& options, PlanCheck& check) {
   for (const plan::FractionGroup& group : plan.fraction_groups) {
     for (const plan::DoseReference& ref : plan.dose_references) {
       DoseReferenceCheck total;
@@ -271,8 +294,8 @@ void total_dose_references(const plan::Plan& plan, const beamdata::Library& libr
         } else {
           // Reuse the beam's own calculation when its dose point is this reference's point.
           const auto own = std::find_if(check.beams.begin(), check.beams.end(), [&](const BeamCheck& b) {
-            return b.fraction_group_number == group.number && b.beam_number == rb.beam_number && b.calculation &&
-                   same_point(b.calculation->dose_point.point_mm, *ref.point_mm);
+            return b.fraction_group_number == group.number && b.beam_number == rb.beam_number &&
+                   b.calculation && same_point(b.calculation->dose_point.point_mm, *ref.point_mm);
           });
           std::optional<engine::BeamDose> fresh;
           if (own == check.beams.end()) {
@@ -331,9 +354,10 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
       if (beam.calculation && !beam_level) {
         judge_beam(beam, options.policy);
         if (!beam.calculation->problem) {
-          set_not_checked(beam, Reason::planned_dose_not_beam_level,
-                          "Beam Dose Meaning (300A,008B) is FRACTION_LEVEL: the plan's beam dose is not this beam's own "
-                          "dose; see the dose reference totals");
+          set_not_checked(
+              beam, Reason::planned_dose_not_beam_level,
+              "Beam Dose Meaning (300A,008B) is FRACTION_LEVEL: the plan's beam dose is not this beam's own "
+              "dose; see the dose reference totals");
         }
       }
       check.beams.push_back(std::move(beam));
@@ -341,13 +365,17 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   }
   // A beam is pending when it has a calculation and no verdict yet (check_one_beam leaves the
   // sentence empty then).
-  const auto pending = [](const BeamCheck& b) { return b.calculation.has_value() && b.reason.sentence.empty(); };
+  const auto pending = [](const BeamCheck& b) {
+    return b.calculation.has_value() && b.reason.sentence.empty();
+  };
   // The planned dose at each beam's point from all beams of its fraction group aimed at the same point.
   for (BeamCheck& beam : check.beams) {
     if (!pending(beam)) continue;
     double total = 0.0;
     for (const BeamCheck& other : check.beams) {
-      if (other.fraction_group_number != beam.fraction_group_number || !other.calculation || !other.planned_dose_gy) continue;
+      if (other.fraction_group_number != beam.fraction_group_number || !other.calculation ||
+          !other.planned_dose_gy)
+        continue;
       if (same_point(other.calculation->dose_point.point_mm, beam.calculation->dose_point.point_mm)) {
         total += *other.planned_dose_gy;
       }

@@ -75,9 +75,13 @@ void judge_row(SelfTestRow& row, const BeamCheck& baseline, const BeamCheck& mod
     // The size depends on beam data and geometry: it must be flagged unless the recomputed dose
     // shows it stays within the beam's tolerance (or, for a small contributor, the point total's).
     row.must_flag = !(modified.status == Status::within_tolerance && modified.deviation_percent);
-    if (!row.must_flag &&
-        modified.reason.reason == engine::Reason::deviation_within_tolerance_of_point_total) {
-      rule_note = " (a small contributor, judged against its point's total dose by the policy)";
+    if (!row.must_flag && baseline.deviation_percent) {
+      rule_note =
+          fmt::format(" (it moves the computed-to-planned ratio by {:+.2f} %{})",
+                      *modified.deviation_percent - *baseline.deviation_percent,
+                      modified.reason.reason == engine::Reason::deviation_within_tolerance_of_point_total
+                          ? "; a small contributor, judged against its point's total dose by the policy"
+                          : "");
     }
   }
   const bool is_flagged = flagged(modified.status);

@@ -10,21 +10,29 @@ namespace countersign::check {
 
 std::string_view to_code(FieldCategory category) {
   switch (category) {
-    case FieldCategory::simple: return "simple";
-    case FieldCategory::complex: return "complex";
-    case FieldCategory::modulated: return "modulated";
+    case FieldCategory::simple:
+      return "simple";
+    case FieldCategory::complex:
+      return "complex";
+    case FieldCategory::modulated:
+      return "modulated";
   }
   return "unknown";
 }
 
-std::string_view to_code(Medium medium) { return medium == Medium::homogeneous ? "homogeneous" : "heterogeneous"; }
+std::string_view to_code(Medium medium) {
+  return medium == Medium::homogeneous ? "homogeneous" : "heterogeneous";
+}
 
 double TolerancePolicy::tolerance_percent(FieldCategory category, Medium medium) const {
   const bool het = medium == Medium::heterogeneous;
   switch (category) {
-    case FieldCategory::simple: return het ? simple_heterogeneous_percent : simple_percent;
-    case FieldCategory::complex: return het ? complex_heterogeneous_percent : complex_percent;
-    case FieldCategory::modulated: return het ? modulated_heterogeneous_percent : modulated_percent;
+    case FieldCategory::simple:
+      return het ? simple_heterogeneous_percent : simple_percent;
+    case FieldCategory::complex:
+      return het ? complex_heterogeneous_percent : complex_percent;
+    case FieldCategory::modulated:
+      return het ? modulated_heterogeneous_percent : modulated_percent;
   }
   return simple_percent;
 }
@@ -46,8 +54,10 @@ const std::map<std::string, Key>& keys() {
       {"tolerance_percent.complex", {&TolerancePolicy::complex_percent, 0.1, 20.0}},
       {"tolerance_percent.modulated", {&TolerancePolicy::modulated_percent, 0.1, 20.0}},
       {"tolerance_percent.heterogeneous.simple", {&TolerancePolicy::simple_heterogeneous_percent, 0.1, 20.0}},
-      {"tolerance_percent.heterogeneous.complex", {&TolerancePolicy::complex_heterogeneous_percent, 0.1, 20.0}},
-      {"tolerance_percent.heterogeneous.modulated", {&TolerancePolicy::modulated_heterogeneous_percent, 0.1, 20.0}},
+      {"tolerance_percent.heterogeneous.complex",
+       {&TolerancePolicy::complex_heterogeneous_percent, 0.1, 20.0}},
+      {"tolerance_percent.heterogeneous.modulated",
+       {&TolerancePolicy::modulated_heterogeneous_percent, 0.1, 20.0}},
       {"category.simple_max_off_axis_cm", {&TolerancePolicy::simple_max_off_axis_cm, 0.0, 30.0}},
       {"category.simple_max_jaw_offset_cm", {&TolerancePolicy::simple_max_jaw_offset_cm, 0.0, 30.0}},
       {"category.simple_min_open_fraction", {&TolerancePolicy::simple_min_open_fraction, 0.0, 1.0}},
@@ -67,8 +77,8 @@ Error config_error(const std::filesystem::path& file, const std::string& key, co
 }
 
 // Walks the table, assigning known keys; the first problem is returned.
-std::optional<Error> apply(const toml::table& table, const std::string& prefix, const std::filesystem::path& file,
-                           TolerancePolicy& policy) {
+std::optional<Error> apply(const toml::table& table, const std::string& prefix,
+                           const std::filesystem::path& file, TolerancePolicy& policy) {
   for (const auto& [name, node] : table) {
     const std::string key = prefix.empty() ? std::string(name.str()) : prefix + "." + std::string(name.str());
     if (const toml::table* sub = node.as_table()) {
@@ -81,8 +91,8 @@ std::optional<Error> apply(const toml::table& table, const std::string& prefix, 
     if (!value || !std::isfinite(*value)) return config_error(file, key, "not a number");
     if (*value < it->second.min || *value > it->second.max) {
       return config_error(file, key,
-                          "value " + std::to_string(*value) + " outside [" + std::to_string(it->second.min) + ", " +
-                              std::to_string(it->second.max) + "]");
+                          "value " + std::to_string(*value) + " outside [" + std::to_string(it->second.min) +
+                              ", " + std::to_string(it->second.max) + "]");
     }
     policy.*(it->second.member) = *value;
   }

@@ -9,12 +9,14 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/check_text.hpp>
+#include <countersign/report/html_pdf.hpp>
 #include <countersign/report/html_report.hpp>
 
 #include <algorithm>
 #include <filesystem>
 #include <map>
 #include <memory>
+#include <optional>
 #include <ostream>
 #include <string>
 #include <vector>
@@ -36,7 +38,17 @@ struct CheckCommandOptions {
   engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
   engine::DepthChoice depth = engine::DepthChoice::planned;
   bool json = false;
+  std::string html;  // --html FILE: the printable record
+  std::string pdf;   // --pdf FILE: the same record as PDF (needs Chromium)
 };
+
+// The record's file for one plan: FILE itself for a single plan, FILE's stem plus the plan's stem
+// when several plans are checked in one run.
+fs::path record_file(const std::string& requested, const fs::path& plan_file, std::size_t plan_count) {
+  if (plan_count <= 1) return requested;
+  const fs::path r(requested);
+  return r.parent_path() / (r.stem().string() + "-" + plan_file.stem().string() + r.extension().string());
+}
 
 // The files named, folders expanded to their .dcm files (sorted, so the output order is stable).
 std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
@@ -69,11 +81,22 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     check_options.policy = std::move(policy.value());
   }
-  const fs::path library_dir = options.beamdata.empty() ? fs::path(COUNTERSIGN_BUNDLED_BEAMDATA) : fs::path(options.beamdata);
+  const fs::path library_dir =
+      options.beamdata.empty() ? fs::path(COUNTERSIGN_BUNDLED_BEAMDATA) : fs::path(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign check: " << library.error().message() << "\n";
     return ExitCode::bad_input;
+  }
+
+  // Fail before checking when a PDF is asked for and cannot be made.
+  std::optional<fs::path> chromium;
+  if (!options.pdf.empty()) {
+    chromium = report::find_chromium();
+    if (!chromium) {
+      io.err << "countersign check: " << report::no_chromium_message(options.pdf) << "\n";
+      return ExitCode::record_not_written;
+    }
   }
 
   ExitCode exit_code = ExitCode::all_within_tolerance;
@@ -96,6 +119,24 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
     exit_code = worst(exit_code, result.exit_code());
+    report::HtmlOptions record_options;
+    record_options.plan = &plan.value();
+    if (!options.html.empty()) {
+      auto written =
+          report::write_html(result, record_file(options.html, file, files.size()), record_options);
+      if (!written) {
+        io.err << "countersign check: " << written.error().message() << "\n";
+        exit_code = worst(exit_code, ExitCode::record_not_written);
+      }
+    }
+    if (chromium) {
+      auto written =
+          report::write_pdf(result, record_file(options.pdf, file, files.size()), *chromium, record_options);
+      if (!written) {
+        io.err << "countersign check: " << written.error().message() << "\n";
+        exit_code = worst(exit_code, ExitCode::record_not_written);
+      }
+    }
     if (!options.json) {
       report::write_check_text(io.out, result);
       io.out << "\n";
@@ -116,26 +157,40 @@ void add_check_command(CLI::App& app, CommandContext& context) {
   auto options = std::make_shared<CheckCommandOptions>();
   auto* command = app.add_subcommand(
       "check",
-      "Recompute the dose of every beam at its dose point from the beam-data library and judge it against the "
-      "planned dose. Exit 0: all within tolerance; 1: a beam outside tolerance; 2: a beam or plan not checked; "
-      "3: bad input or usage.");
+      "Recompute the dose of every beam at its dose point from the beam-data library and judge it against "
+      "the "
+      "planned dose. Exit 0: all within tolerance; 1: a beam outside tolerance; 2: a beam or plan not "
+      "checked; "
+      "3: bad input or usage; 4: a record asked for with --html or --pdf could not be written.");
   command->add_option("plans", options->paths, "RT Plan files, or folders of .dcm files")->required();
-  command->add_option("--beamdata", options->beamdata,
-                      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in TG-114 based values)");
-  const std::map<std::string, engine::MethodChoice> methods{{"auto", engine::MethodChoice::by_setup_technique},
-                                                            {"tmr", engine::MethodChoice::tmr},
-                                                            {"pdd", engine::MethodChoice::pdd}};
-  command->add_option("--method", options->method,
-                      "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
+  command->add_option(
+      "--beamdata", options->beamdata,
+      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--policy", options->policy,
+                      "tolerance policy TOML file (default: built-in TG-114 based values)");
+  const std::map<std::string, engine::MethodChoice> methods{
+      {"auto", engine::MethodChoice::by_setup_technique},
+      {"tmr", engine::MethodChoice::tmr},
+      {"pdd", engine::MethodChoice::pdd}};
+  command
+      ->add_option("--method", options->method,
+                   "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
       ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
   const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
                                                           {"equivalent", engine::DepthChoice::equivalent}};
-  command->add_option("--depth", options->depth,
-                      "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
-                      "(the plan's radiological depth)")
+  command
+      ->add_option("--depth", options->depth,
+                   "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
+                   "(the plan's radiological depth)")
       ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
   command->add_flag("--json", options->json, "write JSON instead of the table");
+  command->add_option(
+      "--html", options->html,
+      "also write the printable record (self-contained HTML) to FILE; with several plans, one file "
+      "each, named FILE's stem plus the plan's");
+  command->add_option(
+      "--pdf", options->pdf,
+      "also write the record as PDF (needs Chromium; without it nothing is checked and the exit code is 4)");
   command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
 }
 

@@ -21,10 +21,12 @@ Finding missing(const std::string& attribute, const std::string& context) {
 std::optional<Finding> check_accessories(const plan::Beam& beam, const beamdata::BeamData& data,
                                          const beamdata::WedgeData*& wedge, const beamdata::TrayData*& tray) {
   if (!beam.compensators.empty()) {
-    return Finding{Reason::unsupported_accessory, "the beam has a compensator (300A,00E3); compensators are not modelled"};
+    return Finding{Reason::unsupported_accessory,
+                   "the beam has a compensator (300A,00E3); compensators are not modelled"};
   }
   if (!beam.applicators.empty()) {
-    return Finding{Reason::unsupported_accessory, "the beam has an applicator (300A,0107); photon applicators are not modelled"};
+    return Finding{Reason::unsupported_accessory,
+                   "the beam has an applicator (300A,0107); photon applicators are not modelled"};
   }
   if (beam.wedges.size() > 1) {
     return Finding{Reason::unsupported_accessory, "the beam has more than one wedge (300A,00D1)"};
@@ -33,29 +35,33 @@ std::optional<Finding> check_accessories(const plan::Beam& beam, const beamdata:
     const plan::Wedge& w = beam.wedges.front();
     wedge = data.wedge(w.id);
     if (wedge == nullptr) {
-      return Finding{Reason::unknown_accessory, fmt::format("Wedge ID (300A,00D4) \"{}\" is not in the beam data of {} {}",
-                                                            w.id, data.id, data.radiation)};
+      return Finding{Reason::unknown_accessory,
+                     fmt::format("Wedge ID (300A,00D4) \"{}\" is not in the beam data of {} {}", w.id,
+                                 data.id, data.radiation)};
     }
     const bool plan_dynamic = w.type == "DYNAMIC";
     if (plan_dynamic != (wedge->kind == beamdata::WedgeKind::dynamic)) {
-      return Finding{Reason::unknown_accessory,
-                     fmt::format("Wedge Type (300A,00D3) \"{}\" does not match the library's kind of wedge \"{}\"", w.type,
-                                 w.id)};
+      return Finding{
+          Reason::unknown_accessory,
+          fmt::format("Wedge Type (300A,00D3) \"{}\" does not match the library's kind of wedge \"{}\"",
+                      w.type, w.id)};
     }
   }
   std::string tray_id;
   for (const plan::Accessory& block : beam.blocks) {
     if (block.id.empty()) continue;
     if (!tray_id.empty() && block.id != tray_id) {
-      return Finding{Reason::unsupported_accessory, "the beam's blocks name more than one Block Tray ID (300A,00F5)"};
+      return Finding{Reason::unsupported_accessory,
+                     "the beam's blocks name more than one Block Tray ID (300A,00F5)"};
     }
     tray_id = block.id;
   }
   if (!tray_id.empty()) {
     tray = data.tray(tray_id);
     if (tray == nullptr) {
-      return Finding{Reason::unknown_accessory,
-                     fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}", tray_id, data.id)};
+      return Finding{
+          Reason::unknown_accessory,
+          fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}", tray_id, data.id)};
     }
   }
   return std::nullopt;
@@ -88,14 +94,17 @@ double wrap_deg(double angle_deg) {
 plan::ControlPoint interpolate(const plan::ControlPoint& a, const plan::ControlPoint& b, double t) {
   plan::ControlPoint c = a;
   if (a.gantry_deg && b.gantry_deg) {
-    c.gantry_deg = wrap_deg(*a.gantry_deg + t * rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation));
+    c.gantry_deg =
+        wrap_deg(*a.gantry_deg + t * rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation));
   }
   if (a.collimator_deg && b.collimator_deg) {
     c.collimator_deg =
-        wrap_deg(*a.collimator_deg + t * rotation_step_deg(*a.collimator_deg, *b.collimator_deg, a.collimator_rotation));
+        wrap_deg(*a.collimator_deg +
+                 t * rotation_step_deg(*a.collimator_deg, *b.collimator_deg, a.collimator_rotation));
   }
   if (a.couch_deg && b.couch_deg) {
-    c.couch_deg = wrap_deg(*a.couch_deg + t * rotation_step_deg(*a.couch_deg, *b.couch_deg, a.couch_rotation));
+    c.couch_deg =
+        wrap_deg(*a.couch_deg + t * rotation_step_deg(*a.couch_deg, *b.couch_deg, a.couch_rotation));
   }
   for (plan::DevicePositions& d : c.devices) {
     const plan::DevicePositions* other = b.device(d.type);
@@ -137,8 +146,9 @@ const Factor* BeamDose::first_extrapolated() const {
   return nullptr;
 }
 
-BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const plan::ReferencedBeam& referenced,
-                           const DosePoint& point, const beamdata::Library& library, const EngineOptions& options) {
+BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
+                           const plan::ReferencedBeam& referenced, const DosePoint& point,
+                           const beamdata::Library& library, const EngineOptions& options) {
   BeamDose r;
   r.dose_point = point;
   const auto fail = [&r](Finding finding) {
@@ -148,19 +158,23 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
 
   if (beam.radiation_type != "PHOTON") {
     return fail({Reason::unsupported_radiation,
-                 fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON beams are checked", beam.radiation_type)});
+                 fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON beams are checked",
+                             beam.radiation_type)});
   }
   if (!beam.primary_dosimeter_unit.empty() && beam.primary_dosimeter_unit != "MU") {
-    return fail({Reason::unsupported_technique, fmt::format("Primary Dosimeter Unit (300A,00B3) is \"{}\"; only MU is supported",
-                                                            beam.primary_dosimeter_unit)});
+    return fail({Reason::unsupported_technique,
+                 fmt::format("Primary Dosimeter Unit (300A,00B3) is \"{}\"; only MU is supported",
+                             beam.primary_dosimeter_unit)});
   }
-  if (beam.control_points.empty()) return fail(missing("Control Point Sequence (300A,0111)", "from the beam"));
+  if (beam.control_points.empty())
+    return fail(missing("Control Point Sequence (300A,0111)", "from the beam"));
   const plan::ControlPoint& cp0 = beam.control_points.front();
   if (!cp0.nominal_energy_mv) return fail(missing("Nominal Beam Energy (300A,0114)", "at control point 0"));
   if (!referenced.meterset_mu) return fail(missing("Beam Meterset (300A,0086)", "from the fraction group"));
   r.meterset_mu = *referenced.meterset_mu;
 
-  const beamdata::BeamMatch match = library.match(beam.machine_name, beam.radiation_type, *cp0.nominal_energy_mv);
+  const beamdata::BeamMatch match =
+      library.match(beam.machine_name, beam.radiation_type, *cp0.nominal_energy_mv);
   r.machine = match.machine;
   if (match.beam == nullptr) {
     Reason reason = Reason::unknown_energy;
@@ -185,7 +199,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     setup = &plan.patient_setups.front();
   }
   if (setup == nullptr) {
-    return fail(missing("Patient Setup (300A,0180) referenced by Referenced Patient Setup Number (300C,006A)", "from the plan"));
+    return fail(missing("Patient Setup (300A,0180) referenced by Referenced Patient Setup Number (300C,006A)",
+                        "from the plan"));
   }
   r.patient_position = geometry::parse_patient_position(setup->patient_position);
   if (!r.patient_position) {
@@ -195,7 +210,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   }
 
   if (!cp0.gantry_deg) return fail(missing("Gantry Angle (300A,011E)", "at control point 0"));
-  if (!cp0.collimator_deg) return fail(missing("Beam Limiting Device Angle (300A,0120)", "at control point 0"));
+  if (!cp0.collimator_deg)
+    return fail(missing("Beam Limiting Device Angle (300A,0120)", "at control point 0"));
   if (!cp0.couch_deg) return fail(missing("Patient Support Angle (300A,0122)", "at control point 0"));
   if (!cp0.isocenter_mm) return fail(missing("Isocenter Position (300A,012C)", "at control point 0"));
   r.angles = {*cp0.gantry_deg, *cp0.collimator_deg, *cp0.couch_deg};
@@ -204,8 +220,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   r.sad_mm = r.machine->sad_cm * 10.0;
   if (beam.sad_mm && std::abs(*beam.sad_mm - r.sad_mm) > sad_match_mm) {
     return fail({Reason::sad_mismatch,
-                 fmt::format("Source-Axis Distance (300A,00B4) is {:.1f} mm but machine {} has {:.1f} mm", *beam.sad_mm,
-                             r.machine->name, r.sad_mm)});
+                 fmt::format("Source-Axis Distance (300A,00B4) is {:.1f} mm but machine {} has {:.1f} mm",
+                             *beam.sad_mm, r.machine->name, r.sad_mm)});
   }
 
   const geometry::BeamFrame frame0(*r.patient_position, r.angles, r.isocenter_mm, r.sad_mm);
@@ -214,7 +230,9 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     return fail({Reason::unsupported_geometry, "the dose point is not in front of the source"});
   }
   auto aperture0 = geometry::build_aperture(beam, cp0);
-  if (!aperture0) return fail({reason_for_geometry_error(aperture0.error()), aperture0.error().message() + " at control point 0"});
+  if (!aperture0)
+    return fail(
+        {reason_for_geometry_error(aperture0.error()), aperture0.error().message() + " at control point 0"});
   r.aperture = std::move(aperture0.value());
   r.point_in_field = r.aperture.contains(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
   r.edge_distance_mm = r.aperture.distance_to_edge_mm(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
@@ -234,38 +252,45 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   if (r.ssd_mm) depth.spd_minus_ssd_mm = r.point.spd_mm - *r.ssd_mm;
   if (options.depth == DepthChoice::equivalent) {
     if (!depth.plan_equivalent_depth_mm) {
-      return fail(missing("Beam Dose Point Equivalent Depth (300A,0089)", "for this dose point; the equivalent depth was asked for"));
+      return fail(missing("Beam Dose Point Equivalent Depth (300A,0089)",
+                          "for this dose point; the equivalent depth was asked for"));
     }
     depth.depth_mm = *depth.plan_equivalent_depth_mm;
     depth.source = distances.layout;
-    depth.description = fmt::format("the plan's equivalent (radiological) depth, {}, as asked", to_code(distances.layout));
+    depth.description =
+        fmt::format("the plan's equivalent (radiological) depth, {}, as asked", to_code(distances.layout));
   } else if (depth.plan_depth_mm) {
     depth.depth_mm = *depth.plan_depth_mm;
     depth.source = distances.layout;
-    depth.description = fmt::format("the plan's Beam Dose Point Depth (300A,0088), {}", to_code(distances.layout));
+    depth.description =
+        fmt::format("the plan's Beam Dose Point Depth (300A,0088), {}", to_code(distances.layout));
   } else if (distances.distances != nullptr && distances.distances->ssd_mm) {
     depth.depth_mm = r.point.ray_length_mm - *distances.distances->ssd_mm;
     depth.source = DepthSource::derived_from_dose_point_ssd;
-    depth.description = "derived: source-to-point distance along the ray minus the plan's Beam Dose Point SSD (300A,008A)";
+    depth.description =
+        "derived: source-to-point distance along the ray minus the plan's Beam Dose Point SSD (300A,008A)";
   } else if (depth.spd_minus_ssd_mm) {
     depth.depth_mm = *depth.spd_minus_ssd_mm;
     depth.source = DepthSource::derived_spd_minus_ssd;
     depth.description =
         "derived: SPD - SSD at control point 0, assuming a flat surface perpendicular to the central axis";
   } else {
-    return fail(missing("Beam Dose Point Depth (300A,0088)",
-                        "for this dose point and so is Source to Surface Distance (300A,0130) at control point 0"));
+    return fail(
+        missing("Beam Dose Point Depth (300A,0088)",
+                "for this dose point and so is Source to Surface Distance (300A,0130) at control point 0"));
   }
   if (depth.depth_mm <= 0.0) {
     return fail({Reason::unsupported_geometry,
-                 fmt::format("the depth of the dose point is {:.1f} mm: the point is not inside the patient", depth.depth_mm)});
+                 fmt::format("the depth of the dose point is {:.1f} mm: the point is not inside the patient",
+                             depth.depth_mm)});
   }
-  const bool depth_derived =
-      depth.source == DepthSource::derived_spd_minus_ssd || depth.source == DepthSource::derived_from_dose_point_ssd;
+  const bool depth_derived = depth.source == DepthSource::derived_spd_minus_ssd ||
+                             depth.source == DepthSource::derived_from_dose_point_ssd;
   if (!beam.boli.empty()) {
     if (depth_derived) {
-      return fail({Reason::unsupported_accessory,
-                   "the beam has a bolus (300C,00B0) and the plan gives no depth for the dose point to include it"});
+      return fail(
+          {Reason::unsupported_accessory,
+           "the beam has a bolus (300C,00B0) and the plan gives no depth for the dose point to include it"});
     }
     r.approximations.push_back("Bolus: the plan's depth is taken to include the bolus.");
   }
@@ -287,22 +312,25 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
         r.method_reason = "fixed-SSD (PDD) form: Setup Technique (300A,01B0) is FIXED_SSD";
       } else {
         r.method = Method::tmr;
-        r.method_reason = setup->setup_technique.empty()
-                              ? "isocentric (TMR) form: Setup Technique (300A,01B0) is absent"
-                              : "isocentric (TMR) form: Setup Technique (300A,01B0) is " + setup->setup_technique;
+        r.method_reason =
+            setup->setup_technique.empty()
+                ? "isocentric (TMR) form: Setup Technique (300A,01B0) is absent"
+                : "isocentric (TMR) form: Setup Technique (300A,01B0) is " + setup->setup_technique;
       }
       break;
   }
   const double ssd0_mm = r.ssd_mm.value_or(r.point.spd_mm - depth.depth_mm);
   if (!r.ssd_mm && r.method == Method::pdd) {
-    r.approximations.push_back("SSD derived as SPD - depth: control point 0 has no Source to Surface Distance (300A,0130).");
+    r.approximations.push_back(
+        "SSD derived as SPD - depth: control point 0 has no Source to Surface Distance (300A,0130).");
   }
 
   // The parts of the meterset: one per pair of control points between which meterset is delivered,
   // arcs split into gantry steps of at most max_arc_step_deg.
   const double final_weight = beam.final_cumulative_meterset_weight.value_or(
       beam.control_points.back().cumulative_meterset_weight.value_or(0.0));
-  if (!(final_weight > 0.0)) return fail(missing("Final Cumulative Meterset Weight (300A,010E)", "or not positive"));
+  if (!(final_weight > 0.0))
+    return fail(missing("Final Cumulative Meterset Weight (300A,010E)", "or not positive"));
   std::vector<PartPlan> parts;
   bool moving = false;
   if (beam.control_points.size() == 1) {
@@ -312,14 +340,17 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     const plan::ControlPoint& a = beam.control_points[i];
     const plan::ControlPoint& b = beam.control_points[i + 1];
     if (!a.cumulative_meterset_weight || !b.cumulative_meterset_weight) {
-      return fail(missing("Cumulative Meterset Weight (300A,0134)", fmt::format("at control point {}", b.index)));
+      return fail(
+          missing("Cumulative Meterset Weight (300A,0134)", fmt::format("at control point {}", b.index)));
     }
     const double weight = *b.cumulative_meterset_weight - *a.cumulative_meterset_weight;
     if (weight <= 1e-9 * final_weight) continue;
-    const double gantry_step =
-        (a.gantry_deg && b.gantry_deg) ? rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation) : 0.0;
+    const double gantry_step = (a.gantry_deg && b.gantry_deg)
+                                   ? rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation)
+                                   : 0.0;
     if (std::abs(gantry_step) > 1e-6) moving = true;
-    const int steps = std::max(1, static_cast<int>(std::ceil(std::abs(gantry_step) / max_arc_step_deg - 1e-9)));
+    const int steps =
+        std::max(1, static_cast<int>(std::ceil(std::abs(gantry_step) / max_arc_step_deg - 1e-9)));
     const double part_mu = r.meterset_mu * weight / final_weight / steps;
     if (steps == 1 && same_geometry(a, b)) {
       parts.push_back({a.index, part_mu, &a, std::nullopt});
@@ -329,7 +360,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
       parts.push_back({a.index, part_mu, nullptr, interpolate(a, b, (k + 0.5) / steps)});
     }
   }
-  if (parts.empty()) return fail(missing("a delivered meterset between control points", "(all weights equal)"));
+  if (parts.empty())
+    return fail(missing("a delivered meterset between control points", "(all weights equal)"));
   r.features.modulated = moving || parts.size() > 1;
 
   if (r.features.modulated && !data.mlc_transmission) {
@@ -338,8 +370,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     });
     if (needs_transmission) {
       return fail({Reason::missing_beam_data,
-                   fmt::format("beam {} of machine {} has no mlc_transmission; modulated beams need it", data.id,
-                               r.machine->name)});
+                   fmt::format("beam {} of machine {} has no mlc_transmission; modulated beams need it",
+                               data.id, r.machine->name)});
     }
   }
 
@@ -350,13 +382,16 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     Segment s;
     s.from_control_point = part.from_control_point;
     s.meterset_mu = part.meterset_mu;
-    s.angles = {cp.gantry_deg.value_or(r.angles.gantry_deg), cp.collimator_deg.value_or(r.angles.collimator_deg),
+    s.angles = {cp.gantry_deg.value_or(r.angles.gantry_deg),
+                cp.collimator_deg.value_or(r.angles.collimator_deg),
                 cp.couch_deg.value_or(r.angles.couch_deg)};
-    const geometry::BeamFrame frame(*r.patient_position, s.angles, cp.isocenter_mm.value_or(r.isocenter_mm), r.sad_mm);
+    const geometry::BeamFrame frame(*r.patient_position, s.angles, cp.isocenter_mm.value_or(r.isocenter_mm),
+                                    r.sad_mm);
     s.point = frame.locate(point.point_mm);
     if (s.point.spd_mm <= 0.0) {
       return fail({Reason::unsupported_geometry,
-                   fmt::format("the dose point is not in front of the source at control point {}", s.from_control_point)});
+                   fmt::format("the dose point is not in front of the source at control point {}",
+                               s.from_control_point)});
     }
     // Control point 0's aperture is already built; other parts build their own.
     std::optional<geometry::Aperture> own_aperture;
@@ -381,7 +416,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     s.depth_mm = depth.depth_mm + (s.point.spd_mm - r.point.spd_mm) - (s.ssd_mm - ssd0_mm);
     if (s.depth_mm <= 0.0) {
       return fail({Reason::unsupported_geometry,
-                   fmt::format("the dose point is not inside the patient at control point {}", s.from_control_point)});
+                   fmt::format("the dose point is not inside the patient at control point {}",
+                               s.from_control_point)});
     }
 
     DoseInputs& in = s.inputs;
@@ -392,7 +428,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
     in.ssd_cm = s.ssd_mm / 10.0;
     in.sad_cm = r.sad_mm / 10.0;
     in.off_axis_cm = s.point.off_axis_mm / 10.0;
-    in.collimator_field_cm = beamdata::equivalent_square_cm(s.jaws.width_mm() / 10.0, s.jaws.length_mm() / 10.0);
+    in.collimator_field_cm =
+        beamdata::equivalent_square_cm(s.jaws.width_mm() / 10.0, s.jaws.length_mm() / 10.0);
     in.field_at_isocentre_cm = aperture->equivalent_square_mm() / 10.0;
     in.wedge = wedge;
     in.tray = tray;
@@ -422,34 +459,42 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam, const
   r.dose_computed = true;
 
   if (r.features.modulated) {
-    r.approximations.push_back(fmt::format(
-        "Modulated beam: dose summed over {} parts weighted by meterset; each part uses the equivalent square "
-        "(4A/P) of its aperture, edge penumbra is ignored, a point under the leaves gets the jaw field's dose times "
-        "the MLC transmission ({:.3f}), and jaw transmission is ignored.",
-        r.segments.size(), data.mlc_transmission.value_or(0.0)));
+    r.approximations.push_back(
+        fmt::format("Modulated beam: dose summed over {} parts weighted by meterset; each part uses the "
+                    "equivalent square "
+                    "(4A/P) of its aperture, edge penumbra is ignored, a point under the leaves gets the jaw "
+                    "field's dose times "
+                    "the MLC transmission ({:.3f}), and jaw transmission is ignored.",
+                    r.segments.size(), data.mlc_transmission.value_or(0.0)));
   }
   if (moving) {
-    r.approximations.push_back(fmt::format(
-        "Arc: split into gantry steps of at most {:.0f} degrees; each step's depth is the beam's depth shifted by the "
-        "change in source-to-point distance and in SSD from control point 0 (where the plan gives no SSD per control "
-        "point, the surface is taken to stay at control point 0's SSD).",
-        max_arc_step_deg));
+    r.approximations.push_back(
+        fmt::format("Arc: split into gantry steps of at most {:.0f} degrees; each step's depth is the beam's "
+                    "depth shifted by the "
+                    "change in source-to-point distance and in SSD from control point 0 (where the plan "
+                    "gives no SSD per control "
+                    "point, the surface is taken to stay at control point 0's SSD).",
+                    max_arc_step_deg));
   }
   if (r.aperture.shaped_by_mlc() && r.features.open_to_jaw_area_ratio < 0.999 && !r.features.modulated) {
-    r.approximations.push_back("MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.");
+    r.approximations.push_back(
+        "MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.");
   }
   if (r.aperture.jaws().x_source == geometry::JawSource::mlc_envelope ||
       r.aperture.jaws().y_source == geometry::JawSource::mlc_envelope) {
-    r.approximations.push_back("No jaw positions for one axis: the MLC envelope stands in for the collimator field (Sc).");
+    r.approximations.push_back(
+        "No jaw positions for one axis: the MLC envelope stands in for the collimator field (Sc).");
   }
   if (r.features.blocks) {
-    r.approximations.push_back("Block shapes are not modelled: the field inside the jaws and MLC is used for Sp and TMR/PDD.");
+    r.approximations.push_back(
+        "Block shapes are not modelled: the field inside the jaws and MLC is used for Sp and TMR/PDD.");
   }
   if (r.method == Method::pdd && std::abs(ssd0_mm / 10.0 - data.pdd_ssd_cm) > 0.05) {
-    r.approximations.push_back(fmt::format(
-        "PDD at SSD {:.1f} cm from the table at {:.1f} cm by the Mayneord F factor, which ignores the change in "
-        "phantom scatter (about half a percent).",
-        ssd0_mm / 10.0, data.pdd_ssd_cm));
+    r.approximations.push_back(
+        fmt::format("PDD at SSD {:.1f} cm from the table at {:.1f} cm by the Mayneord F factor, which "
+                    "ignores the change in "
+                    "phantom scatter (about half a percent).",
+                    ssd0_mm / 10.0, data.pdd_ssd_cm));
   }
   return r;
 }

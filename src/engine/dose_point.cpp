@@ -7,23 +7,34 @@ namespace countersign::engine {
 
 std::string_view to_code(DosePointSource source) {
   switch (source) {
-    case DosePointSource::beam_dose_specification_point: return "beam_dose_specification_point";
-    case DosePointSource::full_coefficient_reference: return "dose_reference_full_coefficient";
-    case DosePointSource::single_dose_reference: return "single_dose_reference";
-    case DosePointSource::dose_reference: return "dose_reference";
+    case DosePointSource::beam_dose_specification_point:
+      return "beam_dose_specification_point";
+    case DosePointSource::full_coefficient_reference:
+      return "dose_reference_full_coefficient";
+    case DosePointSource::single_dose_reference:
+      return "single_dose_reference";
+    case DosePointSource::dose_reference:
+      return "dose_reference";
   }
   return "unknown";
 }
 
-std::string_view to_code(DepthChoice choice) { return choice == DepthChoice::planned ? "planned" : "equivalent"; }
+std::string_view to_code(DepthChoice choice) {
+  return choice == DepthChoice::planned ? "planned" : "equivalent";
+}
 
 std::string_view to_code(DepthSource source) {
   switch (source) {
-    case DepthSource::referenced_beam_item: return "plan_referenced_beam";
-    case DepthSource::fraction_verification_item: return "plan_beam_dose_verification_control_point";
-    case DepthSource::beam_dose_reference_item: return "plan_beam_dose_reference";
-    case DepthSource::derived_from_dose_point_ssd: return "derived_ray_length_minus_dose_point_ssd";
-    case DepthSource::derived_spd_minus_ssd: return "derived_spd_minus_ssd_flat_surface";
+    case DepthSource::referenced_beam_item:
+      return "plan_referenced_beam";
+    case DepthSource::fraction_verification_item:
+      return "plan_beam_dose_verification_control_point";
+    case DepthSource::beam_dose_reference_item:
+      return "plan_beam_dose_reference";
+    case DepthSource::derived_from_dose_point_ssd:
+      return "derived_ray_length_minus_dose_point_ssd";
+    case DepthSource::derived_spd_minus_ssd:
+      return "derived_spd_minus_ssd_flat_surface";
   }
   return "unknown";
 }
@@ -62,7 +73,8 @@ PlanDistances plan_distances_for(const plan::Beam& beam, const plan::ReferencedB
     if (usable(referenced.distances_in_referenced_beam)) {
       return {&referenced.distances_in_referenced_beam, DepthSource::referenced_beam_item};
     }
-    if (!referenced.verification_dose_reference_number && usable(referenced.distances_in_verification_sequence)) {
+    if (!referenced.verification_dose_reference_number &&
+        usable(referenced.distances_in_verification_sequence)) {
       return {&referenced.distances_in_verification_sequence, DepthSource::fraction_verification_item};
     }
     return {};

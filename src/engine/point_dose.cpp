@@ -10,11 +10,16 @@ std::string_view to_code(Method method) { return method == Method::tmr ? "tmr" :
 
 std::string_view to_code(FactorBasis basis) {
   switch (basis) {
-    case FactorBasis::table: return "table";
-    case FactorBasis::manifest_constant: return "manifest_constant";
-    case FactorBasis::formula: return "formula";
-    case FactorBasis::not_applicable: return "not_applicable";
-    case FactorBasis::on_axis_unity: return "on_axis_unity";
+    case FactorBasis::table:
+      return "table";
+    case FactorBasis::manifest_constant:
+      return "manifest_constant";
+    case FactorBasis::formula:
+      return "formula";
+    case FactorBasis::not_applicable:
+      return "not_applicable";
+    case FactorBasis::on_axis_unity:
+      return "on_axis_unity";
   }
   return "unknown";
 }
@@ -42,8 +47,14 @@ double squared(double x) { return x * x; }
 }  // namespace
 
 const Factor* PointDose::first_extrapolated() const {
-  const std::array<const Factor*, 9> all{&factors.calibration_depth, &factors.sc, &factors.sp, &factors.tmr,
-                                         &factors.pdd, &factors.oar, &factors.wedge, &factors.tray,
+  const std::array<const Factor*, 9> all{&factors.calibration_depth,
+                                         &factors.sc,
+                                         &factors.sp,
+                                         &factors.tmr,
+                                         &factors.pdd,
+                                         &factors.oar,
+                                         &factors.wedge,
+                                         &factors.tray,
                                          &factors.transmission};
   for (const Factor* f : all) {
     if (f->extrapolated()) return f;
@@ -68,7 +79,8 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
   f.sc = from_lookup(beam.sc.at(s.collimator_cm));
   f.wedge = wedge_factor(in.wedge, in.depth_cm, s.isocentre_cm);
   if (in.tray != nullptr) f.tray = Factor{in.tray->factor, FactorBasis::manifest_constant, std::nullopt};
-  if (in.transmission != 1.0) f.transmission = Factor{in.transmission, FactorBasis::manifest_constant, std::nullopt};
+  if (in.transmission != 1.0)
+    f.transmission = Factor{in.transmission, FactorBasis::manifest_constant, std::nullopt};
   if (beam.oar) {
     f.oar = from_lookup(beam.oar->at(in.depth_cm, in.off_axis_cm));
   } else {
@@ -88,13 +100,15 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
     f.calibration_depth = from_lookup(beam.pdd.at(cal.depth_cm, cal_surface_field_cm), cal_f / 100.0);
     f.sp = from_lookup(beam.sp.at(s.normalisation_depth_cm));
     f.pdd = from_lookup(beam.pdd.at(in.depth_cm, s.surface_cm), 0.01);
-    f.mayneord_f = from_formula(beamdata::mayneord_f_factor(in.ssd_cm, beam.pdd_ssd_cm, beam.dmax_cm, in.depth_cm));
+    f.mayneord_f =
+        from_formula(beamdata::mayneord_f_factor(in.ssd_cm, beam.pdd_ssd_cm, beam.dmax_cm, in.depth_cm));
     f.inverse_square = from_formula(squared((cal.ssd_cm + beam.dmax_cm) / (in.ssd_cm + beam.dmax_cm)));
     depth_term = f.pdd.value * f.mayneord_f.value;
   }
 
-  result.dose_per_mu_cgy = f.output_cgy_per_mu / f.calibration_depth.value * f.sc.value * f.sp.value * depth_term *
-                           f.oar.value * f.wedge.value * f.tray.value * f.transmission.value * f.inverse_square.value;
+  result.dose_per_mu_cgy = f.output_cgy_per_mu / f.calibration_depth.value * f.sc.value * f.sp.value *
+                           depth_term * f.oar.value * f.wedge.value * f.tray.value * f.transmission.value *
+                           f.inverse_square.value;
   result.dose_cgy = in.meterset_mu * result.dose_per_mu_cgy;
   return result;
 }

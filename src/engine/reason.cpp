@@ -4,30 +4,54 @@ namespace countersign::engine {
 
 std::string_view reason_code(Reason reason) {
   switch (reason) {
-    case Reason::deviation_within_tolerance: return "deviation_within_tolerance";
-    case Reason::deviation_within_tolerance_of_point_total: return "deviation_within_tolerance_of_point_total";
-    case Reason::deviation_exceeds_tolerance: return "deviation_exceeds_tolerance";
-    case Reason::setup_beam: return "setup_beam";
-    case Reason::no_meterset: return "no_meterset";
-    case Reason::unknown_machine: return "unknown_machine";
-    case Reason::unknown_energy: return "unknown_energy";
-    case Reason::unsupported_radiation: return "unsupported_radiation";
-    case Reason::unsupported_technique: return "unsupported_technique";
-    case Reason::unsupported_patient_position: return "unsupported_patient_position";
-    case Reason::unsupported_accessory: return "unsupported_accessory";
-    case Reason::unknown_accessory: return "unknown_accessory";
-    case Reason::unsupported_geometry: return "unsupported_geometry";
-    case Reason::sad_mismatch: return "sad_mismatch";
-    case Reason::missing_plan_data: return "missing_plan_data";
-    case Reason::missing_beam_data: return "missing_beam_data";
-    case Reason::no_dose_point: return "no_dose_point";
-    case Reason::no_planned_dose: return "no_planned_dose";
-    case Reason::planned_dose_not_beam_level: return "planned_dose_not_beam_level";
-    case Reason::point_outside_field: return "point_outside_field";
-    case Reason::point_near_field_edge: return "point_near_field_edge";
-    case Reason::table_extrapolated: return "table_extrapolated";
-    case Reason::inconsistent_depth: return "inconsistent_depth";
-    case Reason::nothing_to_check: return "nothing_to_check";
+    case Reason::deviation_within_tolerance:
+      return "deviation_within_tolerance";
+    case Reason::deviation_within_tolerance_of_point_total:
+      return "deviation_within_tolerance_of_point_total";
+    case Reason::deviation_exceeds_tolerance:
+      return "deviation_exceeds_tolerance";
+    case Reason::setup_beam:
+      return "setup_beam";
+    case Reason::no_meterset:
+      return "no_meterset";
+    case Reason::unknown_machine:
+      return "unknown_machine";
+    case Reason::unknown_energy:
+      return "unknown_energy";
+    case Reason::unsupported_radiation:
+      return "unsupported_radiation";
+    case Reason::unsupported_technique:
+      return "unsupported_technique";
+    case Reason::unsupported_patient_position:
+      return "unsupported_patient_position";
+    case Reason::unsupported_accessory:
+      return "unsupported_accessory";
+    case Reason::unknown_accessory:
+      return "unknown_accessory";
+    case Reason::unsupported_geometry:
+      return "unsupported_geometry";
+    case Reason::sad_mismatch:
+      return "sad_mismatch";
+    case Reason::missing_plan_data:
+      return "missing_plan_data";
+    case Reason::missing_beam_data:
+      return "missing_beam_data";
+    case Reason::no_dose_point:
+      return "no_dose_point";
+    case Reason::no_planned_dose:
+      return "no_planned_dose";
+    case Reason::planned_dose_not_beam_level:
+      return "planned_dose_not_beam_level";
+    case Reason::point_outside_field:
+      return "point_outside_field";
+    case Reason::point_near_field_edge:
+      return "point_near_field_edge";
+    case Reason::table_extrapolated:
+      return "table_extrapolated";
+    case Reason::inconsistent_depth:
+      return "inconsistent_depth";
+    case Reason::nothing_to_check:
+      return "nothing_to_check";
   }
   return "unknown_reason";
 }

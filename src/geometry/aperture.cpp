@@ -11,8 +11,6 @@ namespace {
 
 constexpr const char* positions_tag = "(300A,011C)";
 
-
-
 double row_width(const ApertureRow& r) { return r.open() ? r.hi_mm - r.lo_mm : 0.0; }
 
 double distance_to_segment(double px, double py, double ax, double ay, double bx, double by) {
@@ -63,7 +61,9 @@ Error positions_error(ErrorKind kind, const std::string& device, const std::stri
 
 }  // namespace
 
-double JawOpening::centre_offset_mm() const { return std::hypot(0.5 * (x1_mm + x2_mm), 0.5 * (y1_mm + y2_mm)); }
+double JawOpening::centre_offset_mm() const {
+  return std::hypot(0.5 * (x1_mm + x2_mm), 0.5 * (y1_mm + y2_mm));
+}
 
 Aperture::Aperture(JawOpening jaws, std::vector<ApertureRow> rows, bool shaped_by_mlc)
     : jaws_(jaws), rows_(std::move(rows)), shaped_by_mlc_(shaped_by_mlc) {
@@ -73,7 +73,9 @@ Aperture::Aperture(JawOpening jaws, std::vector<ApertureRow> rows, bool shaped_b
   });
 }
 
-double Aperture::equivalent_square_mm() const { return perimeter_mm_ > 0.0 ? 4.0 * area_mm2_ / perimeter_mm_ : 0.0; }
+double Aperture::equivalent_square_mm() const {
+  return perimeter_mm_ > 0.0 ? 4.0 * area_mm2_ / perimeter_mm_ : 0.0;
+}
 
 bool Aperture::contains(double x_mm, double y_mm) const {
   return std::any_of(rows_.begin(), rows_.end(), [&](const ApertureRow& r) {
@@ -98,7 +100,8 @@ Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoi
   const plan::DevicePositions* y = find("ASYMY", "Y");
   const plan::DevicePositions* mlc = cp.device("MLCX");
   if (cp.device("MLCY") != nullptr) {
-    return positions_error(ErrorKind::bad_value, "MLCY", "an MLC with leaves moving along Y is not supported");
+    return positions_error(ErrorKind::bad_value, "MLCY",
+                           "an MLC with leaves moving along Y is not supported");
   }
   for (const plan::DevicePositions* jaw : {x, y}) {
     if (jaw != nullptr && jaw->positions_mm.size() != 2) {
@@ -165,7 +168,8 @@ Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoi
   rows.reserve(pairs);
   for (std::size_t i = 0; i < pairs; ++i) {
     if (boundaries[i + 1] <= boundaries[i]) {
-      return Error{ErrorKind::bad_value, "", "LeafPositionBoundaries", "(300A,00BE)", "boundaries not increasing"};
+      return Error{ErrorKind::bad_value, "", "LeafPositionBoundaries", "(300A,00BE)",
+                   "boundaries not increasing"};
     }
     const double y_lower = std::max(boundaries[i], jaws.y1_mm);
     const double y_upper = std::min(boundaries[i + 1], jaws.y2_mm);

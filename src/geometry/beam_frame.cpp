@@ -22,7 +22,8 @@ BeamFrame::BeamFrame(PatientPosition position, const BeamAngles& angles, const p
                      double sad_mm)
     : isocenter_mm_(isocenter_mm[0], isocenter_mm[1], isocenter_mm[2]), sad_mm_(sad_mm) {
   // v_fixed = Rz(couch) * P * v_patient; v_fixed = Ry(gantry) * v_gantry; v_gantry = Rz(coll) * v_coll.
-  const Eigen::Matrix3d patient_to_fixed = rotation_about_z(angles.couch_deg) * patient_to_table_top(position);
+  const Eigen::Matrix3d patient_to_fixed =
+      rotation_about_z(angles.couch_deg) * patient_to_table_top(position);
   patient_to_collimator_ = rotation_about_z(angles.collimator_deg).transpose() *
                            rotation_about_y(angles.gantry_deg).transpose() * patient_to_fixed;
 }

@@ -12,10 +12,14 @@ std::optional<PatientPosition> parse_patient_position(std::string_view code) {
 
 std::string_view to_code(PatientPosition position) {
   switch (position) {
-    case PatientPosition::hfs: return "HFS";
-    case PatientPosition::hfp: return "HFP";
-    case PatientPosition::ffs: return "FFS";
-    case PatientPosition::ffp: return "FFP";
+    case PatientPosition::hfs:
+      return "HFS";
+    case PatientPosition::hfp:
+      return "HFP";
+    case PatientPosition::ffs:
+      return "FFS";
+    case PatientPosition::ffp:
+      return "FFP";
   }
   return "";
 }

@@ -61,7 +61,8 @@ json provenance_json(const engine::PointDose& d) {
   return j;
 }
 
-json fields_json(const engine::PointDose& d, const geometry::JawOpening& jaws, double open_area_mm2, bool mlc) {
+json fields_json(const engine::PointDose& d, const geometry::JawOpening& jaws, double open_area_mm2,
+                 bool mlc) {
   return json{{"jaw_x1_cm", jaws.x1_mm / 10.0},
               {"jaw_x2_cm", jaws.x2_mm / 10.0},
               {"jaw_y1_cm", jaws.y1_mm / 10.0},
@@ -104,7 +105,8 @@ void add_calculation(json& j, const engine::BeamDose& c) {
   if (!c.dose_computed) return;
   j["method"] = std::string(engine::to_code(c.method));
   j["method_reason"] = c.method_reason;
-  j["patient_position"] = c.patient_position ? json(std::string(geometry::to_code(*c.patient_position))) : json(nullptr);
+  j["patient_position"] =
+      c.patient_position ? json(std::string(geometry::to_code(*c.patient_position))) : json(nullptr);
   j["gantry_deg"] = c.angles.gantry_deg;
   j["collimator_deg"] = c.angles.collimator_deg;
   j["couch_deg"] = c.angles.couch_deg;
@@ -176,12 +178,21 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"medium", std::string(check::to_code(b.medium))},
          {"point_total_planned_dose_gy", optional_json(b.point_total_planned_dose_gy)}};
   // Keys of the calculation are always present (null when there was none).
-  for (const char* key : {"machine", "beam_data_id", "energy_mv", "dose_point", "method", "method_reason",
-                          "patient_position", "gantry_deg", "collimator_deg", "couch_deg", "depth_cm",
-                          "depth_source", "depth_kind", "depth_description", "plan_depth_cm",
-                          "plan_equivalent_depth_cm", "spd_minus_ssd_cm", "spd_cm", "ssd_cm", "sad_cm",
-                          "off_axis_cm", "point_in_field", "edge_distance_cm", "modulated", "segment_count",
-                          "fields", "factors", "provenance", "segments", "approximations"}) {
+  for (const char* key : {"machine",          "beam_data_id",
+                          "energy_mv",        "dose_point",
+                          "method",           "method_reason",
+                          "patient_position", "gantry_deg",
+                          "collimator_deg",   "couch_deg",
+                          "depth_cm",         "depth_source",
+                          "depth_kind",       "depth_description",
+                          "plan_depth_cm",    "plan_equivalent_depth_cm",
+                          "spd_minus_ssd_cm", "spd_cm",
+                          "ssd_cm",           "sad_cm",
+                          "off_axis_cm",      "point_in_field",
+                          "edge_distance_cm", "modulated",
+                          "segment_count",    "fields",
+                          "factors",          "provenance",
+                          "segments",         "approximations"}) {
     j[key] = nullptr;
   }
   if (b.calculation) add_calculation(j, *b.calculation);
@@ -195,13 +206,13 @@ json check_to_json(const check::PlanCheck& c) {
   for (const check::DoseReferenceCheck& r : c.dose_references) {
     json contributions = json::array();
     for (const check::Contribution& p : r.contributions) {
-      contributions.push_back(json{{"beam_number", p.beam_number},
-                                   {"coefficient", p.coefficient},
-                                   {"planned_dose_gy", p.planned_dose_gy},
-                                   {"computed_dose_gy", optional_json(p.computed_dose_gy)},
-                                   {"reason", p.problem ? json(std::string(engine::reason_code(p.problem->reason)))
-                                                        : json(nullptr)},
-                                   {"explanation", p.problem ? json(p.problem->sentence) : json(nullptr)}});
+      contributions.push_back(json{
+          {"beam_number", p.beam_number},
+          {"coefficient", p.coefficient},
+          {"planned_dose_gy", p.planned_dose_gy},
+          {"computed_dose_gy", optional_json(p.computed_dose_gy)},
+          {"reason", p.problem ? json(std::string(engine::reason_code(p.problem->reason))) : json(nullptr)},
+          {"explanation", p.problem ? json(p.problem->sentence) : json(nullptr)}});
     }
     references.push_back(json{{"fraction_group_number", r.fraction_group_number},
                               {"number", r.number},
@@ -249,7 +260,10 @@ json check_run_to_json(const std::vector<check::PlanCheck>& checks, const std::v
                        int exit_code) {
   json plans = json::array();
   for (const check::PlanCheck& c : checks) plans.push_back(check_to_json(c));
-  return json{{"plans", std::move(plans)}, {"errors", errors}, {"exit_code", exit_code}, {"caution", std::string(caution_text())}};
+  return json{{"plans", std::move(plans)},
+              {"errors", errors},
+              {"exit_code", exit_code},
+              {"caution", std::string(caution_text())}};
 }
 
 }  // namespace countersign::report

@@ -1,6 +1,5 @@
 #include <countersign/report/check_text.hpp>
 
-
 #include <fmt/format.h>
 
 namespace countersign::report {
@@ -24,12 +23,14 @@ std::string depth_label(const check::BeamCheck& b) {
 }  // namespace
 
 void write_check_text(std::ostream& out, const check::PlanCheck& c) {
-  out << fmt::format("Plan {} ({}), patient {}, SOP Instance UID {}\n", c.plan_label.empty() ? "-" : c.plan_label,
-                     c.source_file, c.patient_id.empty() ? "-" : c.patient_id, c.sop_instance_uid);
+  out << fmt::format("Plan {} ({}), patient {}, SOP Instance UID {}\n",
+                     c.plan_label.empty() ? "-" : c.plan_label, c.source_file,
+                     c.patient_id.empty() ? "-" : c.patient_id, c.sop_instance_uid);
   out << fmt::format("Beam data: {} (SHA-256 {})\n", c.beamdata_root, c.beamdata_sha256);
   out << fmt::format("Tolerance policy: {}\n\n", c.options.policy.source);
-  out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG", "Beam", "Name",
-                     "MU", "Plan Gy", "Calc Gy", "Dev %", "Tol %", "Indep MU", "Method", "Depth cm", "Status");
+  out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG",
+                     "Beam", "Name", "MU", "Plan Gy", "Calc Gy", "Dev %", "Tol %", "Indep MU", "Method",
+                     "Depth cm", "Status");
   for (const check::BeamCheck& b : c.beams) {
     const bool computed = b.calculation && b.calculation->dose_computed;
     out << fmt::format("{:>2} {:>4} {:<12.12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n",
@@ -42,7 +43,8 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   }
   bool header = false;
   for (const check::BeamCheck& b : c.beams) {
-    if (b.status == check::Status::within_tolerance && b.reason.reason == engine::Reason::deviation_within_tolerance) {
+    if (b.status == check::Status::within_tolerance &&
+        b.reason.reason == engine::Reason::deviation_within_tolerance) {
       continue;
     }
     if (!header) out << "\n";

@@ -197,12 +197,14 @@ Expected<fs::path> PlanIntake::move_to_checked(const fs::path& file, const std::
                                                const std::string& content_sha256) {
   const fs::path destination = folders_.checked_plans / (uid + "." + content_sha256.substr(0, 16) + ".dcm");
   std::error_code ec;
+  // No directory fsync here: the history record is the commit point, so if a power cut undoes this
+  // move, the file is found in the inbox again, recognised by its hash and only moved.
   // The same name means the same bytes (the hash is in it): a copy already kept is enough.
   if (fs::exists(destination, ec)) {
-    if (auto removed = remove_file_durably(file); !removed) return removed.error();
+    if (auto removed = remove_file_durably(file, DirectorySync::deferred); !removed) return removed.error();
     return destination;
   }
-  return move_file_durably(file, destination, OnExisting::replace);
+  return move_file_durably(file, destination, OnExisting::replace, DirectorySync::deferred);
 }
 
 IntakeResult PlanIntake::take(const fs::path& file) {
@@ -285,16 +287,18 @@ IntakeResult PlanIntake::take(const fs::path& file) {
   // 1. Results, atomically. A crash after this and before the record redoes the check, which
   //    writes the same results again and records once.
   const fs::path json_file = folders_.results / (outcome.sop_instance_uid + ".json");
-  if (auto written = write_file_atomically(json_file, outcome.json_text); !written) {
+  if (auto written = write_file_atomically(json_file, outcome.json_text, DirectorySync::deferred); !written) {
     return fail(file, written.error().message());
   }
   if (outcome.html_text) {
     if (auto written = write_file_atomically(folders_.results / (outcome.sop_instance_uid + ".html"),
-                                             *outcome.html_text);
+                                             *outcome.html_text, DirectorySync::deferred);
         !written) {
       return fail(file, written.error().message());
     }
   }
+  // Both names durable before the record says they exist.
+  if (auto synced = sync_directory(folders_.results); !synced) return fail(file, synced.error().message());
 
   // 2. The record: the commit point of the check.
   NewCheck check;

@@ -99,7 +99,7 @@ Expected<fs::path> ensure_private_directory(const fs::path& dir) {
   return dir;
 }
 
-Expected<fs::path> write_file_atomically(const fs::path& target, std::string_view content) {
+Expected<fs::path> write_file_atomically(const fs::path& target, std::string_view content, DirectorySync sync) {
   const fs::path dir = parent_or_dot(target);
   // A dot-name in the same directory: invisible to the folder watcher, and rename stays atomic.
   std::string pattern = (dir / ("." + target.filename().string() + ".XXXXXX")).string();
@@ -115,15 +115,19 @@ Expected<fs::path> write_file_atomically(const fs::path& target, std::string_vie
   if (!write_all(fd.get(), content)) return fail("cannot write");
   if (::fsync(fd.get()) != 0) return fail("cannot flush to disk");
   if (::rename(temporary.c_str(), target.c_str()) != 0) return fail("cannot rename into place");
-  if (auto synced = sync_directory(dir); !synced) return synced.error();
+  if (sync == DirectorySync::now) {
+    if (auto synced = sync_directory(dir); !synced) return synced.error();
+  }
   return target;
 }
 
-Expected<fs::path> move_file_durably(const fs::path& from, const fs::path& to, OnExisting on_existing) {
+Expected<fs::path> move_file_durably(const fs::path& from, const fs::path& to, OnExisting on_existing,
+                                     DirectorySync sync) {
   const unsigned flags = on_existing == OnExisting::pick_free_name ? RENAME_NOREPLACE : 0U;
   for (int n = 1; n < 10000; ++n) {
     const fs::path destination = numbered_name(to, n);
     if (::renameat2(AT_FDCWD, from.c_str(), AT_FDCWD, destination.c_str(), flags) == 0) {
+      if (sync == DirectorySync::deferred) return destination;
       if (auto synced = sync_directory(parent_or_dot(destination)); !synced) return synced.error();
       if (parent_or_dot(from) != parent_or_dot(destination)) {
         if (auto synced = sync_directory(parent_or_dot(from)); !synced) return synced.error();
@@ -141,8 +145,9 @@ Expected<fs::path> move_file_durably(const fs::path& from, const fs::path& to, O
   return io_error(to, "no free name", EEXIST);
 }
 
-Expected<fs::path> remove_file_durably(const fs::path& file) {
+Expected<fs::path> remove_file_durably(const fs::path& file, DirectorySync sync) {
   if (::unlink(file.c_str()) != 0 && errno != ENOENT) return io_error(file, "cannot remove", errno);
+  if (sync == DirectorySync::deferred) return file;
   return sync_directory(parent_or_dot(file));
 }
 

@@ -59,7 +59,8 @@ TEST_F(Verdict, OutsideToleranceAndIndependentMu) {
 }
 
 TEST_F(Verdict, SmallContributorJudgedAgainstThePointTotal) {
-  plan::Plan plan = make_plan({{static_beam(1, 0), 200.0, 1.0, 100.0}, {static_beam(2, 180), 20.0, 1.0, 100.0}});
+  plan::Plan plan =
+      make_plan({{static_beam(1, 0), 200.0, 1.0, 100.0}, {static_beam(2, 180), 20.0, 1.0, 100.0}});
   const PlanCheck c = run(with_planned(plan, {1.0, 1.0 / 1.05}));
   const BeamCheck& small = c.beams[1];
   EXPECT_EQ(small.status, Status::within_tolerance) << small.reason.sentence;
@@ -67,16 +68,17 @@ TEST_F(Verdict, SmallContributorJudgedAgainstThePointTotal) {
   EXPECT_NEAR(*small.deviation_percent, 5.0, 1e-9);
   ASSERT_TRUE(small.point_total_planned_dose_gy);
   // The same 5 % on an equal-weight beam is outside tolerance.
-  const PlanCheck equal = run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0},
-                                                      {static_beam(2, 180), 100.0, 1.0, 100.0}}),
-                                           {1.0, 1.0 / 1.05}));
+  const PlanCheck equal = run(with_planned(
+      make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}, {static_beam(2, 180), 100.0, 1.0, 100.0}}),
+      {1.0, 1.0 / 1.05}));
   EXPECT_EQ(equal.beams[1].status, Status::outside_tolerance);
 }
 
 TEST_F(Verdict, SetupBeamsAndBeamsWithoutMuAreSkipped) {
   plan::Beam setup = static_beam(2, 0);
   setup.delivery_type = "SETUP";
-  plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}, {setup, 0.0, 0.0, 100.0},
+  plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0},
+                               {setup, 0.0, 0.0, 100.0},
                                {static_beam(3, 0), 0.0, 0.0, 100.0}});
   plan = with_planned(plan, {1.0});
   const PlanCheck c = run(plan);
@@ -103,7 +105,8 @@ TEST_F(Verdict, EngineReasonsMakeThePlanNotChecked) {
   other.machine_name = "NOWHERE-LINAC";
   plan::Beam electron = static_beam(3, 0);
   electron.radiation_type = "ELECTRON";
-  const PlanCheck c = run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}, {other, 100.0, 1.0, 100.0},
+  const PlanCheck c = run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0},
+                                                  {other, 100.0, 1.0, 100.0},
                                                   {electron, 100.0, 1.0, 100.0}}),
                                        {1.0}));
   EXPECT_EQ(c.beams[0].status, Status::within_tolerance);
@@ -157,7 +160,9 @@ TEST_F(Verdict, PointNearTheFieldEdge) {
       run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {45, 0, 0}), {1.0}));
   EXPECT_EQ(c.beams[0].reason.reason, Reason::point_near_field_edge);
   options.policy.min_edge_distance_cm = 0.4;
-  EXPECT_EQ(run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {45, 0, 0}), {1.0})).beams[0].status,
+  EXPECT_EQ(run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {45, 0, 0}), {1.0}))
+                .beams[0]
+                .status,
             Status::within_tolerance);
 }
 
@@ -182,15 +187,17 @@ TEST_F(Verdict, InconsistentDepth) {
 TEST_F(Verdict, WedgeWithOffAxisPointIsUnsupportedGeometry) {
   plan::Beam beam = static_beam(1, 0, 100.0, 100.0);
   beam.wedges.push_back({1, "STANDARD", "W30", 30.0, std::nullopt, 0.0});
-  EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0})).beams[0].reason.reason,
-            Reason::unsupported_geometry);
+  EXPECT_EQ(
+      run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0})).beams[0].reason.reason,
+      Reason::unsupported_geometry);
   EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {10, 0, 0}), {1.0})).beams[0].status,
             Status::within_tolerance);
 }
 
 TEST_F(Verdict, CategoriesAndTolerances) {
   // Off-axis 30 mm > 20 mm: complex, 3 %.
-  const PlanCheck off = run(with_planned(make_plan({{static_beam(1, 0, 100, 100), 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0}));
+  const PlanCheck off =
+      run(with_planned(make_plan({{static_beam(1, 0, 100, 100), 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0}));
   EXPECT_EQ(off.beams[0].category, FieldCategory::complex);
   EXPECT_DOUBLE_EQ(*off.beams[0].tolerance_percent, 3.0);
   // Equivalent depth 20 % beyond the geometric depth: heterogeneous, 3 % for a simple field.
@@ -201,18 +208,21 @@ TEST_F(Verdict, CategoriesAndTolerances) {
   EXPECT_DOUBLE_EQ(*h.beams[0].tolerance_percent, 3.0);
   // The policy's numbers are used.
   options.policy.simple_percent = 0.5;
-  const PlanCheck strict = run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}), {1.0 / 1.01}));
+  const PlanCheck strict =
+      run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}), {1.0 / 1.01}));
   EXPECT_EQ(strict.beams[0].status, Status::outside_tolerance);
 }
 
 TEST_F(Verdict, DoseReferenceTotals) {
   plan::Plan plan = with_planned(
-      make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}, {static_beam(2, 180), 120.0, 1.0, 100.0}}), {1.0, 1.02});
+      make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}, {static_beam(2, 180), 120.0, 1.0, 100.0}}),
+      {1.0, 1.02});
   const PlanCheck c = run(plan);
   ASSERT_EQ(c.dose_references.size(), 1u);
   const DoseReferenceCheck& r = c.dose_references[0];
   ASSERT_EQ(r.contributions.size(), 2u);
-  const double planned = *plan.fraction_groups[0].beams[0].dose_gy + *plan.fraction_groups[0].beams[1].dose_gy;
+  const double planned =
+      *plan.fraction_groups[0].beams[0].dose_gy + *plan.fraction_groups[0].beams[1].dose_gy;
   EXPECT_NEAR(r.planned_dose_gy, planned, 1e-12);
   ASSERT_TRUE(r.computed_dose_gy);
   EXPECT_NEAR(*r.computed_dose_gy, *c.beams[0].computed_dose_gy + *c.beams[1].computed_dose_gy, 1e-12);

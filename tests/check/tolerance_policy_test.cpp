@@ -2,8 +2,8 @@
 
 #include "support/paths.hpp"
 
-#include <fstream>
 #include <gtest/gtest.h>
+#include <fstream>
 
 namespace countersign::check {
 namespace {
@@ -20,7 +20,8 @@ struct PolicyFile : ::testing::Test {
 };
 
 TEST_F(PolicyFile, OverridesKeepOtherDefaults) {
-  const auto p = load_policy(write(dir, "[tolerance_percent]\nsimple = 1.5\n[limits]\nmin_edge_distance_cm = 0.5\n"));
+  const auto p =
+      load_policy(write(dir, "[tolerance_percent]\nsimple = 1.5\n[limits]\nmin_edge_distance_cm = 0.5\n"));
   ASSERT_TRUE(p) << p.error().message();
   EXPECT_DOUBLE_EQ(p->simple_percent, 1.5);
   EXPECT_DOUBLE_EQ(p->min_edge_distance_cm, 0.5);

@@ -71,22 +71,40 @@ TEST(CheckCli, JsonKeys) {
   for (const char* key : {"plans", "errors", "exit_code", "caution"}) EXPECT_TRUE(j.contains(key)) << key;
   ASSERT_EQ(j.at("plans").size(), 2u);
   for (const auto& plan : j.at("plans")) {
-    for (const char* key : {"source_file", "sop_instance_uid", "patient_id", "plan_label", "status", "reason",
-                            "explanation", "beams", "dose_references", "beamdata_sha256", "tolerance_policy"}) {
+    for (const char* key :
+         {"source_file", "sop_instance_uid", "patient_id", "plan_label", "status", "reason", "explanation",
+          "beams", "dose_references", "beamdata_sha256", "tolerance_policy"}) {
       EXPECT_TRUE(plan.contains(key)) << key;
     }
     EXPECT_EQ(plan.at("beamdata_sha256").get<std::string>().size(), 64u);
     for (const auto& beam : plan.at("beams")) {
-      for (const char* key : {"beam_number", "beam_name", "status", "reason", "explanation", "planned_dose_gy",
-                              "computed_dose_gy", "deviation_percent", "tolerance_percent", "meterset_mu",
-                              "independent_mu", "method", "depth_cm", "depth_source", "spd_cm", "off_axis_cm",
-                              "fields", "factors", "segments", "approximations", "provenance"}) {
+      for (const char* key : {"beam_number",
+                              "beam_name",
+                              "status",
+                              "reason",
+                              "explanation",
+                              "planned_dose_gy",
+                              "computed_dose_gy",
+                              "deviation_percent",
+                              "tolerance_percent",
+                              "meterset_mu",
+                              "independent_mu",
+                              "method",
+                              "depth_cm",
+                              "depth_source",
+                              "spd_cm",
+                              "off_axis_cm",
+                              "fields",
+                              "factors",
+                              "segments",
+                              "approximations",
+                              "provenance"}) {
         EXPECT_TRUE(beam.contains(key)) << key;
       }
       EXPECT_TRUE(beam.at("method") == "tmr" || beam.at("method") == "pdd");
       if (!beam.at("modulated").get<bool>()) {
-        for (const char* key : {"output_cgy_per_mu", "sc", "sp", "tmr", "pdd_percent", "mayneord_f", "oar", "wedge",
-                                "tray", "inverse_square"}) {
+        for (const char* key : {"output_cgy_per_mu", "sc", "sp", "tmr", "pdd_percent", "mayneord_f", "oar",
+                                "wedge", "tray", "inverse_square"}) {
           EXPECT_TRUE(beam.at("factors").contains(key)) << key;
         }
         EXPECT_DOUBLE_EQ(beam.at("factors").at("wedge").get<double>(), 0.660);  // W30 of the demo library
@@ -114,7 +132,8 @@ TEST(CheckCli, ExtendedSsdUsesThePddForm) {
 
 // A bad file is reported (file and attribute with tag) and the other plans are still checked.
 TEST(CheckCli, BadFileDoesNotStopTheOthers) {
-  const std::string bad = (test::source_dir() / "testdata" / "malformed" / "missing_beam_sequence.dcm").string();
+  const std::string bad =
+      (test::source_dir() / "testdata" / "malformed" / "missing_beam_sequence.dcm").string();
   const auto out = check(test::quote(bad) + " " + plan_path("fern_half_beam.dcm"));
   EXPECT_EQ(out.exit_code, 3);
   EXPECT_NE(out.err.find("missing_beam_sequence.dcm"), std::string::npos) << out.err;
@@ -136,7 +155,8 @@ TEST(CheckCli, UsageAndConfigurationErrors) {
 struct LibraryCopy : ::testing::Test {
   fs::path dir = test::make_temp_dir("countersign-library");
   void SetUp() override {
-    fs::copy(test::source_dir() / "beamdata" / "FERN-LINAC-1", dir / "FERN-LINAC-1", fs::copy_options::recursive);
+    fs::copy(test::source_dir() / "beamdata" / "FERN-LINAC-1", dir / "FERN-LINAC-1",
+             fs::copy_options::recursive);
   }
   ~LibraryCopy() override { fs::remove_all(dir); }
   void edit_manifest(const std::string& from, const std::string& to) {
@@ -153,7 +173,8 @@ struct LibraryCopy : ::testing::Test {
 // doses rise by 5 % and the simple beams fall outside their 2 % tolerance.
 TEST_F(LibraryCopy, ASecondLibraryIsUsedUnchanged) {
   edit_manifest("output_cgy_per_mu = 1\\.000", "output_cgy_per_mu = 1.050");
-  const auto out = check("--json --beamdata " + test::quote(dir.string()) + " " + plan_path("fern_dosepoint_beam.dcm"));
+  const auto out =
+      check("--json --beamdata " + test::quote(dir.string()) + " " + plan_path("fern_dosepoint_beam.dcm"));
   EXPECT_EQ(out.exit_code, 1) << out.err;
   const auto beam = json_of(out).at("plans").at(0).at("beams").at(0);
   EXPECT_NEAR(beam.at("deviation_percent").get<double>(), 5.0, 0.2);
@@ -161,7 +182,8 @@ TEST_F(LibraryCopy, ASecondLibraryIsUsedUnchanged) {
 
 TEST_F(LibraryCopy, UnknownMachineIsNotChecked) {
   edit_manifest("machine = \"FERN-LINAC-1\"", "machine = \"OTHER-LINAC-2\"");
-  const auto out = check("--json --beamdata " + test::quote(dir.string()) + " " + plan_path("fern_half_beam.dcm"));
+  const auto out =
+      check("--json --beamdata " + test::quote(dir.string()) + " " + plan_path("fern_half_beam.dcm"));
   EXPECT_EQ(out.exit_code, 2) << out.err;
   const auto plan = json_of(out).at("plans").at(0);
   EXPECT_EQ(plan.at("status"), "not_checked");
@@ -171,7 +193,8 @@ TEST_F(LibraryCopy, UnknownMachineIsNotChecked) {
 TEST(CheckCli, PolicyFileChangesTheVerdict) {
   const fs::path dir = test::make_temp_dir("countersign-policy");
   std::ofstream(dir / "loose.toml") << "[tolerance_percent]\nsimple = 10.0\n";
-  const auto out = check("--policy " + test::quote((dir / "loose.toml").string()) + " " + plan_path("fern_box_4field.dcm"));
+  const auto out = check("--policy " + test::quote((dir / "loose.toml").string()) + " " +
+                         plan_path("fern_box_4field.dcm"));
   EXPECT_EQ(out.exit_code, 0) << out.out;
   fs::remove_all(dir);
 }

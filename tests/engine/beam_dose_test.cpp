@@ -7,6 +7,8 @@
 
 #include <gtest/gtest.h>
 
+#include <set>
+
 namespace countersign::engine {
 namespace {
 
@@ -49,7 +51,8 @@ TEST_F(Fixture, StaticIsocentricBeamUsesThePlansDepth) {
   EXPECT_NEAR(r.point.spd_mm, 1000.0, 1e-9);
   EXPECT_TRUE(r.point_in_field);
   EXPECT_NEAR(r.edge_distance_mm, 50.0, 1e-9);
-  const double expected = compute_point_dose(data(), on_axis_inputs(150.0, 9.5, 100.0, 100.0 - 9.5, 10.0)).dose_cgy;
+  const double expected =
+      compute_point_dose(data(), on_axis_inputs(150.0, 9.5, 100.0, 100.0 - 9.5, 10.0)).dose_cgy;
   EXPECT_NEAR(r.computed_dose_gy, expected / 100.0, 1e-12);
   EXPECT_EQ(r.segments.size(), 1u);
 }
@@ -79,12 +82,13 @@ TEST_F(Fixture, OpposedBeamsDepthsSumToSeparation) {
   plan::Beam right = static_beam(2, 270);
   test_fixtures::set_ssd(left, 900.0);
   test_fixtures::set_ssd(right, 900.0);
-  const plan::Plan plan = make_plan({{left, 100.0, 1.0, std::nullopt}, {right, 100.0, 1.0, std::nullopt}}, {30, 0, 0});
+  const plan::Plan plan =
+      make_plan({{left, 100.0, 1.0, std::nullopt}, {right, 100.0, 1.0, std::nullopt}}, {30, 0, 0});
   const BeamDose a = run(plan, 0);
   const BeamDose b = run(plan, 1);
   ASSERT_FALSE(a.problem);
   ASSERT_FALSE(b.problem);
-  EXPECT_NEAR(a.depth.depth_mm, 70.0, 1e-9);   // gantry 90: source on the patient's left
+  EXPECT_NEAR(a.depth.depth_mm, 70.0, 1e-9);  // gantry 90: source on the patient's left
   EXPECT_NEAR(b.depth.depth_mm, 130.0, 1e-9);
   EXPECT_NEAR(a.depth.depth_mm + b.depth.depth_mm, 200.0, 1e-9);
 }
@@ -165,7 +169,8 @@ TEST_F(Fixture, UnknownMachineEnergyAndRadiation) {
 }
 
 TEST_F(Fixture, UnsupportedPatientPosition) {
-  const BeamDose r = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {0, 0, 0}, "ISOCENTRIC", "HFDL"));
+  const BeamDose r =
+      run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}, {0, 0, 0}, "ISOCENTRIC", "HFDL"));
   ASSERT_TRUE(r.problem);
   EXPECT_EQ(r.problem->reason, Reason::unsupported_patient_position);
   EXPECT_NE(r.problem->sentence.find("(0018,5100)"), std::string::npos);
@@ -340,6 +345,54 @@ TEST_F(Fixture, ProvenanceNamesTheTables) {
   ASSERT_EQ(r.dose.factors.tmr.lookup->axes.size(), 2u);
   EXPECT_NEAR(r.dose.factors.tmr.lookup->axes[1].query, 2.0 * 15.0 * 10.0 / 25.0, 1e-12);  // 15x10 -> 12 cm
   EXPECT_EQ(r.first_extrapolated(), nullptr);
+}
+
+}  // namespace
+}  // namespace countersign::engine
+
+namespace countersign::engine {
+namespace {
+
+// Every reason has its own snake_case code.
+TEST(Reason, CodesAreDistinctSnakeCase) {
+  std::set<std::string_view> seen;
+  for (int i = 0; i <= static_cast<int>(Reason::nothing_to_check); ++i) {
+    const std::string_view code = reason_code(static_cast<Reason>(i));
+    EXPECT_TRUE(seen.insert(code).second) << code;
+    EXPECT_NE(code, "unknown_reason");
+    for (const char c : code) EXPECT_TRUE((c >= 'a' && c <= 'z') || c == '_') << code;
+  }
+  EXPECT_TRUE(is_skip(Reason::setup_beam));
+  EXPECT_TRUE(is_skip(Reason::no_meterset));
+  EXPECT_FALSE(is_skip(Reason::unknown_machine));
+}
+
+// A modulated beam needs the MLC transmission of the library; without it the beam is not computed.
+TEST(ModulatedBeam, WithoutMlcTransmissionIsMissingBeamData) {
+  beamdata::Library library = test_fixtures::test_library();
+  library.machines.front().beams.front().mlc_transmission.reset();
+  plan::Beam beam = test_fixtures::static_beam(1, 0);
+  plan::BeamLimitingDevice mlc{"MLCX", std::nullopt, 2, {-50.0, 0.0, 50.0}};
+  beam.beam_limiting_devices.push_back(mlc);
+  plan::ControlPoint c0 = beam.control_points[0];
+  c0.devices.push_back({"MLCX", {-50, -50, 50, 50}});
+  plan::ControlPoint c1 = c0;
+  c1.index = 1;
+  c1.cumulative_meterset_weight = 0.5;
+  plan::ControlPoint c2 = c1;
+  c2.index = 2;
+  c2.devices.back().positions_mm = {-50, 0, 0, 50};
+  plan::ControlPoint c3 = c2;
+  c3.index = 3;
+  c3.cumulative_meterset_weight = 1.0;
+  c3.dose_reference_coefficients.push_back({1, 1.0});
+  beam.control_points = {c0, c1, c2, c3};
+  const plan::Plan plan = test_fixtures::make_plan({{beam, 100.0, 1.0, 100.0}});
+  const auto point = select_dose_point(plan, plan.beams[0], plan.fraction_groups[0].beams[0]);
+  const BeamDose r =
+      compute_beam_dose(plan, plan.beams[0], plan.fraction_groups[0].beams[0], *point, library, {});
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->reason, Reason::missing_beam_data);
 }
 
 }  // namespace

@@ -18,8 +18,12 @@ namespace countersign::test_fixtures {
 inline constexpr const char* machine_name = "TEST-LINAC";
 inline constexpr double dmax_cm = 1.5;
 
-inline double model_sc(double s) { return (1.0 + 0.15 * (1.0 - std::exp(-s / 10.0))) / (1.0 + 0.15 * (1.0 - std::exp(-1.0))); }
-inline double model_sp(double s) { return (1.0 + 0.12 * (1.0 - std::exp(-s / 12.0))) / (1.0 + 0.12 * (1.0 - std::exp(-10.0 / 12.0))); }
+inline double model_sc(double s) {
+  return (1.0 + 0.15 * (1.0 - std::exp(-s / 10.0))) / (1.0 + 0.15 * (1.0 - std::exp(-1.0)));
+}
+inline double model_sp(double s) {
+  return (1.0 + 0.12 * (1.0 - std::exp(-s / 12.0))) / (1.0 + 0.12 * (1.0 - std::exp(-10.0 / 12.0)));
+}
 inline double model_tmr(double d, double s) {
   if (d <= dmax_cm) return 1.0;  // flat build-up keeps the test tables simple
   const double x = d - dmax_cm;
@@ -56,8 +60,10 @@ inline beamdata::BeamData test_beam() {
       pdd.push_back(beamdata::pdd_from_tmr(model_tmr(d, s_d), d, f, dmax_cm, model_sp(s_d), model_sp(s_dm)));
     }
   }
-  b.tmr = beamdata::Table2D("test/tmr.csv", "tmr", "depth_cm", depth_nodes_cm, "field_cm", field_nodes_cm, tmr);
-  b.pdd = beamdata::Table2D("test/pdd.csv", "pdd", "depth_cm", depth_nodes_cm, "field_cm", field_nodes_cm, pdd);
+  b.tmr =
+      beamdata::Table2D("test/tmr.csv", "tmr", "depth_cm", depth_nodes_cm, "field_cm", field_nodes_cm, tmr);
+  b.pdd =
+      beamdata::Table2D("test/pdd.csv", "pdd", "depth_cm", depth_nodes_cm, "field_cm", field_nodes_cm, pdd);
   const std::vector<double> oar_depths{0, 5, 10, 20, 30, 40};
   const std::vector<double> oar_radii{0, 2, 5, 10, 15, 20, 25};
   std::vector<double> oar;
@@ -67,9 +73,10 @@ inline beamdata::BeamData test_beam() {
   b.oar = beamdata::Table2D("test/oar.csv", "oar", "depth_cm", oar_depths, "off_axis_cm", oar_radii, oar);
   b.mlc_transmission = 0.015;
   b.wedges.push_back({"W30", 30.0, beamdata::WedgeKind::physical, 0.70, std::nullopt});
-  b.wedges.push_back({"W45", 45.0, beamdata::WedgeKind::physical, std::nullopt,
-                      beamdata::Table2D("test/wf_w45.csv", "wedge_factor", "depth_cm", {1.5, 10, 20}, "field_cm",
-                                        {5, 10, 20}, {0.55, 0.56, 0.57, 0.56, 0.57, 0.58, 0.57, 0.58, 0.59})});
+  b.wedges.push_back(
+      {"W45", 45.0, beamdata::WedgeKind::physical, std::nullopt,
+       beamdata::Table2D("test/wf_w45.csv", "wedge_factor", "depth_cm", {1.5, 10, 20}, "field_cm",
+                         {5, 10, 20}, {0.55, 0.56, 0.57, 0.56, 0.57, 0.58, 0.57, 0.58, 0.59})});
   b.trays.push_back({"TRAY-T", 0.97});
   return b;
 }
@@ -87,7 +94,8 @@ inline beamdata::Library test_library() {
 }
 
 // One static beam, jaws +-half_field_mm, isocentre at the origin, HFS, gantry 0.
-inline plan::Beam static_beam(int number, double gantry_deg, double half_x_mm = 50.0, double half_y_mm = 50.0) {
+inline plan::Beam static_beam(int number, double gantry_deg, double half_x_mm = 50.0,
+                              double half_y_mm = 50.0) {
   plan::Beam beam;
   beam.number = number;
   beam.name = "B" + std::to_string(number);
@@ -128,7 +136,8 @@ struct BeamSpec {
 };
 
 inline plan::Plan make_plan(std::vector<BeamSpec> beams, plan::PointMm point = {0, 0, 0},
-                            const std::string& technique = "ISOCENTRIC", const std::string& position = "HFS") {
+                            const std::string& technique = "ISOCENTRIC",
+                            const std::string& position = "HFS") {
   plan::Plan p;
   p.source_file = "hand-built";
   p.sop_instance_uid = "2.25.1";

@@ -25,9 +25,9 @@ beamdata::BeamData hand_beam() {
   b.sc = beamdata::Table1D("sc.csv", "sc", "field_cm", fields, {0.970, 1.000, 1.020, 1.030});
   b.sp = beamdata::Table1D("sp.csv", "sp", "field_cm", fields, {0.980, 1.000, 1.010, 1.020});
   b.tmr = beamdata::Table2D("tmr.csv", "tmr", "depth_cm", depths, "field_cm", fields,
-                            {1.000, 1.000, 1.000, 1.000,   //
-                             0.900, 0.910, 0.915, 0.920,   //
-                             0.760, 0.780, 0.800, 0.810,   //
+                            {1.000, 1.000, 1.000, 1.000,  //
+                             0.900, 0.910, 0.915, 0.920,  //
+                             0.760, 0.780, 0.800, 0.810,  //
                              0.640, 0.660, 0.680, 0.690});
   b.pdd = beamdata::Table2D("pdd.csv", "pdd", "depth_cm", depths, "field_cm", fields,
                             {100.0, 100.0, 100.0, 100.0,  //
@@ -174,7 +174,8 @@ TEST(PointDose, FormalismsAgreeForConsistentData) {
         const double tmr = compute_point_dose(b, in).dose_cgy;
         in.method = Method::pdd;
         const double pdd = compute_point_dose(b, in).dose_cgy;
-        EXPECT_NEAR(pdd / tmr, 1.0, 0.01) << "SSD " << ssd_cm << " depth " << depth_cm << " field " << field_cm;
+        EXPECT_NEAR(pdd / tmr, 1.0, 0.01)
+            << "SSD " << ssd_cm << " depth " << depth_cm << " field " << field_cm;
         if (ssd_cm == 100.0) {
           EXPECT_NEAR(pdd / tmr, 1.0, 0.003);
         }

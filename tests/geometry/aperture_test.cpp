@@ -13,7 +13,8 @@ plan::Beam beam_with_mlc(int pairs, double leaf_width_mm) {
   plan::BeamLimitingDevice mlc;
   mlc.type = "MLCX";
   mlc.pair_count = pairs;
-  for (int i = 0; i <= pairs; ++i) mlc.leaf_boundaries_mm.push_back(-0.5 * pairs * leaf_width_mm + i * leaf_width_mm);
+  for (int i = 0; i <= pairs; ++i)
+    mlc.leaf_boundaries_mm.push_back(-0.5 * pairs * leaf_width_mm + i * leaf_width_mm);
   beam.beam_limiting_devices.push_back(mlc);
   return beam;
 }
@@ -44,7 +45,7 @@ TEST(Aperture, AsymmetricJawsAndEdgeDistance) {
   const auto a = build_aperture(plan::Beam{}, jaws(0, 100, -50, 50));  // half-beam block
   ASSERT_TRUE(a);
   EXPECT_DOUBLE_EQ(a->jaws().centre_offset_mm(), 50.0);
-  EXPECT_TRUE(a->contains(0.0, 0.0));                  // the axis lies on the X1 edge
+  EXPECT_TRUE(a->contains(0.0, 0.0));  // the axis lies on the X1 edge
   EXPECT_DOUBLE_EQ(a->distance_to_edge_mm(0.0, 0.0), 0.0);
   EXPECT_DOUBLE_EQ(a->distance_to_edge_mm(50.0, 0.0), 50.0);
   EXPECT_DOUBLE_EQ(a->distance_to_edge_mm(30.0, 40.0), 10.0);
@@ -65,10 +66,10 @@ TEST(Aperture, MlcShapeAreaPerimeterAndEdges) {
   EXPECT_NEAR(a->perimeter_mm(), 140.0, 1e-9);
   EXPECT_NEAR(a->equivalent_square_mm(), 4000.0 / 140.0, 1e-9);
   EXPECT_TRUE(a->contains(-10.0, 5.0));
-  EXPECT_FALSE(a->contains(10.0, 5.0));   // under the bank-B leaf of pair 3
-  EXPECT_FALSE(a->contains(0.0, 15.0));   // closed pair 4
-  EXPECT_NEAR(a->distance_to_edge_mm(-10.0, 5.0), 5.0, 1e-9);   // to the top edge of row 3 at y = 10
-  EXPECT_NEAR(a->distance_to_edge_mm(10.0, -5.0), 5.0, 1e-9);   // to the step at y = 0
+  EXPECT_FALSE(a->contains(10.0, 5.0));                        // under the bank-B leaf of pair 3
+  EXPECT_FALSE(a->contains(0.0, 15.0));                        // closed pair 4
+  EXPECT_NEAR(a->distance_to_edge_mm(-10.0, 5.0), 5.0, 1e-9);  // to the top edge of row 3 at y = 10
+  EXPECT_NEAR(a->distance_to_edge_mm(10.0, -5.0), 5.0, 1e-9);  // to the step at y = 0
 }
 
 TEST(Aperture, MlcEnvelopeReplacesMissingJaws) {

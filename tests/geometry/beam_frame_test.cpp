@@ -5,8 +5,8 @@
 
 #include <countersign/geometry/beam_frame.hpp>
 
-#include <Eigen/LU>
 #include <gtest/gtest.h>
+#include <Eigen/LU>
 
 namespace countersign::geometry {
 namespace {
@@ -91,7 +91,8 @@ TEST(BeamFrame, LocatesSourceDistanceAndOffAxisProjection) {
 TEST(BeamFrame, OpposedBeamsDepthsSumToSeparation) {
   const plan::PointMm point{30, 0, 0};
   const double ssd_mm = sad_mm - 100.0;
-  for (auto position : {PatientPosition::hfs, PatientPosition::ffp, PatientPosition::hfp, PatientPosition::ffs}) {
+  for (auto position :
+       {PatientPosition::hfs, PatientPosition::ffp, PatientPosition::hfp, PatientPosition::ffs}) {
     const BeamFrame left(position, {90, 0, 0}, {0, 0, 0}, sad_mm);
     const BeamFrame right(position, {270, 0, 0}, {0, 0, 0}, sad_mm);
     const double depth_a = left.locate(point).spd_mm - ssd_mm;

@@ -37,17 +37,17 @@ struct BeamCheck {
   int beam_number = 0;
   std::string beam_name;
   Status status = Status::not_checked;
-  engine::Finding reason;                      // code and sentence, for every status
+  engine::Finding reason;  // code and sentence, for every status
   std::optional<double> meterset_mu;
-  std::optional<double> planned_dose_gy;       // Beam Dose (300A,0084)
-  std::optional<double> computed_dose_gy;      // set whenever the engine computed a dose
-  std::optional<double> deviation_percent;     // 100 (computed - planned) / planned
-  std::optional<double> tolerance_percent;     // from the policy for this beam's category
-  std::optional<double> independent_mu;        // the MU this calculation needs for the planned dose
+  std::optional<double> planned_dose_gy;    // Beam Dose (300A,0084)
+  std::optional<double> computed_dose_gy;   // set whenever the engine computed a dose
+  std::optional<double> deviation_percent;  // 100 (computed - planned) / planned
+  std::optional<double> tolerance_percent;  // from the policy for this beam's category
+  std::optional<double> independent_mu;     // the MU this calculation needs for the planned dose
   std::optional<FieldCategory> category;
   Medium medium = Medium::homogeneous;
   std::optional<double> point_total_planned_dose_gy;  // all beams of the fraction group at this point
-  std::optional<engine::BeamDose> calculation;         // absent when no calculation was attempted
+  std::optional<engine::BeamDose> calculation;        // absent when no calculation was attempted
 };
 
 // One beam's part of a dose reference total.
@@ -61,14 +61,14 @@ struct Contribution {
 
 struct DoseReferenceCheck {
   int fraction_group_number = 0;
-  int number = 0;                          // Dose Reference Number (300A,0012)
+  int number = 0;  // Dose Reference Number (300A,0012)
   std::string description;
   std::optional<plan::PointMm> point_mm;
   double planned_dose_gy = 0.0;            // sum of the contributions
   std::optional<double> computed_dose_gy;  // set only when every contribution was computed
   std::optional<double> deviation_percent;
   std::vector<Contribution> contributions;
-  std::string note;                        // why there is no computed total, if there is none
+  std::string note;  // why there is no computed total, if there is none
 };
 
 struct PlanCheck {
@@ -84,13 +84,14 @@ struct PlanCheck {
   std::vector<DoseReferenceCheck> dose_references;
   std::string beamdata_root;
   std::string beamdata_sha256;
-  CheckOptions options;                    // what the check ran with (policy included)
+  CheckOptions options;  // what the check ran with (policy included)
 
   // 0 within, 1 outside, 2 not checked (DESIGN.md §6).
   [[nodiscard]] ExitCode exit_code() const;
 };
 
-[[nodiscard]] PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, const CheckOptions& options);
+[[nodiscard]] PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library,
+                                   const CheckOptions& options);
 
 // The verdict for one computed beam (exposed for tests and for `explain`): sets status, reason,
 // deviation, tolerance, category and independent MU from beam.calculation and beam.planned_dose_gy.

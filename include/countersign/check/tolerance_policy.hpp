@@ -38,16 +38,16 @@ struct TolerancePolicy {
   double modulated_heterogeneous_percent = 5.0;
 
   // What makes a field "complex" rather than "simple".
-  double simple_max_off_axis_cm = 2.0;        // point farther from the axis (isocentre plane)
-  double simple_max_jaw_offset_cm = 1.0;      // jaw rectangle centre farther from the axis
-  double simple_min_open_fraction = 0.95;     // MLC opening / jaw rectangle area below this
+  double simple_max_off_axis_cm = 2.0;                  // point farther from the axis (isocentre plane)
+  double simple_max_jaw_offset_cm = 1.0;                // jaw rectangle centre farther from the axis
+  double simple_min_open_fraction = 0.95;               // MLC opening / jaw rectangle area below this
   double heterogeneous_depth_difference_percent = 5.0;  // |equivalent - geometric| / geometric above this
 
   // Safety limits: beyond them the beam is not checked.
-  double min_edge_distance_cm = 1.0;          // static beams: point closer to a field edge (penumbra)
-  double max_depth_discrepancy_cm = 1.0;      // plan depth vs SPD - SSD, for points near the axis ...
-  double depth_check_max_off_axis_cm = 2.0;   // ... closer than this to it
-  double wedge_max_off_axis_cm = 2.0;         // wedged field: open-field OAR not valid farther out
+  double min_edge_distance_cm = 1.0;         // static beams: point closer to a field edge (penumbra)
+  double max_depth_discrepancy_cm = 1.0;     // plan depth vs SPD - SSD, for points near the axis ...
+  double depth_check_max_off_axis_cm = 2.0;  // ... closer than this to it
+  double wedge_max_off_axis_cm = 2.0;        // wedged field: open-field OAR not valid farther out
 
   // A beam giving less than this share of its point's planned dose is also judged against the
   // point's total (common practice, no source).

@@ -31,15 +31,15 @@ struct DepthUsed {
   double depth_mm = 0.0;
   DepthSource source = DepthSource::derived_spd_minus_ssd;
   DepthChoice kind = DepthChoice::planned;
-  std::string description;                       // one sentence for the report
-  std::optional<double> plan_depth_mm;           // the plan's Beam Dose Point Depth for this point
+  std::string description;                         // one sentence for the report
+  std::optional<double> plan_depth_mm;             // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
-  std::optional<double> spd_minus_ssd_mm;        // the flat-surface depth, when the SSD is known
+  std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
 };
 
 // Facts the tolerance policy sorts beams by.
 struct BeamFeatures {
-  bool modulated = false;               // more than one segment, or a moving gantry
+  bool modulated = false;  // more than one segment, or a moving gantry
   bool wedged = false;
   bool tray = false;
   bool blocks = false;                  // block shapes present (not modelled)
@@ -49,7 +49,7 @@ struct BeamFeatures {
 
 // One part of the meterset delivered with one aperture and one beam direction.
 struct Segment {
-  int from_control_point = 0;           // the control point index the part starts at
+  int from_control_point = 0;  // the control point index the part starts at
   double meterset_mu = 0.0;
   geometry::BeamAngles angles;
   geometry::PointInBeam point;
@@ -69,28 +69,28 @@ struct BeamDose {
   std::optional<Finding> problem;
   bool dose_computed = false;
 
-  const beamdata::Machine* machine = nullptr;   // points into the library passed in
+  const beamdata::Machine* machine = nullptr;  // points into the library passed in
   const beamdata::BeamData* beam_data = nullptr;
   DosePoint dose_point;
   std::optional<geometry::PatientPosition> patient_position;
-  geometry::BeamAngles angles;                  // control point 0
+  geometry::BeamAngles angles;  // control point 0
   plan::PointMm isocenter_mm{};
   double sad_mm = 0.0;
-  std::optional<double> ssd_mm;                 // control point 0's Source to Surface Distance
-  geometry::PointInBeam point;                  // the dose point seen from control point 0
+  std::optional<double> ssd_mm;  // control point 0's Source to Surface Distance
+  geometry::PointInBeam point;   // the dose point seen from control point 0
   DepthUsed depth;
-  geometry::Aperture aperture;                  // control point 0 (the field of a static beam)
-  bool point_in_field = false;                  // inside the aperture of control point 0
-  double edge_distance_mm = 0.0;                // to the nearest edge of that aperture (isocentre plane)
+  geometry::Aperture aperture;    // control point 0 (the field of a static beam)
+  bool point_in_field = false;    // inside the aperture of control point 0
+  double edge_distance_mm = 0.0;  // to the nearest edge of that aperture (isocentre plane)
   Method method = Method::tmr;
-  std::string method_reason;                    // why this formalism
-  DoseInputs inputs;                            // static beam: the inputs of `dose`
-  PointDose dose;                               // static beam: the dose and its factors
-  std::vector<Segment> segments;                // modulated beam: each part (static beam: its one part)
+  std::string method_reason;      // why this formalism
+  DoseInputs inputs;              // static beam: the inputs of `dose`
+  PointDose dose;                 // static beam: the dose and its factors
+  std::vector<Segment> segments;  // modulated beam: each part (static beam: its one part)
   BeamFeatures features;
   double meterset_mu = 0.0;
   double computed_dose_gy = 0.0;
-  std::vector<std::string> approximations;      // sentences
+  std::vector<std::string> approximations;  // sentences
 
   // The first extrapolated factor in any part, or nullptr.
   [[nodiscard]] const Factor* first_extrapolated() const;

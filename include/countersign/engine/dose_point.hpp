@@ -35,11 +35,11 @@ enum class DepthChoice { planned, equivalent };
 
 // Where the depth came from: one of the three DICOM layouts, or derived by a stated method.
 enum class DepthSource {
-  referenced_beam_item,           // Beam Dose Point Depth in the fraction group's Referenced Beam item
-  fraction_verification_item,     // in its Beam Dose Verification Control Point Sequence (300A,008C)
-  beam_dose_reference_item,       // in the beam's Referenced Dose Reference item (300C,0050)
-  derived_from_dose_point_ssd,    // ray length to the point minus Beam Dose Point SSD (300A,008A)
-  derived_spd_minus_ssd,          // SPD − SSD of control point 0, flat surface
+  referenced_beam_item,         // Beam Dose Point Depth in the fraction group's Referenced Beam item
+  fraction_verification_item,   // in its Beam Dose Verification Control Point Sequence (300A,008C)
+  beam_dose_reference_item,     // in the beam's Referenced Dose Reference item (300C,0050)
+  derived_from_dose_point_ssd,  // ray length to the point minus Beam Dose Point SSD (300A,008A)
+  derived_spd_minus_ssd,        // SPD − SSD of control point 0, flat surface
 };
 [[nodiscard]] std::string_view to_code(DepthSource source);
 

@@ -36,16 +36,16 @@ struct DoseInputs {
   double field_at_isocentre_cm = 0.0;  // equivalent square of the irradiated field at the isocentre plane
   const beamdata::WedgeData* wedge = nullptr;  // the wedge in the beam (library data), or none
   const beamdata::TrayData* tray = nullptr;    // the tray in the beam, or none
-  double transmission = 1.0;           // 1 in the open field; the MLC transmission under closed leaves
+  double transmission = 1.0;  // 1 in the open field; the MLC transmission under closed leaves
 };
 
 // How a factor's value was obtained.
 enum class FactorBasis {
-  table,             // interpolated in a table; lookup holds the provenance
-  manifest_constant, // a constant from machine.toml (wedge or tray factor, MLC transmission)
-  formula,           // computed from distances (inverse square, Mayneord F)
-  not_applicable,    // not part of this beam or this formalism: 1
-  on_axis_unity,     // OAR taken as 1: point on the central axis and the library has no OAR table
+  table,              // interpolated in a table; lookup holds the provenance
+  manifest_constant,  // a constant from machine.toml (wedge or tray factor, MLC transmission)
+  formula,            // computed from distances (inverse square, Mayneord F)
+  not_applicable,     // not part of this beam or this formalism: 1
+  on_axis_unity,      // OAR taken as 1: point on the central axis and the library has no OAR table
 };
 [[nodiscard]] std::string_view to_code(FactorBasis basis);
 
@@ -58,25 +58,25 @@ struct Factor {
 
 // Square-field sides (cm) at each plane the formulas use.
 struct FieldSizes {
-  double collimator_cm = 0.0;            // s_c, jaws at the isocentre
-  double isocentre_cm = 0.0;             // irradiated field at the isocentre plane
-  double surface_cm = 0.0;               // s_s, at the SSD
-  double point_cm = 0.0;                 // s_d, at the point's distance
-  double normalisation_depth_cm = 0.0;   // s_d0, at SSD + dmax (PDD form)
+  double collimator_cm = 0.0;           // s_c, jaws at the isocentre
+  double isocentre_cm = 0.0;            // irradiated field at the isocentre plane
+  double surface_cm = 0.0;              // s_s, at the SSD
+  double point_cm = 0.0;                // s_d, at the point's distance
+  double normalisation_depth_cm = 0.0;  // s_d0, at SSD + dmax (PDD form)
 };
 
 struct DoseFactors {
   double output_cgy_per_mu = 0.0;
-  Factor calibration_depth;   // TMR(d_c, s_ref) or PDD(d_c, s_ref)/100: the output divides by it
+  Factor calibration_depth;  // TMR(d_c, s_ref) or PDD(d_c, s_ref)/100: the output divides by it
   Factor sc;
   Factor sp;
-  Factor tmr;                 // TMR form
-  Factor pdd;                 // PDD form, as a fraction (table percent / 100) at the table's SSD
-  Factor mayneord_f;          // PDD form
+  Factor tmr;         // TMR form
+  Factor pdd;         // PDD form, as a fraction (table percent / 100) at the table's SSD
+  Factor mayneord_f;  // PDD form
   Factor oar;
   Factor wedge;
   Factor tray;
-  Factor transmission;        // MLC transmission when the point is under the leaves
+  Factor transmission;  // MLC transmission when the point is under the leaves
   Factor inverse_square;
 };
 

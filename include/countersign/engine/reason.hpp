@@ -14,29 +14,29 @@ enum class Reason {
   deviation_within_tolerance_of_point_total,  // a small contributor judged against its point's total
   deviation_exceeds_tolerance,
   // Listed and skipped, never judged.
-  setup_beam,            // Treatment Delivery Type is not TREATMENT
-  no_meterset,           // no Beam Meterset, or zero MU
+  setup_beam,   // Treatment Delivery Type is not TREATMENT
+  no_meterset,  // no Beam Meterset, or zero MU
   // Not checked.
   unknown_machine,
   unknown_energy,
-  unsupported_radiation,         // electrons, protons, ... (or the library has no such beams)
-  unsupported_technique,         // e.g. Primary Dosimeter Unit MINUTE
+  unsupported_radiation,  // electrons, protons, ... (or the library has no such beams)
+  unsupported_technique,  // e.g. Primary Dosimeter Unit MINUTE
   unsupported_patient_position,
-  unsupported_accessory,         // compensator, applicator, bolus with a derived depth, ...
-  unknown_accessory,             // a wedge or tray the library does not have
-  unsupported_geometry,          // MLCY, point at or behind the source, wedge with an off-axis point, ...
-  sad_mismatch,                  // the plan's Source-Axis Distance differs from the machine's
-  missing_plan_data,             // an input the dose depends on is absent from the plan
-  missing_beam_data,             // an optional table the calculation needs is absent (OAR, MLC transmission)
+  unsupported_accessory,  // compensator, applicator, bolus with a derived depth, ...
+  unknown_accessory,      // a wedge or tray the library does not have
+  unsupported_geometry,   // MLCY, point at or behind the source, wedge with an off-axis point, ...
+  sad_mismatch,           // the plan's Source-Axis Distance differs from the machine's
+  missing_plan_data,      // an input the dose depends on is absent from the plan
+  missing_beam_data,      // an optional table the calculation needs is absent (OAR, MLC transmission)
   no_dose_point,
   no_planned_dose,
-  planned_dose_not_beam_level,   // Beam Dose Meaning FRACTION_LEVEL: no beam dose to compare with
+  planned_dose_not_beam_level,  // Beam Dose Meaning FRACTION_LEVEL: no beam dose to compare with
   point_outside_field,
   point_near_field_edge,
   table_extrapolated,
-  inconsistent_depth,            // the plan's depth and SPD - SSD disagree beyond the policy limit
+  inconsistent_depth,  // the plan's depth and SPD - SSD disagree beyond the policy limit
   // Plan level.
-  nothing_to_check,              // no beam of the plan could be judged (all skipped)
+  nothing_to_check,  // no beam of the plan could be judged (all skipped)
 };
 
 // The snake_case code used in JSON and text output.

@@ -63,6 +63,7 @@ class Aperture {
 
 // The opening at a control point from its jaw and MLCX positions and the beam's leaf boundaries.
 // Errors: a missing device or positions (missing_attribute), MLCY or malformed positions (bad_value).
-[[nodiscard]] Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoint& control_point);
+[[nodiscard]] Expected<Aperture> build_aperture(const plan::Beam& beam,
+                                                const plan::ControlPoint& control_point);
 
 }  // namespace countersign::geometry

@@ -25,12 +25,13 @@ struct PointInBeam {
   double ray_length_mm = 0.0;   // source to the point along the ray through it
   double iso_plane_x_mm = 0.0;  // the point projected from the source onto the isocentre plane
   double iso_plane_y_mm = 0.0;
-  double off_axis_mm = 0.0;     // distance from the central axis at the isocentre plane
+  double off_axis_mm = 0.0;  // distance from the central axis at the isocentre plane
 };
 
 class BeamFrame {
  public:
-  BeamFrame(PatientPosition position, const BeamAngles& angles, const plan::PointMm& isocenter_mm, double sad_mm);
+  BeamFrame(PatientPosition position, const BeamAngles& angles, const plan::PointMm& isocenter_mm,
+            double sad_mm);
 
   // Patient coordinates (mm) -> beam limiting device coordinates (mm, origin at the isocentre).
   [[nodiscard]] Eigen::Vector3d to_collimator(const plan::PointMm& patient_mm) const;

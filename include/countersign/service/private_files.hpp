@@ -19,10 +19,15 @@ inline constexpr std::filesystem::perms private_file_perms = std::filesystem::pe
 // Creates `dir` and any missing parents with mode 0750; an existing directory is left as it is.
 [[nodiscard]] Expected<std::filesystem::path> ensure_private_directory(const std::filesystem::path& dir);
 
+// Whether a call makes its directory entry durable itself (fsync of the directory) or leaves that
+// to the caller, who syncs the directory once after several files, or does not need it at all.
+enum class DirectorySync { now, deferred };
+
 // Replaces `target` atomically with `content`: a temporary file in the same directory (0640), fsync,
 // rename over the target, fsync of the directory. A reader sees the old file or the new, never a part.
 [[nodiscard]] Expected<std::filesystem::path> write_file_atomically(const std::filesystem::path& target,
-                                                                    std::string_view content);
+                                                                    std::string_view content,
+                                                                    DirectorySync sync = DirectorySync::now);
 
 // What to do when the destination of a move already exists.
 enum class OnExisting { pick_free_name, replace };
@@ -32,10 +37,12 @@ enum class OnExisting { pick_free_name, replace };
 // Returns the final path.
 [[nodiscard]] Expected<std::filesystem::path> move_file_durably(const std::filesystem::path& from,
                                                                 const std::filesystem::path& to,
-                                                                OnExisting on_existing);
+                                                                OnExisting on_existing,
+                                                                DirectorySync sync = DirectorySync::now);
 
 // Removes a file and makes the removal durable; a file already gone is not an error.
-[[nodiscard]] Expected<std::filesystem::path> remove_file_durably(const std::filesystem::path& file);
+[[nodiscard]] Expected<std::filesystem::path> remove_file_durably(const std::filesystem::path& file,
+                                                                  DirectorySync sync = DirectorySync::now);
 
 // fsync of a directory, so that a rename or unlink inside it survives a crash.
 [[nodiscard]] Expected<std::filesystem::path> sync_directory(const std::filesystem::path& dir);

@@ -8,18 +8,21 @@ enum class ExitCode : int {
   outside_tolerance = 1,     // at least one beam outside tolerance
   not_checked = 2,           // at least one beam, or the whole plan, could not be checked
   bad_input = 3,             // unreadable/invalid input, or a usage error
+  record_not_written = 4,    // a record asked for (--html, --pdf) could not be written, e.g. no Chromium for the PDF
 };
 
-// The worse of two outcomes, for combining beams and plans: bad input > not checked > outside > within.
+// The worse of two outcomes, for combining beams and plans:
+// bad input > record not written > not checked > outside > within.
 [[nodiscard]] constexpr ExitCode worst(ExitCode a, ExitCode b) {
   auto rank = [](ExitCode c) {
     switch (c) {
       case ExitCode::all_within_tolerance: return 0;
       case ExitCode::outside_tolerance: return 1;
       case ExitCode::not_checked: return 2;
-      case ExitCode::bad_input: return 3;
+      case ExitCode::record_not_written: return 3;
+      case ExitCode::bad_input: return 4;
     }
-    return 3;
+    return 4;
   };
   return rank(a) >= rank(b) ? a : b;
 }
