@@ -53,7 +53,9 @@ std::string padded(std::string text, std::size_t width) {
   return text;
 }
 
-nlohmann::json optional_number(std::optional<double> value) { return value ? nlohmann::json(*value) : nlohmann::json(); }
+nlohmann::json optional_number(std::optional<double> value) {
+  return value ? nlohmann::json(*value) : nlohmann::json();
+}
 
 nlohmann::json to_json(const service::CheckRecord& record) {
   nlohmann::json beams = nlohmann::json::array();
@@ -109,26 +111,29 @@ void print_checks(std::ostream& out, const std::vector<service::CheckRecord>& ch
     std::string note;
     if (record.replaces_check_id) note += "replaces #" + std::to_string(*record.replaces_check_id);
     if (record.superseded_by_check_id) {
-      note += (note.empty() ? "" : "; ") + std::string{"superseded by #"} + std::to_string(*record.superseded_by_check_id);
+      note += (note.empty() ? "" : "; ") + std::string{"superseded by #"} +
+              std::to_string(*record.superseded_by_check_id);
     }
     out << "  " << padded("#" + std::to_string(record.id), 7) << padded(record.checked_at_utc, 22)
         << padded(record.sop_instance_uid, 46) << padded(record.patient_id, 16)
-        << padded(std::string{service::to_string(record.verdict)}, 19) << padded(std::to_string(record.beams.size()), 7)
-        << note << "\n";
+        << padded(std::string{service::to_string(record.verdict)}, 19)
+        << padded(std::to_string(record.beams.size()), 7) << note << "\n";
   }
 }
 
 void print_trends(std::ostream& out, const std::vector<service::TrendGroup>& groups) {
   out << "Trends per machine, energy and technique (difference = 100 (computed - planned) / planned)\n";
-  out << "  " << padded("machine", 16) << padded("energy_mv", 11) << padded("technique", 18) << padded("beams", 7)
-      << padded("mean_%", 9) << padded("sd_%", 8) << padded("min_%", 9) << padded("max_%", 9)
-      << padded("outside_%", 11) << "not_checked\n";
+  out << "  " << padded("machine", 16) << padded("energy_mv", 11) << padded("technique", 18)
+      << padded("beams", 7) << padded("mean_%", 9) << padded("sd_%", 8) << padded("min_%", 9)
+      << padded("max_%", 9) << padded("outside_%", 11) << "not_checked\n";
   for (const auto& group : groups) {
     const std::string outside_percent =
         group.share_outside_tolerance ? fixed(*group.share_outside_tolerance * 100.0, 1) : std::string{"-"};
-    out << "  " << padded(group.machine, 16) << padded(fixed(group.energy_mv, 1), 11) << padded(group.technique, 18)
-        << padded(std::to_string(group.checked_beams), 7) << padded(fixed(group.mean_deviation_percent, 2, true), 9)
-        << padded(fixed(group.sd_deviation_percent, 2), 8) << padded(fixed(group.min_deviation_percent, 2, true), 9)
+    out << "  " << padded(group.machine, 16) << padded(fixed(group.energy_mv, 1), 11)
+        << padded(group.technique, 18) << padded(std::to_string(group.checked_beams), 7)
+        << padded(fixed(group.mean_deviation_percent, 2, true), 9)
+        << padded(fixed(group.sd_deviation_percent, 2), 8)
+        << padded(fixed(group.min_deviation_percent, 2, true), 9)
         << padded(fixed(group.max_deviation_percent, 2, true), 9) << padded(outside_percent, 11)
         << group.not_checked_beams << "\n";
   }
@@ -137,7 +142,9 @@ void print_trends(std::ostream& out, const std::vector<service::TrendGroup>& gro
 
 ExitCode run_history(const HistoryCommandOptions& options, Io& io) {
   fs::path db = options.db;
-  if (db.empty()) db = options.results.empty() ? fs::path{"history.sqlite"} : service::default_history_file(options.results);
+  if (db.empty())
+    db =
+        options.results.empty() ? fs::path{"history.sqlite"} : service::default_history_file(options.results);
   auto history = service::History::open(db, service::HistoryAccess::read_only);
   if (!history) {
     io.err << "countersign history: " << history.error().message() << "\n";
@@ -152,7 +159,8 @@ ExitCode run_history(const HistoryCommandOptions& options, Io& io) {
   if (!options.until.empty()) filter.until_utc = options.until;
   filter.energy_mv = options.energy_mv;
   if (!options.verdict.empty()) filter.verdict = service::plan_verdict_from_string(options.verdict);
-  filter.superseded = options.include_superseded ? service::Superseded::include : service::Superseded::exclude;
+  filter.superseded =
+      options.include_superseded ? service::Superseded::include : service::Superseded::exclude;
 
   // Trends use every matching check; the listing shows the newest `limit`.
   auto all = history->list(filter);
@@ -183,8 +191,9 @@ ExitCode run_history(const HistoryCommandOptions& options, Io& io) {
     io.out << "\n";
   }
   print_trends(io.out, groups);
-  io.out << "\nThese statistics support, and do not replace, the physicist's review under local regulations and "
-            "licensed practice.\n";
+  io.out
+      << "\nThese statistics support, and do not replace, the physicist's review under local regulations and "
+         "licensed practice.\n";
   return ExitCode::all_within_tolerance;
 }
 
@@ -194,12 +203,14 @@ void add_history_command(CLI::App& app, CommandContext& context) {
   auto options = std::make_shared<HistoryCommandOptions>();
   auto* command = app.add_subcommand(
       "history",
-      "List the checks recorded by `watch` and `receive` (newest first) and print trend statistics per machine, "
+      "List the checks recorded by `watch` and `receive` (newest first) and print trend statistics per "
+      "machine, "
       "energy and technique: number of checked beams, mean and standard deviation of the difference, share "
       "outside tolerance. A check replaced by a re-export of the same plan is left out unless "
       "--include-superseded.");
   command->add_option("--db", options->db, "history database (default: ./history.sqlite)");
-  command->add_option("--results", options->results, "a results folder; uses its history.sqlite")->excludes("--db");
+  command->add_option("--results", options->results, "a results folder; uses its history.sqlite")
+      ->excludes("--db");
   command->add_option("--uid", options->uid, "only this SOP Instance UID");
   command->add_option("--patient", options->patient, "only this Patient ID");
   command->add_option("--machine", options->machine, "only beams on this Treatment Machine Name");
@@ -209,7 +220,8 @@ void add_history_command(CLI::App& app, CommandContext& context) {
       ->check(CLI::IsMember({"within_tolerance", "outside_tolerance", "not_checked"}));
   command->add_option("--since", options->since, "from this UTC date or time on (e.g. 2026-12-01)");
   command->add_option("--until", options->until, "up to and including this UTC date or time");
-  command->add_flag("--include-superseded", options->include_superseded, "also checks replaced by a re-export");
+  command->add_flag("--include-superseded", options->include_superseded,
+                    "also checks replaced by a re-export");
   command->add_option("--limit", options->limit, "checks listed (default 50; trends use all that match)");
   command->add_flag("--trends-only", options->trends_only, "print only the trend statistics");
   command->add_flag("--json", options->json, "write JSON");

@@ -43,7 +43,8 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
 
-    const fs::path library_dir = options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
+    const fs::path library_dir =
+        options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
     auto processor = service::load_check_processor(
         library_dir, options.policy.empty() ? std::nullopt : std::optional<fs::path>{options.policy});
     if (!processor) {
@@ -54,7 +55,8 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     service::ServiceSettings settings;
     settings.results = options.results;
     settings.inbox = options.inbox.empty() ? settings.results / "incoming" : fs::path{options.inbox};
-    settings.intake.settle_time = std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
+    settings.intake.settle_time =
+        std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
     auto opened = service::CheckingService::open(settings, std::move(processor.value()), log);
     if (!opened) {
       io.err << "countersign receive: " << opened.error().message() << "\n";
@@ -83,8 +85,9 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
       return ExitCode::bad_input;
     }
     const auto signal = signals.take();
-    log.line(std::string{"stopped"} + (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) +
-             ": " + std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
+    log.line(std::string{"stopped"} +
+             (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) + ": " +
+             std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
              " already checked, " + std::to_string(summary->quarantined) + " quarantined");
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
@@ -103,20 +106,29 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
       "only, store each atomically in the inbox (default RESULTS/incoming) and check it exactly once, as "
       "`watch` does. Other SOP classes and unknown senders are refused. SIGTERM or SIGINT stops after the "
       "current plan. The check supports, and does not replace, the physicist's review.");
-  command->add_option("--port", options->port, "TCP port to listen on")->required()->check(CLI::Range(1, 65535));
-  command->add_option("--ae-title", options->ae_title, "this receiver's AE title (the sender's called AE)")->required();
-  command->add_option("--allow-ae", options->allowed, "a calling AE title allowed to send; repeat for several")
+  command->add_option("--port", options->port, "TCP port to listen on")
+      ->required()
+      ->check(CLI::Range(1, 65535));
+  command->add_option("--ae-title", options->ae_title, "this receiver's AE title (the sender's called AE)")
+      ->required();
+  command
+      ->add_option("--allow-ae", options->allowed, "a calling AE title allowed to send; repeat for several")
       ->required();
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
-  command->add_option("--inbox", options->inbox, "where received plans are stored and checked from "
-                                                 "(default: RESULTS/incoming)");
-  command->add_option("--beamdata", options->beamdata,
-                      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--inbox", options->inbox,
+                      "where received plans are stored and checked from "
+                      "(default: RESULTS/incoming)");
+  command->add_option(
+      "--beamdata", options->beamdata,
+      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
   command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in values)");
-  command->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
+  command
+      ->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
       ->check(CLI::Range(1, 64));
-  command->add_option("--settle-seconds", options->settle_s,
-                      "how long an unreadable file in the inbox must be unchanged before it is quarantined (default 10)")
+  command
+      ->add_option(
+          "--settle-seconds", options->settle_s,
+          "how long an unreadable file in the inbox must be unchanged before it is quarantined (default 10)")
       ->check(CLI::Range(0.1, 3600.0));
   command->callback([options, &context] { context.exit_code = run_receive(*options, context.io); });
 }

@@ -38,7 +38,8 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
 
-    const fs::path library_dir = options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
+    const fs::path library_dir =
+        options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
     auto processor = service::load_check_processor(
         library_dir, options.policy.empty() ? std::nullopt : std::optional<fs::path>{options.policy});
     if (!processor) {
@@ -50,7 +51,8 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     settings.inbox = options.inbox;
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
-    settings.intake.settle_time = std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
+    settings.intake.settle_time =
+        std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
     auto opened = service::CheckingService::open(settings, std::move(processor.value()), log);
     if (!opened) {
       io.err << "countersign watch: " << opened.error().message() << "\n";
@@ -67,8 +69,9 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
       return ExitCode::bad_input;
     }
     const auto signal = signals.take();
-    log.line(std::string{"stopped"} + (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) +
-             ": " + std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
+    log.line(std::string{"stopped"} +
+             (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) + ": " +
+             std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
              " already checked, " + std::to_string(summary->quarantined) + " quarantined, " +
              std::to_string(summary->failures) + " failed attempts");
     return ExitCode::all_within_tolerance;
@@ -85,19 +88,23 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   auto* command = app.add_subcommand(
       "watch",
       "Check every RT Plan file that arrives in INBOX, exactly once (by SOP Instance UID and content hash). "
-      "Results: RESULTS/<SOPInstanceUID>.json and .html, written atomically; history: RESULTS/history.sqlite; "
+      "Results: RESULTS/<SOPInstanceUID>.json and .html, written atomically; history: "
+      "RESULTS/history.sqlite; "
       "checked plan files are kept in RESULTS/plans; files that are not usable plans go to the quarantine "
       "folder with a .reason.txt. Files already waiting are checked first. SIGTERM or SIGINT finishes the "
       "current plan and stops. The check supports, and does not replace, the physicist's review.");
   command->add_option("inbox", options->inbox, "folder the planning system exports to")->required();
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
-  command->add_option("--quarantine", options->quarantine, "folder for bad files (default: RESULTS/quarantine)");
-  command->add_option("--beamdata", options->beamdata,
-                      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--quarantine", options->quarantine,
+                      "folder for bad files (default: RESULTS/quarantine)");
+  command->add_option(
+      "--beamdata", options->beamdata,
+      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
   command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in values)");
-  command->add_option("--settle-seconds", options->settle_s,
-                      "a file that does not read as a plan is retried until it has been unchanged this long, "
-                      "then quarantined (default 10)")
+  command
+      ->add_option("--settle-seconds", options->settle_s,
+                   "a file that does not read as a plan is retried until it has been unchanged this long, "
+                   "then quarantined (default 10)")
       ->check(CLI::Range(0.1, 3600.0));
   command->add_flag("--once", options->once, "check what is in INBOX now, then stop");
   command->callback([options, &context] { context.exit_code = run_watch(*options, context.io); });

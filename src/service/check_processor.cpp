@@ -15,17 +15,22 @@ namespace {
 
 BeamVerdict beam_verdict(check::Status status) {
   switch (status) {
-    case check::Status::within_tolerance: return BeamVerdict::within_tolerance;
-    case check::Status::outside_tolerance: return BeamVerdict::outside_tolerance;
-    case check::Status::not_checked: return BeamVerdict::not_checked;
-    case check::Status::skipped: return BeamVerdict::skipped;
+    case check::Status::within_tolerance:
+      return BeamVerdict::within_tolerance;
+    case check::Status::outside_tolerance:
+      return BeamVerdict::outside_tolerance;
+    case check::Status::not_checked:
+      return BeamVerdict::not_checked;
+    case check::Status::skipped:
+      return BeamVerdict::skipped;
   }
   return BeamVerdict::not_checked;
 }
 
 std::string technique_of(const check::BeamCheck& beam) {
   if (!beam.calculation) return "unknown";
-  const std::string category = beam.category ? std::string{check::to_code(*beam.category)} : std::string{"unknown"};
+  const std::string category =
+      beam.category ? std::string{check::to_code(*beam.category)} : std::string{"unknown"};
   return category + "/" + std::string{engine::to_code(beam.calculation->method)};
 }
 
@@ -38,9 +43,15 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
   outcome.plan_label = check.plan_label;
   outcome.beamdata_sha256 = check.beamdata_sha256;
   switch (check.exit_code()) {
-    case ExitCode::all_within_tolerance: outcome.verdict = PlanVerdict::within_tolerance; break;
-    case ExitCode::outside_tolerance: outcome.verdict = PlanVerdict::outside_tolerance; break;
-    default: outcome.verdict = PlanVerdict::not_checked; break;
+    case ExitCode::all_within_tolerance:
+      outcome.verdict = PlanVerdict::within_tolerance;
+      break;
+    case ExitCode::outside_tolerance:
+      outcome.verdict = PlanVerdict::outside_tolerance;
+      break;
+    default:
+      outcome.verdict = PlanVerdict::not_checked;
+      break;
   }
   for (const auto& beam_check : check.beams) {
     BeamOutcome beam;
@@ -48,7 +59,8 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
     beam.beam_name = beam_check.beam_name;
     if (const plan::Beam* planned = plan.beam(beam_check.beam_number)) {
       beam.machine = planned->machine_name;
-      if (!planned->control_points.empty()) beam.energy_mv = planned->control_points.front().nominal_energy_mv;
+      if (!planned->control_points.empty())
+        beam.energy_mv = planned->control_points.front().nominal_energy_mv;
     }
     beam.technique = technique_of(beam_check);
     beam.verdict = beam_verdict(beam_check.status);
@@ -64,7 +76,8 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
   return outcome;
 }
 
-PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> library, check::CheckOptions options) {
+PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> library,
+                                   check::CheckOptions options) {
   return [library = std::move(library), options = std::move(options)](
              const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
@@ -90,7 +103,8 @@ Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamda
   }
   auto library = beamdata::load_library(beamdata_dir);
   if (!library) return library.error();
-  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library.value())), std::move(options));
+  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library.value())),
+                              std::move(options));
 }
 
 }  // namespace countersign::service

@@ -32,7 +32,8 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
   service->watcher_.emplace(std::move(watcher.value()));
   std::string started = "watching " + folders->inbox.string() + "; results in " + folders->results.string() +
                         ", quarantine " + folders->quarantine.string() + ", history " + history_file.string();
-  if (cleared > 0) started += "; removed " + std::to_string(cleared) + " temporary file(s) of an interrupted run";
+  if (cleared > 0)
+    started += "; removed " + std::to_string(cleared) + " temporary file(s) of an interrupted run";
   log.line(started);
   return service;
 }

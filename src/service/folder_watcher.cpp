@@ -35,11 +35,13 @@ Expected<FolderWatcher> FolderWatcher::open(PlanIntake& intake, WatchOptions opt
   UniqueFd inotify{::inotify_init1(IN_NONBLOCK | IN_CLOEXEC)};
   const fs::path& inbox = intake.folders().inbox;
   if (!inotify.valid()) {
-    return Error{ErrorKind::io, inbox.string(), "", "", std::string{"cannot start watching: "} + std::strerror(errno)};
+    return Error{ErrorKind::io, inbox.string(), "", "",
+                 std::string{"cannot start watching: "} + std::strerror(errno)};
   }
   // Watch first, list second (in run): a file arriving in between is seen at least once.
   if (::inotify_add_watch(inotify.get(), inbox.c_str(), watched_events | IN_ONLYDIR) < 0) {
-    return Error{ErrorKind::io, inbox.string(), "", "", std::string{"cannot watch folder: "} + std::strerror(errno)};
+    return Error{ErrorKind::io, inbox.string(), "", "",
+                 std::string{"cannot watch folder: "} + std::strerror(errno)};
   }
   return FolderWatcher{intake, std::move(inotify), options};
 }
@@ -97,15 +99,24 @@ void FolderWatcher::take_one(WatchSummary& summary) {
   ready_names_.erase(name);
   const IntakeResult result = intake_->take(intake_->folders().inbox / name);
   switch (result.status) {
-    case IntakeStatus::checked: ++summary.checked; break;
-    case IntakeStatus::duplicate: ++summary.duplicates; break;
-    case IntakeStatus::quarantined: ++summary.quarantined; break;
+    case IntakeStatus::checked:
+      ++summary.checked;
+      break;
+    case IntakeStatus::duplicate:
+      ++summary.duplicates;
+      break;
+    case IntakeStatus::quarantined:
+      ++summary.quarantined;
+      break;
     case IntakeStatus::failed:
       ++summary.failures;
       waiting_[name] = result.retry_at;
       break;
-    case IntakeStatus::not_ready: waiting_[name] = result.retry_at; break;
-    case IntakeStatus::ignored: break;
+    case IntakeStatus::not_ready:
+      waiting_[name] = result.retry_at;
+      break;
+    case IntakeStatus::ignored:
+      break;
   }
 }
 
@@ -143,7 +154,8 @@ Expected<WatchSummary> FolderWatcher::run(RunUntil until, std::span<const int> s
     std::vector<pollfd> polled{pollfd{inotify_.get(), POLLIN, 0}};
     for (const int fd : stop_fds) polled.push_back(pollfd{fd, POLLIN, 0});
     if (::poll(polled.data(), polled.size(), timeout_ms) < 0 && errno != EINTR) {
-      return Error{ErrorKind::io, inbox.string(), "", "", std::string{"cannot wait for files: "} + std::strerror(errno)};
+      return Error{ErrorKind::io, inbox.string(), "", "",
+                   std::string{"cannot wait for files: "} + std::strerror(errno)};
     }
   }
   return summary;

@@ -56,7 +56,8 @@ CREATE TABLE IF NOT EXISTS beams (
 )sql";
 
 constexpr const char* check_columns =
-    "id, sop_instance_uid, content_sha256, patient_id, plan_label, verdict, beamdata_sha256, software_version, "
+    "id, sop_instance_uid, content_sha256, patient_id, plan_label, verdict, beamdata_sha256, "
+    "software_version, "
     "checked_at_utc, source_name, result_file, replaces_check_id, superseded_by_check_id";
 
 Error db_error(const fs::path& file, sqlite3* db, const std::string& what) {
@@ -125,7 +126,9 @@ class Statement {
   sqlite3_stmt* stmt_ = nullptr;
 };
 
-bool exec(sqlite3* db, const char* sql) { return sqlite3_exec(db, sql, nullptr, nullptr, nullptr) == SQLITE_OK; }
+bool exec(sqlite3* db, const char* sql) {
+  return sqlite3_exec(db, sql, nullptr, nullptr, nullptr) == SQLITE_OK;
+}
 
 // Rolls back an open transaction unless committed.
 class Transaction {
@@ -198,8 +201,8 @@ Expected<std::vector<BeamOutcome>> read_beams(const fs::path& file, sqlite3* db,
 Expected<fs::path> create_private_file(const fs::path& file) {
   const int fd = ::open(file.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0640);
   if (fd < 0) {
-    return Error{ErrorKind::io, file.string(), "", "", std::string{"cannot create history database: "} +
-                                                           std::strerror(errno)};
+    return Error{ErrorKind::io, file.string(), "", "",
+                 std::string{"cannot create history database: "} + std::strerror(errno)};
   }
   struct stat info {};
   const bool fresh = ::fstat(fd, &info) == 0 && info.st_size == 0;
@@ -219,7 +222,8 @@ bool HistoryFilter::beam_matches(const BeamOutcome& beam) const {
 
 void History::Closer::operator()(sqlite3* db) const { sqlite3_close_v2(db); }
 
-History::History(fs::path file, std::unique_ptr<sqlite3, Closer> db) : file_(std::move(file)), db_(std::move(db)) {}
+History::History(fs::path file, std::unique_ptr<sqlite3, Closer> db)
+    : file_(std::move(file)), db_(std::move(db)) {}
 History::History(History&&) noexcept = default;
 History& History::operator=(History&&) noexcept = default;
 History::~History() = default;
@@ -250,11 +254,13 @@ Expected<History> History::open(const fs::path& file, HistoryAccess access) {
     Transaction transaction{db.get()};
     if (!transaction.began()) return db_error(file, db.get(), "cannot start a transaction");
     Statement version{db.get(), "PRAGMA user_version"};
-    if (!version.ok() || version.step() != SQLITE_ROW) return db_error(file, db.get(), "cannot read schema version");
+    if (!version.ok() || version.step() != SQLITE_ROW)
+      return db_error(file, db.get(), "cannot read schema version");
     const auto found = version.integer(0);
     if (found > schema_version) {
-      return Error{ErrorKind::io, file.string(), "", "",
-                   "history database was written by a newer countersign (schema " + std::to_string(found) + ")"};
+      return Error{
+          ErrorKind::io, file.string(), "", "",
+          "history database was written by a newer countersign (schema " + std::to_string(found) + ")"};
     }
     if (!exec(db.get(), schema_sql)) return db_error(file, db.get(), "cannot create tables");
     if (!exec(db.get(), ("PRAGMA user_version = " + std::to_string(schema_version)).c_str()))
@@ -303,10 +309,11 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
   }
 
   const auto& outcome = check.outcome;
-  Statement insert{db,
-                   "INSERT INTO checks (sop_instance_uid, content_sha256, patient_id, plan_label, verdict, "
-                   "beamdata_sha256, software_version, checked_at_utc, source_name, result_file, replaces_check_id) "
-                   "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
+  Statement insert{
+      db,
+      "INSERT INTO checks (sop_instance_uid, content_sha256, patient_id, plan_label, verdict, "
+      "beamdata_sha256, software_version, checked_at_utc, source_name, result_file, replaces_check_id) "
+      "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
   if (!insert.ok()) return db_error(file_, db, "cannot prepare insert");
   insert.bind(1, outcome.sop_instance_uid);
   insert.bind(2, check.content_sha256);
@@ -322,10 +329,11 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
   if (insert.step() != SQLITE_DONE) return db_error(file_, db, "cannot record check");
   const std::int64_t id = sqlite3_last_insert_rowid(db);
 
-  Statement beam_insert{db,
-                        "INSERT INTO beams (check_id, position, beam_number, beam_name, machine, energy_mv, technique, "
-                        "verdict, deviation_percent, tolerance_percent, reason) "
-                        "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
+  Statement beam_insert{
+      db,
+      "INSERT INTO beams (check_id, position, beam_number, beam_name, machine, energy_mv, technique, "
+      "verdict, deviation_percent, tolerance_percent, reason) "
+      "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
   if (!beam_insert.ok()) return db_error(file_, db, "cannot prepare beam insert");
   int position = 0;
   for (const auto& beam : outcome.beams) {

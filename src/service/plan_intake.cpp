@@ -41,8 +41,8 @@ Clock::time_point to_time_point(const struct timespec& ts) {
 }
 
 bool same_version(const struct stat& a, const struct stat& b) {
-  return a.st_size == b.st_size && a.st_mtim.tv_sec == b.st_mtim.tv_sec && a.st_mtim.tv_nsec == b.st_mtim.tv_nsec &&
-         a.st_ino == b.st_ino;
+  return a.st_size == b.st_size && a.st_mtim.tv_sec == b.st_mtim.tv_sec &&
+         a.st_mtim.tv_nsec == b.st_mtim.tv_nsec && a.st_ino == b.st_ino;
 }
 
 // True when some process holds the file open for writing. A read lease cannot be granted then; where
@@ -60,7 +60,8 @@ FileRead read_whole_file(const fs::path& file) {
   FileRead result;
   const UniqueFd fd{::open(file.c_str(), O_RDONLY | O_NOFOLLOW | O_NONBLOCK | O_CLOEXEC)};
   if (!fd.valid()) {
-    result.state = (errno == ENOENT) ? ReadState::vanished : (errno == ELOOP ? ReadState::not_regular : ReadState::io_error);
+    result.state = (errno == ENOENT) ? ReadState::vanished
+                                     : (errno == ELOOP ? ReadState::not_regular : ReadState::io_error);
     result.detail = std::strerror(errno);
     return result;
   }
@@ -163,14 +164,15 @@ IntakeResult PlanIntake::fail(const fs::path& file, const std::string& reason) {
   IntakeResult result;
   result.status = IntakeStatus::failed;
   result.retry_at = Clock::now() + options_.failure_retry;
-  result.message = "error " + file.filename().string() + ": " + reason + "; the file stays in the inbox, retry in " +
-                   std::to_string(std::chrono::duration_cast<std::chrono::seconds>(options_.failure_retry).count()) +
-                   " s";
+  result.message =
+      "error " + file.filename().string() + ": " + reason + "; the file stays in the inbox, retry in " +
+      std::to_string(std::chrono::duration_cast<std::chrono::seconds>(options_.failure_retry).count()) + " s";
   log_.line(result.message);
   return result;
 }
 
-IntakeResult PlanIntake::quarantine(const fs::path& file, std::string_view content_sha256, const std::string& reason) {
+IntakeResult PlanIntake::quarantine(const fs::path& file, std::string_view content_sha256,
+                                    const std::string& reason) {
   const fs::path wanted = folders_.quarantine / file.filename();
   auto moved = move_file_durably(file, wanted, OnExisting::pick_free_name);
   if (!moved) return fail(file, "cannot quarantine: " + moved.error().message());
@@ -187,7 +189,8 @@ IntakeResult PlanIntake::quarantine(const fs::path& file, std::string_view conte
 
   IntakeResult result;
   result.status = IntakeStatus::quarantined;
-  result.message = "quarantined " + file.filename().string() + " as " + moved.value().string() + ": " + reason;
+  result.message =
+      "quarantined " + file.filename().string() + " as " + moved.value().string() + ": " + reason;
   if (!written) result.message += " (reason note not written: " + written.error().message() + ")";
   log_.line(result.message);
   return result;
@@ -224,7 +227,8 @@ IntakeResult PlanIntake::take(const fs::path& file) {
       result.retry_at = started + options_.busy_retry;
       return result;
     case ReadState::too_large:
-      return quarantine(file, "", "larger than " + std::to_string(max_plan_bytes >> 20) + " MiB: not an RT Plan");
+      return quarantine(file, "",
+                        "larger than " + std::to_string(max_plan_bytes >> 20) + " MiB: not an RT Plan");
     case ReadState::io_error:
       return fail(file, "cannot read: " + read.detail);
     case ReadState::ok:
@@ -325,13 +329,15 @@ IntakeResult PlanIntake::take(const fs::path& file) {
   }
   result.message = "checked " + name + ": " + outcome.sop_instance_uid + " patient " + outcome.patient_id +
                    " verdict " + std::string{to_string(outcome.verdict)} + " (" +
-                   std::to_string(outcome.beams.size()) + " beams, " + std::to_string(outside) + " outside, " +
-                   std::to_string(not_checked) + " not checked) check #" + std::to_string(result.record->id);
+                   std::to_string(outcome.beams.size()) + " beams, " + std::to_string(outside) +
+                   " outside, " + std::to_string(not_checked) + " not checked) check #" +
+                   std::to_string(result.record->id);
   if (result.record->replaces_check_id) {
     result.message += " replaces #" + std::to_string(*result.record->replaces_check_id);
   }
   result.message += " -> " + json_file.string() + " in " + format_milliseconds(Clock::now() - started);
-  if (!moved) result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
+  if (!moved)
+    result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
   log_.line(result.message);
   return result;
 }

@@ -3,8 +3,8 @@
 #include <countersign/service/unique_fd.hpp>
 
 #include <fcntl.h>
-#include <sys/file.h>
 #include <stdio.h>  // renameat2, RENAME_NOREPLACE
+#include <sys/file.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -92,14 +92,16 @@ Expected<fs::path> ensure_private_directory(const fs::path& dir) {
   if (dir.has_parent_path() && dir.parent_path() != dir) {
     if (auto parent = ensure_private_directory(dir.parent_path()); !parent) return parent.error();
   }
-  if (::mkdir(dir.c_str(), 0750) != 0 && errno != EEXIST) return io_error(dir, "cannot create directory", errno);
+  if (::mkdir(dir.c_str(), 0750) != 0 && errno != EEXIST)
+    return io_error(dir, "cannot create directory", errno);
   // mkdir honours the umask; the mode must not depend on it.
   if (::chmod(dir.c_str(), 0750) != 0) return io_error(dir, "cannot set permissions", errno);
   if (!fs::is_directory(dir, ec)) return io_error(dir, "not a directory", ENOTDIR);
   return dir;
 }
 
-Expected<fs::path> write_file_atomically(const fs::path& target, std::string_view content, DirectorySync sync) {
+Expected<fs::path> write_file_atomically(const fs::path& target, std::string_view content,
+                                         DirectorySync sync) {
   const fs::path dir = parent_or_dot(target);
   // A dot-name in the same directory: invisible to the folder watcher, and rename stays atomic.
   std::string pattern = (dir / ("." + target.filename().string() + ".XXXXXX")).string();

@@ -73,7 +73,8 @@ class PlanStorageScp : public DcmThreadSCP {
     return OFFalse;
   }
 
-  OFCondition handleIncomingCommand(T_DIMSE_Message* message, const DcmPresentationContextInfo& info) override {
+  OFCondition handleIncomingCommand(T_DIMSE_Message* message,
+                                    const DcmPresentationContextInfo& info) override {
     if (message == nullptr || message->CommandField != DIMSE_C_STORE_RQ) {
       // C-ECHO is answered by DcmSCP; anything else is refused there as an unsupported command.
       return DcmSCP::handleIncomingCommand(message, info);
@@ -112,8 +113,9 @@ class PlanStorageScp : public DcmThreadSCP {
     dataset->findAndGetOFString(DCM_SOPClassUID, sop_class);
     dataset->findAndGetOFString(DCM_SOPInstanceUID, sop_instance);
     if (sop_class != UID_RTPlanStorage) {
-      return refuse(STATUS_STORE_Error_DataSetDoesNotMatchSOPClass,
-                    std::string{"SOPClassUID (0008,0016) \""} + sop_class.c_str() + "\" is not RT Plan Storage");
+      return refuse(
+          STATUS_STORE_Error_DataSetDoesNotMatchSOPClass,
+          std::string{"SOPClassUID (0008,0016) \""} + sop_class.c_str() + "\" is not RT Plan Storage");
     }
     if (sop_instance != request.AffectedSOPInstanceUID) {
       return refuse(STATUS_STORE_Error_DataSetDoesNotMatchSOPClass,
@@ -126,7 +128,9 @@ class PlanStorageScp : public DcmThreadSCP {
     // temporary file that the next start removes.
     std::string pattern = (inbox / ".countersign-rx.XXXXXX").string();
     const UniqueFd fd{::mkstemp(pattern.data())};
-    if (!fd.valid()) return refuse(STATUS_STORE_Refused_OutOfResources, std::string{"cannot create a file in the inbox: "} + std::strerror(errno));
+    if (!fd.valid())
+      return refuse(STATUS_STORE_Refused_OutOfResources,
+                    std::string{"cannot create a file in the inbox: "} + std::strerror(errno));
     const fs::path temporary{pattern};
     const auto give_up = [&](const std::string& why) {
       ::unlink(temporary.c_str());
@@ -151,7 +155,8 @@ class PlanStorageScp : public DcmThreadSCP {
       // The plan is in place; only its durability across a power cut is in doubt.
       context_.log->line("warning: " + synced.error().message());
     }
-    context_.log->line("received RT Plan " + uid + " from " + describe_peer() + " as " + final_name.filename().string());
+    context_.log->line("received RT Plan " + uid + " from " + describe_peer() + " as " +
+                       final_name.filename().string());
     return STATUS_Success;
   }
 
@@ -192,7 +197,8 @@ class PlanStoragePool : public DcmBaseSCPPool {
 // A clear error now rather than a failure on the listening thread later.
 Expected<std::uint16_t> probe_port(std::uint16_t port) {
   const UniqueFd fd{::socket(AF_INET, SOCK_STREAM | SOCK_CLOEXEC, 0)};
-  if (!fd.valid()) return Error{ErrorKind::io, "", "", "", std::string{"cannot open a socket: "} + std::strerror(errno)};
+  if (!fd.valid())
+    return Error{ErrorKind::io, "", "", "", std::string{"cannot open a socket: "} + std::strerror(errno)};
   const int yes = 1;
   ::setsockopt(fd.get(), SOL_SOCKET, SO_REUSEADDR, &yes, sizeof yes);
   sockaddr_in address{};
@@ -200,8 +206,8 @@ Expected<std::uint16_t> probe_port(std::uint16_t port) {
   address.sin_port = htons(port);
   address.sin_addr.s_addr = htonl(INADDR_ANY);
   if (::bind(fd.get(), reinterpret_cast<const sockaddr*>(&address), sizeof address) != 0) {
-    return Error{ErrorKind::usage, "", "--port", "", "cannot listen on port " + std::to_string(port) + ": " +
-                                                         std::strerror(errno)};
+    return Error{ErrorKind::usage, "", "--port", "",
+                 "cannot listen on port " + std::to_string(port) + ": " + std::strerror(errno)};
   }
   return port;
 }
@@ -231,16 +237,19 @@ void StorageReceiver::stop() {
   impl_->context.log->line("receiver stopped");
 }
 
-Expected<std::unique_ptr<StorageReceiver>> StorageReceiver::start(const ReceiverSettings& settings, ServiceLog& log) {
+Expected<std::unique_ptr<StorageReceiver>> StorageReceiver::start(const ReceiverSettings& settings,
+                                                                  ServiceLog& log) {
   const auto usage = [](std::string option, std::string detail) {
     return Error{ErrorKind::usage, "", std::move(option), "", std::move(detail)};
   };
   if (settings.port == 0) return usage("--port", "a port between 1 and 65535 is required");
   if (!is_valid_ae_title(settings.ae_title)) {
-    return usage("--ae-title", "\"" + settings.ae_title + "\" is not a valid AE title (1 to 16 printable characters)");
+    return usage("--ae-title",
+                 "\"" + settings.ae_title + "\" is not a valid AE title (1 to 16 printable characters)");
   }
   if (settings.allowed_calling_ae_titles.empty()) {
-    return usage("--allow-ae", "at least one allowed calling AE title is required; no sender is trusted by default");
+    return usage("--allow-ae",
+                 "at least one allowed calling AE title is required; no sender is trusted by default");
   }
   for (const auto& title : settings.allowed_calling_ae_titles) {
     if (!is_valid_ae_title(title)) return usage("--allow-ae", "\"" + title + "\" is not a valid AE title");

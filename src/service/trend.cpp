@@ -35,7 +35,8 @@ std::optional<long long> energy_key(const std::optional<double>& energy_mv) {
 
 }  // namespace
 
-std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks, const HistoryFilter& filter) {
+std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
+                                         const HistoryFilter& filter) {
   using Key = std::tuple<std::string, std::optional<long long>, std::string>;
   std::map<Key, std::pair<TrendGroup, Accumulator>> groups;
 
@@ -49,9 +50,9 @@ std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
         group.energy_mv = beam.energy_mv;
         group.technique = beam.technique;
       }
-      const bool has_difference = (beam.verdict == BeamVerdict::within_tolerance ||
-                                   beam.verdict == BeamVerdict::outside_tolerance) &&
-                                  beam.deviation_percent && std::isfinite(*beam.deviation_percent);
+      const bool has_difference =
+          (beam.verdict == BeamVerdict::within_tolerance || beam.verdict == BeamVerdict::outside_tolerance) &&
+          beam.deviation_percent && std::isfinite(*beam.deviation_percent);
       if (!has_difference) {
         ++group.not_checked_beams;
         continue;
@@ -74,7 +75,8 @@ std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
           static_cast<double>(group.outside_tolerance_beams) / static_cast<double>(accumulator.count);
     }
     if (accumulator.count > 1) {
-      group.sd_deviation_percent = std::sqrt(accumulator.squares / static_cast<double>(accumulator.count - 1));
+      group.sd_deviation_percent =
+          std::sqrt(accumulator.squares / static_cast<double>(accumulator.count - 1));
     }
     result.push_back(std::move(group));
   }

@@ -128,7 +128,8 @@ TEST(CrashRestart, KilledMidStreamThenRestartedLosesNoPlanAndChecksNoneTwice) {
   for (const auto& [uid, n] : computed) extra += static_cast<std::size_t>(n - 1);
   EXPECT_EQ(computed.size(), static_cast<std::size_t>(plans));
   EXPECT_LE(extra, 2U);
-  std::cout << "[ measured ] " << plans << " plans, 2 kills: " << extra << " plan(s) computed twice, recorded once\n";
+  std::cout << "[ measured ] " << plans << " plans, 2 kills: " << extra
+            << " plan(s) computed twice, recorded once\n";
   fs::remove_all(dir);
 }
 

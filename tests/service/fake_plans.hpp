@@ -34,8 +34,8 @@ inline std::string fake_plan_text(const std::string& uid, const std::string& pat
   std::ostringstream text;
   text << "FAKE-RTPLAN-1\nuid=" << uid << "\npatient=" << patient_id << "\n";
   for (const auto& beam : beams) {
-    text << "beam=" << beam.number << "|" << beam.machine << "|" << beam.energy_mv << "|" << beam.technique << "|"
-         << beam.verdict << "|" << beam.deviation_percent << "\n";
+    text << "beam=" << beam.number << "|" << beam.machine << "|" << beam.energy_mv << "|" << beam.technique
+         << "|" << beam.verdict << "|" << beam.deviation_percent << "\n";
   }
   text << "END\n";
   return text.str();
@@ -64,7 +64,8 @@ inline service::PlanProcessor fake_processor(std::shared_ptr<ProcessorCalls> cal
     const std::string text{reinterpret_cast<const char*>(bytes.data()), bytes.size()};
     const std::string header = "FAKE-RTPLAN-1\n";
     if (text.compare(0, header.size(), header) != 0) {
-      return Error{ErrorKind::not_dicom, file.string(), "", "", "not a DICOM file (fake plan header missing)"};
+      return Error{ErrorKind::not_dicom, file.string(), "", "",
+                   "not a DICOM file (fake plan header missing)"};
     }
     if (text.size() < 4 || text.compare(text.size() - 4, 4, "END\n") != 0) {
       return Error{ErrorKind::truncated, file.string(), "", "", "the file ends inside an element"};
@@ -111,7 +112,8 @@ inline service::PlanProcessor fake_processor(std::shared_ptr<ProcessorCalls> cal
           outcome.verdict == service::PlanVerdict::within_tolerance) {
         outcome.verdict = service::PlanVerdict::outside_tolerance;
       }
-      if (beam.verdict == service::BeamVerdict::not_checked) outcome.verdict = service::PlanVerdict::not_checked;
+      if (beam.verdict == service::BeamVerdict::not_checked)
+        outcome.verdict = service::PlanVerdict::not_checked;
     }
     outcome.plan_label = "DEMO";
     outcome.beamdata_sha256 = std::string(64, 'a');

@@ -60,7 +60,8 @@ class FolderWatcherTest : public ::testing::Test {
     IntakeOptions options;
     options.settle_time = settle;
     options.busy_retry = 100ms;
-    intake_.emplace(folders.value(), std::move(history.value()), test::fake_processor(calls_, delay), log_, options);
+    intake_.emplace(folders.value(), std::move(history.value()), test::fake_processor(calls_, delay), log_,
+                    options);
   }
 
   void start(std::chrono::milliseconds settle, std::chrono::milliseconds delay = 0ms) {
@@ -87,9 +88,7 @@ class FolderWatcherTest : public ::testing::Test {
     return all ? all->size() : 0;
   }
 
-  std::string log_text() {
-    return log_stream_.str();
-  }
+  std::string log_text() { return log_stream_.str(); }
 
   fs::path dir_;
   std::ostringstream log_stream_;
@@ -126,7 +125,8 @@ TEST_F(FolderWatcherTest, TwoHundredPlansDroppedAtOnceAreEachCheckedOnce) {
     test::write_text(inbox() / ("RP" + std::to_string(i) + ".dcm"),
                      test::fake_plan_text(test::demo_uid(i), "FERN-DEMO-" + std::to_string(i % 7)));
   }
-  ASSERT_TRUE(wait_until([&] { return calls_->total.load() >= plans && count_files(inbox(), ".dcm") == 0; }, 60s))
+  ASSERT_TRUE(
+      wait_until([&] { return calls_->total.load() >= plans && count_files(inbox(), ".dcm") == 0; }, 60s))
       << calls_->total.load() << " of " << plans << " processed";
   const auto elapsed = std::chrono::steady_clock::now() - started;
   stop();
@@ -183,7 +183,8 @@ TEST_F(FolderWatcherTest, BadFilesAreQuarantinedAndTheServiceKeepsGoing) {
   test::write_text(inbox() / "garbage.dcm", "\x01\x02 not a plan at all");
   test::write_text(inbox() / "good-1.dcm", test::fake_plan_text(test::demo_uid(400), "FERN-DEMO-013"));
   test::write_text(inbox() / "empty.dcm", "");
-  test::write_text(inbox() / "cut.dcm", test::fake_plan_text(test::demo_uid(401), "FERN-DEMO-013").substr(0, 30));
+  test::write_text(inbox() / "cut.dcm",
+                   test::fake_plan_text(test::demo_uid(401), "FERN-DEMO-013").substr(0, 30));
   test::write_text(inbox() / "good-2.dcm", test::fake_plan_text(test::demo_uid(402), "FERN-DEMO-013"));
   ASSERT_TRUE(wait_until([&] { return count_files(results() / "quarantine", ".reason.txt") == 3; }, 10s))
       << log_text();
@@ -226,8 +227,8 @@ TEST_F(FolderWatcherTest, AStopFinishesThePlanInHandAndLosesNothing) {
   stop();
   const std::size_t done = summary_.checked;
   EXPECT_GE(done, 1U);
-  EXPECT_LT(done, 6U);  // it stopped early ...
-  EXPECT_EQ(recorded(), done);  // ... with every plan it started recorded ...
+  EXPECT_LT(done, 6U);                                 // it stopped early ...
+  EXPECT_EQ(recorded(), done);                         // ... with every plan it started recorded ...
   EXPECT_EQ(count_files(inbox(), ".dcm"), 6U - done);  // ... and the rest still waiting.
 
   // A restart takes the rest.

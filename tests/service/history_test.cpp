@@ -94,9 +94,11 @@ TEST_F(HistoryTest, CreatesThePrivateDatabaseAndFindsARecordByContent) {
 TEST_F(HistoryTest, SameContentTwiceIsRefusedByTheStore) {
   auto history = History::open(dir_ / "h.sqlite", HistoryAccess::read_write);
   ASSERT_TRUE(history);
-  ASSERT_TRUE(history->record(make_check("2.25.1", "h1", PlanVerdict::within_tolerance, {}), "2026-12-01T10:00:00Z"));
+  ASSERT_TRUE(
+      history->record(make_check("2.25.1", "h1", PlanVerdict::within_tolerance, {}), "2026-12-01T10:00:00Z"));
   // The key (SOP Instance UID, content hash) is unique: a second record of the same check fails.
-  EXPECT_FALSE(history->record(make_check("2.25.1", "h1", PlanVerdict::within_tolerance, {}), "2026-12-01T10:00:01Z"));
+  EXPECT_FALSE(
+      history->record(make_check("2.25.1", "h1", PlanVerdict::within_tolerance, {}), "2026-12-01T10:00:01Z"));
   auto all = history->list(HistoryFilter{});
   ASSERT_TRUE(all);
   EXPECT_EQ(all->size(), 1U);
@@ -105,8 +107,10 @@ TEST_F(HistoryTest, SameContentTwiceIsRefusedByTheStore) {
 TEST_F(HistoryTest, AReExportWithOtherContentReplacesTheEarlierCheck) {
   auto history = History::open(dir_ / "h.sqlite", HistoryAccess::read_write);
   ASSERT_TRUE(history);
-  const auto first = history->record(make_check("2.25.7", "old", PlanVerdict::outside_tolerance, {}), "2026-12-01T10:00:00Z");
-  const auto second = history->record(make_check("2.25.7", "new", PlanVerdict::within_tolerance, {}), "2026-12-01T11:00:00Z");
+  const auto first = history->record(make_check("2.25.7", "old", PlanVerdict::outside_tolerance, {}),
+                                     "2026-12-01T10:00:00Z");
+  const auto second =
+      history->record(make_check("2.25.7", "new", PlanVerdict::within_tolerance, {}), "2026-12-01T11:00:00Z");
   ASSERT_TRUE(first);
   ASSERT_TRUE(second);
   ASSERT_TRUE(second->replaces_check_id);
@@ -183,7 +187,8 @@ TEST_F(HistoryTest, ReadOnlyAccessSeesRecordsAndNeedsAnExistingFile) {
   {
     auto history = History::open(file, HistoryAccess::read_write);
     ASSERT_TRUE(history);
-    ASSERT_TRUE(history->record(make_check("2.25.1", "a", PlanVerdict::within_tolerance, {}), "2026-12-01T10:00:00Z"));
+    ASSERT_TRUE(history->record(make_check("2.25.1", "a", PlanVerdict::within_tolerance, {}),
+                                "2026-12-01T10:00:00Z"));
     // A reader while the writer is open (the service keeps running while someone looks).
     auto reader = History::open(file, HistoryAccess::read_only);
     ASSERT_TRUE(reader) << reader.error().message();

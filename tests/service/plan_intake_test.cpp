@@ -61,7 +61,8 @@ TEST_F(PlanIntakeTest, ChecksWritesRecordsAndMovesThePlanOut) {
   EXPECT_FALSE(fs::exists(inbox() / "plan.dcm"));
   ASSERT_TRUE(result.record);
   EXPECT_EQ(result.record->content_sha256.size(), 64U);
-  EXPECT_TRUE(fs::exists(results() / "plans" / (uid + "." + result.record->content_sha256.substr(0, 16) + ".dcm")));
+  EXPECT_TRUE(
+      fs::exists(results() / "plans" / (uid + "." + result.record->content_sha256.substr(0, 16) + ".dcm")));
   // One log line naming the file, the plan and the verdict.
   EXPECT_NE(log_text_.str().find("checked plan.dcm: " + uid), std::string::npos);
   EXPECT_NE(log_text_.str().find("within_tolerance"), std::string::npos);
@@ -125,7 +126,8 @@ TEST_F(PlanIntakeTest, AnIncompleteFreshFileWaitsAndAnIncompleteOldOneIsQuaranti
   make_old(inbox() / "half.dcm");  // nobody finished writing it
   const IntakeResult stale = intake_->take(inbox() / "half.dcm");
   EXPECT_EQ(stale.status, IntakeStatus::quarantined);
-  EXPECT_NE(slurp(results() / "quarantine" / "half.dcm.reason.txt").find("ends inside an element"), std::string::npos);
+  EXPECT_NE(slurp(results() / "quarantine" / "half.dcm.reason.txt").find("ends inside an element"),
+            std::string::npos);
 }
 
 TEST_F(PlanIntakeTest, AFileStillOpenForWritingIsNotRead) {

@@ -94,7 +94,8 @@ class Program {
     argv.push_back(nullptr);
     posix_spawn_file_actions_t actions;
     posix_spawn_file_actions_init(&actions);
-    posix_spawn_file_actions_addopen(&actions, STDOUT_FILENO, output.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0600);
+    posix_spawn_file_actions_addopen(&actions, STDOUT_FILENO, output.c_str(), O_WRONLY | O_CREAT | O_TRUNC,
+                                     0600);
     posix_spawn_file_actions_adddup2(&actions, STDOUT_FILENO, STDERR_FILENO);
     if (::posix_spawn(&pid_, argv[0], &actions, nullptr, argv.data(), environ) != 0) pid_ = -1;
     posix_spawn_file_actions_destroy(&actions);
@@ -152,12 +153,13 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
   ASSERT_FALSE(plans.empty());
   fs::create_directories(dir_ / "inbox");
   for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
-  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ct_sop_class.dcm", dir_ / "inbox" / "ct.dcm");
+  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ct_sop_class.dcm",
+                dir_ / "inbox" / "ct.dcm");
   const fs::path results = dir_ / "results";
 
   const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
-                                     test::quote((dir_ / "inbox").string()) + " --out " + test::quote(results.string()) +
-                                     " --once --settle-seconds 0.2");
+                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote(results.string()) + " --once --settle-seconds 0.2");
   ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
   EXPECT_EQ(count_suffix(results, ".json"), plans.size()) << run.out;
   EXPECT_EQ(count_suffix(results, ".html"), plans.size());
@@ -166,7 +168,8 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
   // One log line per plan.
   std::size_t checked_lines = 0;
   std::istringstream lines{run.out};
-  for (std::string line; std::getline(lines, line);) checked_lines += line.find(" checked ") != std::string::npos;
+  for (std::string line; std::getline(lines, line);)
+    checked_lines += line.find(" checked ") != std::string::npos;
   EXPECT_EQ(checked_lines, plans.size()) << run.out;
 
   // The CT object is quarantined with a reason naming the attribute and its tag.
@@ -203,7 +206,8 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
                                          test::quote(results.string()));
   EXPECT_EQ(history.exit_code, 0) << history.err;
   EXPECT_NE(history.out.find("FERN-LINAC-1"), std::string::npos) << history.out;
-  EXPECT_NE(history.out.find(std::to_string(plans.size()) + " check(s) match"), std::string::npos) << history.out;
+  EXPECT_NE(history.out.find(std::to_string(plans.size()) + " check(s) match"), std::string::npos)
+      << history.out;
 
   // A second run over the same files (copied in again) checks nothing twice.
   for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
@@ -212,7 +216,8 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
                                        test::quote(results.string()) + " --once");
   ASSERT_EQ(again.exit_code, 0) << again.out << again.err;
   EXPECT_EQ(recorded(results), plans.size());
-  EXPECT_NE(again.out.find("0 checked, " + std::to_string(plans.size()) + " already checked"), std::string::npos)
+  EXPECT_NE(again.out.find("0 checked, " + std::to_string(plans.size()) + " already checked"),
+            std::string::npos)
       << again.out;
 }
 
@@ -242,7 +247,8 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
     Program watcher{arguments, dir_ / "run1.log"};
     ASSERT_TRUE(watcher.running());
     deliver(60);
-    ASSERT_TRUE(wait_until([&] { return count_suffix(results, ".json") >= 20; }, 60s)) << slurp(dir_ / "run1.log");
+    ASSERT_TRUE(wait_until([&] { return count_suffix(results, ".json") >= 20; }, 60s))
+        << slurp(dir_ / "run1.log");
     deliver(100);  // still arriving
     watcher.signal(SIGKILL);
     const int status = watcher.wait();
@@ -253,14 +259,15 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
   {  // Restart; SIGTERM once everything is done.
     Program watcher{arguments, dir_ / "run2.log"};
     ASSERT_TRUE(watcher.running());
-    ASSERT_TRUE(wait_until([&] { return count_suffix(dir_ / "inbox", ".dcm") == 0 && recorded(results) == total; },
-                           120s))
+    ASSERT_TRUE(wait_until(
+        [&] { return count_suffix(dir_ / "inbox", ".dcm") == 0 && recorded(results) == total; }, 120s))
         << slurp(dir_ / "run2.log");
     watcher.signal(SIGTERM);
     const int status = watcher.wait();
     ASSERT_TRUE(WIFEXITED(status)) << slurp(dir_ / "run2.log");
     EXPECT_EQ(WEXITSTATUS(status), 0);
-    EXPECT_NE(slurp(dir_ / "run2.log").find("stopped on signal 15"), std::string::npos) << slurp(dir_ / "run2.log");
+    EXPECT_NE(slurp(dir_ / "run2.log").find("stopped on signal 15"), std::string::npos)
+        << slurp(dir_ / "run2.log");
   }
 
   auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
@@ -276,17 +283,18 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
 }
 
 TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrangers) {
-  if (test::run_command("command -v storescu").exit_code != 0) GTEST_SKIP() << "DCMTK's storescu not installed";
+  if (test::run_command("command -v storescu").exit_code != 0)
+    GTEST_SKIP() << "DCMTK's storescu not installed";
   const auto plans = demo_plans();
   ASSERT_FALSE(plans.empty());
   const fs::path results = dir_ / "results";
   const std::uint16_t port = free_port();
-  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae", "FERN-TPS",
-                    "--out", results.string()},
+  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
+                    "FERN-TPS", "--out", results.string()},
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
-  ASSERT_TRUE(wait_until([&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; },
-                         20s))
+  ASSERT_TRUE(wait_until(
+      [&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; }, 20s))
       << slurp(dir_ / "receive.log");
 
   const std::string send = "storescu -to 10 -aec FERN-CHECK ";

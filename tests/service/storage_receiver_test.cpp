@@ -102,8 +102,8 @@ class StorageReceiverTest : public ::testing::Test {
                              " 127.0.0.1 " + std::to_string(port_));
   }
   test::CommandOutput store(const std::string& calling, const fs::path& file) const {
-    return test::run_command("storescu -to 10 -aet " + test::quote(calling) +
-                             " -aec FERN-CHECK 127.0.0.1 " + std::to_string(port_) + " " + test::quote(file.string()));
+    return test::run_command("storescu -to 10 -aet " + test::quote(calling) + " -aec FERN-CHECK 127.0.0.1 " +
+                             std::to_string(port_) + " " + test::quote(file.string()));
   }
   std::string log_text() const { return log_stream_.str(); }
 
@@ -128,7 +128,8 @@ TEST_F(StorageReceiverTest, AnAllowedSenderIsAnsweredAndItsPlanIsStoredAndChecke
   EXPECT_EQ(stored.exit_code, 0) << stored.err << log_text();
   ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (uid + ".json")); }, 10s)) << log_text();
   EXPECT_EQ(calls_->load(), 1);
-  EXPECT_NE(log_text().find("received RT Plan " + uid + " from AE \"FERN-TPS\""), std::string::npos) << log_text();
+  EXPECT_NE(log_text().find("received RT Plan " + uid + " from AE \"FERN-TPS\""), std::string::npos)
+      << log_text();
   ASSERT_TRUE(wait_until([&] { return count_entries(results() / "incoming") == 0; }, 5s));
 
   // The checked plan is kept byte for byte as received (read back through DCMTK's own dump tool).
@@ -141,7 +142,8 @@ TEST_F(StorageReceiverTest, AnAllowedSenderIsAnsweredAndItsPlanIsStoredAndChecke
   // Sending the same plan again is received but not checked again.
   const auto again = store("FERN-TPS", dir_ / "plan.dcm");
   EXPECT_EQ(again.exit_code, 0);
-  ASSERT_TRUE(wait_until([&] { return log_text().find("already checked") != std::string::npos; }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return log_text().find("already checked") != std::string::npos; }, 10s))
+      << log_text();
   EXPECT_EQ(calls_->load(), 1);
 }
 
@@ -186,15 +188,17 @@ TEST_F(StorageReceiverTest, SeveralSendersAtOnceAreAllServed) {
     fs::create_directories(dir_ / ("sender" + std::to_string(s)));
     for (int p = 0; p < plans_each; ++p) {
       uids.push_back(test::new_dicom_uid());
-      ASSERT_TRUE(test::write_demo_rt_plan(dir_ / ("sender" + std::to_string(s)) / ("p" + std::to_string(p) + ".dcm"),
-                                           uids.back(), "FERN-DEMO-04" + std::to_string(s)));
+      ASSERT_TRUE(
+          test::write_demo_rt_plan(dir_ / ("sender" + std::to_string(s)) / ("p" + std::to_string(p) + ".dcm"),
+                                   uids.back(), "FERN-DEMO-04" + std::to_string(s)));
     }
   }
   std::vector<std::future<test::CommandOutput>> running;
   for (int s = 0; s < senders; ++s) {
     running.push_back(std::async(std::launch::async, [this, s] {
-      return test::run_command("storescu -to 10 +sd -aet FERN-TPS -aec FERN-CHECK 127.0.0.1 " + std::to_string(port_) +
-                               " " + test::quote((dir_ / ("sender" + std::to_string(s))).string()));
+      return test::run_command("storescu -to 10 +sd -aet FERN-TPS -aec FERN-CHECK 127.0.0.1 " +
+                               std::to_string(port_) + " " +
+                               test::quote((dir_ / ("sender" + std::to_string(s))).string()));
     }));
   }
   for (auto& r : running) {
@@ -202,9 +206,8 @@ TEST_F(StorageReceiverTest, SeveralSendersAtOnceAreAllServed) {
     EXPECT_EQ(output.exit_code, 0) << output.err;
   }
   const auto all_checked = [&] {
-    return std::all_of(uids.begin(), uids.end(), [&](const std::string& uid) {
-      return fs::exists(results() / (uid + ".json"));
-    });
+    return std::all_of(uids.begin(), uids.end(),
+                       [&](const std::string& uid) { return fs::exists(results() / (uid + ".json")); });
   };
   ASSERT_TRUE(wait_until(all_checked, 20s)) << calls_->load() << "\n" << log_text();
   EXPECT_EQ(calls_->load(), senders * plans_each);

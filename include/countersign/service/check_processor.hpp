@@ -25,7 +25,7 @@ namespace countersign::service {
 
 // Loads the beam-data library and the tolerance policy (built-in defaults when none is named) once,
 // and returns the processor that uses them for every plan. Errors name the file and the key.
-[[nodiscard]] Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
-                                                           const std::optional<std::filesystem::path>& policy_file);
+[[nodiscard]] Expected<PlanProcessor> load_check_processor(
+    const std::filesystem::path& beamdata_dir, const std::optional<std::filesystem::path>& policy_file);
 
 }  // namespace countersign::service

@@ -35,7 +35,8 @@ struct ServiceSettings {
 class CheckingService {
  public:
   [[nodiscard]] static Expected<std::unique_ptr<CheckingService>> open(const ServiceSettings& settings,
-                                                                       PlanProcessor processor, ServiceLog& log);
+                                                                       PlanProcessor processor,
+                                                                       ServiceLog& log);
   CheckingService(const CheckingService&) = delete;
   CheckingService& operator=(const CheckingService&) = delete;
 

@@ -58,7 +58,7 @@ class FolderWatcher {
   PlanIntake* intake_;
   UniqueFd inotify_;
   WatchOptions options_;
-  std::deque<std::string> ready_;             // names, in arrival order
+  std::deque<std::string> ready_;  // names, in arrival order
   std::set<std::string> ready_names_;
   std::map<std::string, Clock::time_point> waiting_;  // names to retry, and when
   Clock::time_point next_rescan_{};

@@ -22,16 +22,16 @@ namespace countersign::service {
 struct CheckRecord {
   std::int64_t id = 0;
   std::string sop_instance_uid;
-  std::string content_sha256;          // SHA-256 of the plan file's bytes
+  std::string content_sha256;  // SHA-256 of the plan file's bytes
   std::string patient_id;
   std::string plan_label;
   PlanVerdict verdict = PlanVerdict::not_checked;
   std::string beamdata_sha256;
   std::string software_version;
-  std::string checked_at_utc;          // ISO 8601, "2026-12-02T08:15:00Z"
-  std::string source_name;             // the file name as it arrived
-  std::string result_file;             // the JSON result as written
-  std::optional<std::int64_t> replaces_check_id;    // an earlier check of the same plan UID, other content
+  std::string checked_at_utc;                          // ISO 8601, "2026-12-02T08:15:00Z"
+  std::string source_name;                             // the file name as it arrived
+  std::string result_file;                             // the JSON result as written
+  std::optional<std::int64_t> replaces_check_id;       // an earlier check of the same plan UID, other content
   std::optional<std::int64_t> superseded_by_check_id;  // a later check that replaced this one
   std::vector<BeamOutcome> beams;
 };
@@ -42,7 +42,7 @@ struct NewCheck {
   std::string source_name;
   std::string result_file;
   std::string software_version;
-  PlanOutcome outcome;                 // json_text and html_text are not stored
+  PlanOutcome outcome;  // json_text and html_text are not stored
 };
 
 enum class Superseded { exclude, include };
@@ -53,13 +53,13 @@ struct HistoryFilter {
   std::optional<std::string> sop_instance_uid;
   std::optional<std::string> patient_id;
   std::optional<PlanVerdict> verdict;
-  std::optional<std::string> since_utc;   // inclusive; a prefix such as "2026-12" or "2026-12-01" works
-  std::optional<std::string> until_utc;   // inclusive, compared on the same prefix length
+  std::optional<std::string> since_utc;  // inclusive; a prefix such as "2026-12" or "2026-12-01" works
+  std::optional<std::string> until_utc;  // inclusive, compared on the same prefix length
   std::optional<std::string> machine;
-  std::optional<double> energy_mv;        // matched within 0.01 MV
+  std::optional<double> energy_mv;  // matched within 0.01 MV
   std::optional<std::string> technique;
   Superseded superseded = Superseded::exclude;  // a replaced check is normally left out of lists and trends
-  std::optional<std::size_t> limit;       // newest first
+  std::optional<std::size_t> limit;             // newest first
 
   [[nodiscard]] bool beam_matches(const BeamOutcome& beam) const;
 };

@@ -27,9 +27,9 @@ struct ServiceFolders {
 
   // Fills in the defaults (quarantine: RESULTS/quarantine; checked plans: RESULTS/plans) and creates
   // every folder that is missing with mode 0750.
-  [[nodiscard]] static Expected<ServiceFolders> prepare(const std::filesystem::path& inbox,
-                                                        const std::filesystem::path& results,
-                                                        const std::optional<std::filesystem::path>& quarantine);
+  [[nodiscard]] static Expected<ServiceFolders> prepare(
+      const std::filesystem::path& inbox, const std::filesystem::path& results,
+      const std::optional<std::filesystem::path>& quarantine);
 };
 
 struct IntakeOptions {
@@ -53,9 +53,9 @@ enum class IntakeStatus {
 
 struct IntakeResult {
   IntakeStatus status = IntakeStatus::ignored;
-  std::string message;                                  // what was logged, if anything
-  std::optional<CheckRecord> record;                    // checked: the new record; duplicate: the earlier one
-  std::chrono::system_clock::time_point retry_at{};     // not_ready and failed
+  std::string message;                               // what was logged, if anything
+  std::optional<CheckRecord> record;                 // checked: the new record; duplicate: the earlier one
+  std::chrono::system_clock::time_point retry_at{};  // not_ready and failed
 };
 
 // Names the folder watcher never takes: hidden files (our own temporary files start with a dot)

@@ -31,27 +31,27 @@ enum class BeamVerdict { within_tolerance, outside_tolerance, not_checked, skipp
 
 // The history fields of one beam.
 struct BeamOutcome {
-  int beam_number = 0;                          // Beam Number (300A,00C0)
-  std::string beam_name;                        // Beam Name (300A,00C2)
-  std::string machine;                          // Treatment Machine Name (300A,00B2)
-  std::optional<double> energy_mv;              // Nominal Beam Energy (300A,0114), absent when the plan lacks it
-  std::string technique;                        // how the beam was calculated, the pipeline's own words
+  int beam_number = 0;              // Beam Number (300A,00C0)
+  std::string beam_name;            // Beam Name (300A,00C2)
+  std::string machine;              // Treatment Machine Name (300A,00B2)
+  std::optional<double> energy_mv;  // Nominal Beam Energy (300A,0114), absent when the plan lacks it
+  std::string technique;            // how the beam was calculated, the pipeline's own words
   BeamVerdict verdict = BeamVerdict::not_checked;
-  std::optional<double> deviation_percent;      // 100 (computed - planned) / planned; absent when not checked
-  std::optional<double> tolerance_percent;      // the tolerance that was applied, when one was
-  std::string reason;                           // why not checked or skipped (reason code), else empty
+  std::optional<double> deviation_percent;  // 100 (computed - planned) / planned; absent when not checked
+  std::optional<double> tolerance_percent;  // the tolerance that was applied, when one was
+  std::string reason;                       // why not checked or skipped (reason code), else empty
 };
 
 // Everything the services keep about one checked plan.
 struct PlanOutcome {
-  std::string sop_instance_uid;                 // SOP Instance UID (0008,0018); names the result files
-  std::string patient_id;                       // Patient ID (0010,0020)
-  std::string plan_label;                       // RT Plan Label (300A,0002)
+  std::string sop_instance_uid;  // SOP Instance UID (0008,0018); names the result files
+  std::string patient_id;        // Patient ID (0010,0020)
+  std::string plan_label;        // RT Plan Label (300A,0002)
   PlanVerdict verdict = PlanVerdict::not_checked;
-  std::string json_text;                        // the machine-readable report, written as <UID>.json
-  std::optional<std::string> html_text;         // the printable record, written as <UID>.html when present
+  std::string json_text;                 // the machine-readable report, written as <UID>.json
+  std::optional<std::string> html_text;  // the printable record, written as <UID>.html when present
   std::vector<BeamOutcome> beams;
-  std::string beamdata_sha256;                  // hash of the beam-data library used
+  std::string beamdata_sha256;  // hash of the beam-data library used
 };
 
 // Turns one complete plan file into an outcome. `file` names it for messages; `bytes` is its whole

@@ -17,7 +17,7 @@ struct TrendGroup {
   std::string machine;
   std::optional<double> energy_mv;
   std::string technique;
-  std::size_t checked_beams = 0;                 // beams with a difference: within or outside tolerance
+  std::size_t checked_beams = 0;  // beams with a difference: within or outside tolerance
   std::size_t outside_tolerance_beams = 0;
   std::size_t not_checked_beams = 0;             // counted apart; they have no difference
   std::optional<double> mean_deviation_percent;  // absent when no beam was checked
