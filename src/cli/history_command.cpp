@@ -48,8 +48,9 @@ std::string fixed(const std::optional<double>& value, int decimals, bool sign = 
   return value ? fixed(*value, decimals, sign) : std::string{"-"};
 }
 
+// Left-aligned in `width` columns, and always followed by at least one space.
 std::string padded(std::string text, std::size_t width) {
-  if (text.size() < width) text.append(width - text.size(), ' ');
+  text.append(text.size() < width ? width - text.size() : 1, ' ');
   return text;
 }
 
@@ -105,7 +106,7 @@ nlohmann::json to_json(const service::TrendGroup& group) {
 
 void print_checks(std::ostream& out, const std::vector<service::CheckRecord>& checks) {
   out << "Checks, newest first (" << checks.size() << " shown)\n";
-  out << "  " << padded("check", 7) << padded("checked at (UTC)", 22) << padded("SOP Instance UID", 46)
+  out << "  " << padded("check", 7) << padded("checked at (UTC)", 22) << padded("SOP Instance UID", 66)
       << padded("patient", 16) << padded("verdict", 19) << "beams  note\n";
   for (const auto& record : checks) {
     std::string note;
@@ -115,7 +116,7 @@ void print_checks(std::ostream& out, const std::vector<service::CheckRecord>& ch
               std::to_string(*record.superseded_by_check_id);
     }
     out << "  " << padded("#" + std::to_string(record.id), 7) << padded(record.checked_at_utc, 22)
-        << padded(record.sop_instance_uid, 46) << padded(record.patient_id, 16)
+        << padded(record.sop_instance_uid, 66) << padded(record.patient_id, 16)
         << padded(std::string{service::to_string(record.verdict)}, 19)
         << padded(std::to_string(record.beams.size()), 7) << note << "\n";
   }

@@ -233,7 +233,7 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   const std::string_view tick = "stroke=\"#000\" stroke-width=\"0.3\"";
   svg += line({axis.x, 0.2}, {axis.x, 4.0}, tick) + line({axis.x, h - 4.0}, {axis.x, h - 0.2}, tick);
   svg += line({0.2, axis.y}, {4.0, axis.y}, tick) + line({w - 4.0, axis.y}, {w - 0.2, axis.y}, tick);
-  svg += text({axis.x, 6.0}, "\u25B2 towards gantry", "middle", 2.6);
+  svg += text({3.0, 5.5}, "\u25B2 towards gantry", "start", 2.5);
 
   const geometry::JawOpening& j = c.jaws;
   if (c.modulated) {
@@ -296,12 +296,15 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   }
 
   // Collimator angle: a reference line (gantry +Y) and the collimator's +Y, top right.
-  const PaperMm dial{w - 9.0, 13.0};
+  // Kept in the corner, clear of a field that fills the panel up to its margin.
+  const PaperMm dial{w - 6.0, 6.5};
   const double rad = c.collimator_deg * std::numbers::pi / 180.0;
-  svg += line({dial.x, dial.y}, {dial.x, dial.y - 6.0}, "stroke=\"#000\" stroke-width=\"0.2\" stroke-dasharray=\"0.8 0.6\"");
-  svg += line({dial.x, dial.y}, {dial.x - 6.0 * std::sin(rad), dial.y - 6.0 * std::cos(rad)},
+  svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"4\" fill=\"none\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
+                     number(dial.x), number(dial.y));
+  svg += line({dial.x, dial.y}, {dial.x, dial.y - 4.0}, "stroke=\"#000\" stroke-width=\"0.2\" stroke-dasharray=\"0.6 0.5\"");
+  svg += line({dial.x, dial.y}, {dial.x - 4.0 * std::sin(rad), dial.y - 4.0 * std::cos(rad)},
               "stroke=\"#000\" stroke-width=\"0.45\"");
-  svg += text({dial.x, dial.y + 3.0}, fmt::format("coll. {:.1f}\u00B0", c.collimator_deg), "middle", 2.5);
+  svg += text({dial.x - 5.5, dial.y}, fmt::format("coll. {:.1f}\u00B0", c.collimator_deg), "end", 2.5);
 
   // Scale bar, bottom left, and the scale in words, bottom right.
   const double bar_cm = scale_bar_cm(m.scale());

@@ -146,6 +146,18 @@ Expected<ServiceFolders> ServiceFolders::prepare(const fs::path& inbox, const fs
   folders.results = results;
   folders.quarantine = quarantine.value_or(results / "quarantine");
   folders.checked_plans = results / "plans";
+  // The inbox must not be one of our own output folders: results and reason notes would be taken
+  // for arriving plans and quarantined.
+  const auto same = [](const fs::path& a, const fs::path& b) {
+    std::error_code ec;
+    return fs::weakly_canonical(a, ec) == fs::weakly_canonical(b, ec);
+  };
+  for (const auto& output : {folders.results, folders.quarantine, folders.checked_plans}) {
+    if (same(folders.inbox, output)) {
+      return Error{ErrorKind::usage, inbox.string(), "", "",
+                   "the inbox must be a folder of its own, not the results, quarantine or plans folder"};
+    }
+  }
   for (const auto& dir : {folders.inbox, folders.results, folders.quarantine, folders.checked_plans}) {
     if (auto made = ensure_private_directory(dir); !made) return made.error();
   }

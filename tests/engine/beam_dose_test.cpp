@@ -397,3 +397,34 @@ TEST(ModulatedBeam, WithoutMlcTransmissionIsMissingBeamData) {
 
 }  // namespace
 }  // namespace countersign::engine
+
+namespace countersign::engine {
+namespace {
+
+// A 20 x 5 cm field and a point 50 mm to the patient's left (HFS, gantry 0): inside with the
+// collimator at 0 (along the long side, 25 mm from the Y edges), outside with it at 90 degrees
+// (the point then lies 50 mm along collimator -Y, beyond the 25 mm jaw). Hand calculation.
+TEST(CollimatorRotation, MovesThePointRelativeToTheJaws) {
+  const beamdata::Library library = test_fixtures::test_library();
+  for (const double collimator_deg : {0.0, 90.0}) {
+    plan::Beam beam = test_fixtures::static_beam(1, 0, 100.0, 25.0);
+    for (plan::ControlPoint& cp : beam.control_points) cp.collimator_deg = collimator_deg;
+    const plan::Plan plan = test_fixtures::make_plan({{beam, 100.0, 1.0, 100.0}}, {50, 0, 0});
+    const plan::ReferencedBeam& rb = plan.fraction_groups[0].beams[0];
+    const auto point = select_dose_point(plan, plan.beams[0], rb);
+    const BeamDose r = compute_beam_dose(plan, plan.beams[0], rb, *point, library, {});
+    ASSERT_FALSE(r.problem);
+    if (collimator_deg == 0.0) {
+      EXPECT_TRUE(r.point_in_field);
+      EXPECT_NEAR(r.point.iso_plane_x_mm, 50.0, 1e-9);
+      EXPECT_NEAR(r.edge_distance_mm, 25.0, 1e-9);
+    } else {
+      EXPECT_FALSE(r.point_in_field);
+      EXPECT_NEAR(r.point.iso_plane_y_mm, -50.0, 1e-9);
+    }
+    EXPECT_NEAR(r.point.off_axis_mm, 50.0, 1e-9);
+  }
+}
+
+}  // namespace
+}  // namespace countersign::engine

@@ -179,5 +179,17 @@ TEST_F(PlanIntakeTest, HiddenAndTemporaryNamesAreIgnored) {
   EXPECT_FALSE(is_safe_uid(std::string(65, '1')));
 }
 
+TEST(ServiceFolders, TheInboxCannotBeAnOutputFolder) {
+  const fs::path dir = test::make_temp_dir("countersign-folders");
+  EXPECT_FALSE(ServiceFolders::prepare(dir / "results", dir / "results", std::nullopt));
+  EXPECT_FALSE(ServiceFolders::prepare(dir / "results" / "quarantine", dir / "results", std::nullopt));
+  EXPECT_FALSE(ServiceFolders::prepare(dir / "q", dir / "results", dir / "q"));
+  const auto fine = ServiceFolders::prepare(dir / "inbox", dir / "results", std::nullopt);
+  ASSERT_TRUE(fine) << fine.error().message();
+  EXPECT_EQ(fine->quarantine, dir / "results" / "quarantine");
+  EXPECT_EQ(fine->checked_plans, dir / "results" / "plans");
+  fs::remove_all(dir);
+}
+
 }  // namespace
 }  // namespace countersign::service
