@@ -69,7 +69,7 @@ TEST(HtmlReport, CarriesIdentityPolicyVerdictsSignOffAndCaution) {
   options.plan = &c.plan;
   const std::string page = html_report(c.check, options);
 
-  for (const std::string expected :
+  for (const std::string& expected :
        {std::string("FERN-TEST-01"), std::string("PHANTOM, CUBE"), std::string("APPROVED"), std::string("2.25.1"),
         std::string("TEST"), std::string(64, 'a'), std::string("countersign ") + version_string,
         std::string("2026-12-02 09:15:00 +0000"), std::string("built-in defaults"), std::string("TEST-LINAC"),
@@ -203,7 +203,9 @@ TEST(HtmlReportInChromium, RendersWithoutConsoleErrorsAndPrintsOnePagePerBeamPlu
   ASSERT_TRUE(pdf) << pdf.error().message();
   EXPECT_EQ(pdf_pages(*pdf), 3);  // the cover page, then one page per beam
   const auto info = test::run_command("pdfinfo " + test::quote(pdf->string()) + " 2>/dev/null");
-  if (info.exit_code == 0) EXPECT_NE(info.out.find("(A4)"), std::string::npos) << info.out;
+  if (info.exit_code == 0) {
+    EXPECT_NE(info.out.find("(A4)"), std::string::npos) << info.out;
+  }
   std::filesystem::remove_all(dir);
 }
 
