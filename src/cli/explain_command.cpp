@@ -37,10 +37,14 @@ struct ExplainCommandOptions {
 
 ExitCode beam_exit_code(check::Status status) {
   switch (status) {
-    case check::Status::within_tolerance: return ExitCode::all_within_tolerance;
-    case check::Status::outside_tolerance: return ExitCode::outside_tolerance;
-    case check::Status::not_checked: return ExitCode::not_checked;
-    case check::Status::skipped: return ExitCode::all_within_tolerance;
+    case check::Status::within_tolerance:
+      return ExitCode::all_within_tolerance;
+    case check::Status::outside_tolerance:
+      return ExitCode::outside_tolerance;
+    case check::Status::not_checked:
+      return ExitCode::not_checked;
+    case check::Status::skipped:
+      return ExitCode::all_within_tolerance;
   }
   return ExitCode::not_checked;
 }
@@ -57,8 +61,9 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
     }
     check_options.policy = std::move(policy.value());
   }
-  const std::filesystem::path library_dir =
-      options.beamdata.empty() ? std::filesystem::path(COUNTERSIGN_BUNDLED_BEAMDATA) : std::filesystem::path(options.beamdata);
+  const std::filesystem::path library_dir = options.beamdata.empty()
+                                                ? std::filesystem::path(COUNTERSIGN_BUNDLED_BEAMDATA)
+                                                : std::filesystem::path(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign explain: " << library.error().message() << "\n";
@@ -73,7 +78,8 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
   const check::BeamCheck* beam = report::find_beam(result, options.beam, options.fraction_group);
   if (beam == nullptr) {
     io.err << options.plan << ": BeamNumber (300A,00C0): no beam " << options.beam
-           << (options.fraction_group ? " in fraction group " + std::to_string(*options.fraction_group) : std::string{})
+           << (options.fraction_group ? " in fraction group " + std::to_string(*options.fraction_group)
+                                      : std::string{})
            << " is referenced by a fraction group of the plan\n";
     return ExitCode::bad_input;
   }
@@ -100,24 +106,34 @@ void add_explain_command(CLI::App& app, CommandContext& context) {
   command->add_option("--beam", options->beam, "Beam Number (300A,00C0) of the beam to explain")->required();
   command->add_option("--fraction-group", options->fraction_group,
                       "Fraction Group Number (300A,0071) (default: the first that references the beam)");
-  command->add_option("--beamdata", options->beamdata,
-                      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in TG-114 based values)");
-  const std::map<std::string, engine::MethodChoice> methods{{"auto", engine::MethodChoice::by_setup_technique},
-                                                            {"tmr", engine::MethodChoice::tmr},
-                                                            {"pdd", engine::MethodChoice::pdd}};
-  command->add_option("--method", options->method, "formalism used for the verdict: auto (the default), tmr or pdd")
+  command->add_option(
+      "--beamdata", options->beamdata,
+      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+  command->add_option("--policy", options->policy,
+                      "tolerance policy TOML file (default: built-in TG-114 based values)");
+  const std::map<std::string, engine::MethodChoice> methods{
+      {"auto", engine::MethodChoice::by_setup_technique},
+      {"tmr", engine::MethodChoice::tmr},
+      {"pdd", engine::MethodChoice::pdd}};
+  command
+      ->add_option("--method", options->method,
+                   "formalism used for the verdict: auto (the default), tmr or pdd")
       ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
   const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
                                                           {"equivalent", engine::DepthChoice::equivalent}};
   command->add_option("--depth", options->depth, "depth: planned (the default) or equivalent")
       ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
-  command->add_option("--search-depth-cm", options->limits.depth_cm, "how far the depth search goes each way (default 10)")
+  command
+      ->add_option("--search-depth-cm", options->limits.depth_cm,
+                   "how far the depth search goes each way (default 10)")
       ->check(CLI::PositiveNumber);
-  command->add_option("--search-ssd-cm", options->limits.ssd_cm, "how far the SSD search goes each way (default 20)")
+  command
+      ->add_option("--search-ssd-cm", options->limits.ssd_cm,
+                   "how far the SSD search goes each way (default 20)")
       ->check(CLI::PositiveNumber);
-  command->add_option("--search-field-cm", options->limits.field_cm,
-                      "how far the field-size search goes each way (default 10)")
+  command
+      ->add_option("--search-field-cm", options->limits.field_cm,
+                   "how far the field-size search goes each way (default 10)")
       ->check(CLI::PositiveNumber);
   command->add_flag("--json", options->json, "write JSON instead of text");
   command->callback([options, &context] { context.exit_code = run_explain(*options, context.io); });

@@ -6,15 +6,22 @@ namespace {
 
 class BufferStreamFactory : public DcmInputStreamFactory {
  public:
-  explicit BufferStreamFactory(std::span<const std::byte> bytes) : bytes_(bytes) {}
+  // A factory for streams positioned at `offset`, where the value to be loaded later starts.
+  BufferStreamFactory(std::span<const std::byte> bytes, offile_off_t offset)
+      : bytes_(bytes), offset_(offset) {}
   // DCMTK's interface hands ownership of both to the caller (it deletes them).
-  DcmInputStream* create() const override { return new ReopenableBufferStream(bytes_); }
-  DcmInputStreamFactory* clone() const override { return new BufferStreamFactory(bytes_); }
+  DcmInputStream* create() const override {
+    auto* stream = new ReopenableBufferStream(bytes_);
+    stream->skip(offset_);
+    return stream;
+  }
+  DcmInputStreamFactory* clone() const override { return new BufferStreamFactory(bytes_, offset_); }
   // DCMTK only distinguishes temporary files (deleted after use) from everything else.
   DcmInputStreamFactoryType ident() const override { return DFT_DcmInputFileStreamFactory; }
 
  private:
   std::span<const std::byte> bytes_;
+  offile_off_t offset_;
 };
 
 }  // namespace
@@ -26,7 +33,7 @@ ReopenableBufferStream::ReopenableBufferStream(std::span<const std::byte> bytes)
 
 DcmInputStreamFactory* ReopenableBufferStream::newFactory() const {
   if (compressed_) return nullptr;
-  return new BufferStreamFactory(bytes_);
+  return new BufferStreamFactory(bytes_, tell());
 }
 
 OFCondition ReopenableBufferStream::installCompressionFilter(E_StreamCompression filter_type) {

@@ -21,8 +21,8 @@ class ReopenableBufferStream : public DcmInputBufferStream {
   // `bytes` must outlive the stream, every stream created from it and every dataset read from it.
   explicit ReopenableBufferStream(std::span<const std::byte> bytes);
 
-  // A new stream over the same bytes; none once a compression filter (deflate) is installed,
-  // because offsets then count inflated bytes. DCMTK takes ownership of the factory.
+  // Makes streams over the same bytes, positioned where this one is now; none once a compression filter
+  // (deflate) is installed, because offsets then count inflated bytes. DCMTK takes ownership of the factory.
   DcmInputStreamFactory* newFactory() const override;
   OFCondition installCompressionFilter(E_StreamCompression filter_type) override;
 

@@ -180,7 +180,11 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     Reason reason = Reason::unknown_energy;
     if (match.failure == beamdata::MatchFailure::unknown_machine) reason = Reason::unknown_machine;
     if (match.failure == beamdata::MatchFailure::unknown_radiation) reason = Reason::unsupported_radiation;
-    return fail({reason, match.explanation});
+    return fail(
+        {reason,
+         fmt::format("Treatment Machine Name (300A,00B2) \"{}\", Radiation Type (300A,00C6) {}, Nominal "
+                     "Beam Energy (300A,0114) {:g} MV: {}",
+                     beam.machine_name, beam.radiation_type, *cp0.nominal_energy_mv, match.explanation)});
   }
   r.beam_data = match.beam;
   const beamdata::BeamData& data = *match.beam;

@@ -10,37 +10,49 @@ namespace countersign::engine {
 
 std::string_view to_code(SensitivityQuantity quantity) {
   switch (quantity) {
-    case SensitivityQuantity::depth: return "depth";
-    case SensitivityQuantity::ssd: return "ssd";
-    case SensitivityQuantity::field_size: return "field_size";
+    case SensitivityQuantity::depth:
+      return "depth";
+    case SensitivityQuantity::ssd:
+      return "ssd";
+    case SensitivityQuantity::field_size:
+      return "field_size";
   }
   return "unknown";
 }
 
 namespace {
 
-constexpr int scan_steps = 400;        // per side: fine enough to separate the roots of a smooth dose curve
-constexpr int bisection_steps = 60;    // halves the bracket far below any clinical significance
+constexpr int scan_steps = 400;      // per side: fine enough to separate the roots of a smooth dose curve
+constexpr int bisection_steps = 60;  // halves the bracket far below any clinical significance
 constexpr double same_dose_fraction = 1e-9;
 
 double baseline_of(const DoseInputs& in, SensitivityQuantity quantity) {
   switch (quantity) {
-    case SensitivityQuantity::depth: return in.depth_cm;
-    case SensitivityQuantity::ssd: return in.ssd_cm;
-    case SensitivityQuantity::field_size: return in.field_at_isocentre_cm;
+    case SensitivityQuantity::depth:
+      return in.depth_cm;
+    case SensitivityQuantity::ssd:
+      return in.ssd_cm;
+    case SensitivityQuantity::field_size:
+      return in.field_at_isocentre_cm;
   }
   return 0.0;
 }
 
 // The most negative change that keeps every part's input at or above its minimum.
-double lowest_change(std::span<const DoseInputs> parts, SensitivityQuantity quantity, const SensitivityLimits& limits) {
+double lowest_change(std::span<const DoseInputs> parts, SensitivityQuantity quantity,
+                     const SensitivityLimits& limits) {
   double lowest = -std::numeric_limits<double>::infinity();
   for (const DoseInputs& in : parts) {
     switch (quantity) {
-      case SensitivityQuantity::depth: lowest = std::max(lowest, limits.min_depth_cm - in.depth_cm); break;
-      case SensitivityQuantity::ssd: lowest = std::max(lowest, limits.min_ssd_cm - in.ssd_cm); break;
+      case SensitivityQuantity::depth:
+        lowest = std::max(lowest, limits.min_depth_cm - in.depth_cm);
+        break;
+      case SensitivityQuantity::ssd:
+        lowest = std::max(lowest, limits.min_ssd_cm - in.ssd_cm);
+        break;
       case SensitivityQuantity::field_size:
-        lowest = std::max(lowest, limits.min_field_cm - std::min(in.collimator_field_cm, in.field_at_isocentre_cm));
+        lowest = std::max(lowest,
+                          limits.min_field_cm - std::min(in.collimator_field_cm, in.field_at_isocentre_cm));
         break;
     }
   }
@@ -49,18 +61,24 @@ double lowest_change(std::span<const DoseInputs> parts, SensitivityQuantity quan
 
 double search_limit(SensitivityQuantity quantity, const SensitivityLimits& limits) {
   switch (quantity) {
-    case SensitivityQuantity::depth: return limits.depth_cm;
-    case SensitivityQuantity::ssd: return limits.ssd_cm;
-    case SensitivityQuantity::field_size: return limits.field_cm;
+    case SensitivityQuantity::depth:
+      return limits.depth_cm;
+    case SensitivityQuantity::ssd:
+      return limits.ssd_cm;
+    case SensitivityQuantity::field_size:
+      return limits.field_cm;
   }
   return 0.0;
 }
 
 std::string_view label(SensitivityQuantity quantity) {
   switch (quantity) {
-    case SensitivityQuantity::depth: return "depth";
-    case SensitivityQuantity::ssd: return "SSD";
-    case SensitivityQuantity::field_size: return "field-size";
+    case SensitivityQuantity::depth:
+      return "depth";
+    case SensitivityQuantity::ssd:
+      return "SSD";
+    case SensitivityQuantity::field_size:
+      return "field-size";
   }
   return "";
 }
@@ -82,8 +100,8 @@ double bisect(F&& residual, double a, double b) {
   return 0.5 * (a + b);
 }
 
-bool any_extrapolated(const beamdata::BeamData& beam, std::span<const DoseInputs> parts, SensitivityQuantity quantity,
-                      double change_cm) {
+bool any_extrapolated(const beamdata::BeamData& beam, std::span<const DoseInputs> parts,
+                      SensitivityQuantity quantity, double change_cm) {
   return std::any_of(parts.begin(), parts.end(), [&](const DoseInputs& in) {
     return compute_point_dose(beam, with_change(in, quantity, change_cm)).first_extrapolated() != nullptr;
   });
@@ -114,12 +132,13 @@ DoseInputs with_change(const DoseInputs& inputs, SensitivityQuantity quantity, d
 double dose_with_change_cgy(const beamdata::BeamData& beam, std::span<const DoseInputs> parts,
                             SensitivityQuantity quantity, double change_cm) {
   double total = 0.0;
-  for (const DoseInputs& in : parts) total += compute_point_dose(beam, with_change(in, quantity, change_cm)).dose_cgy;
+  for (const DoseInputs& in : parts)
+    total += compute_point_dose(beam, with_change(in, quantity, change_cm)).dose_cgy;
   return total;
 }
 
-Sensitivity reconcile(const beamdata::BeamData& beam, std::span<const DoseInputs> parts, double target_dose_cgy,
-                      const SensitivityLimits& limits) {
+Sensitivity reconcile(const beamdata::BeamData& beam, std::span<const DoseInputs> parts,
+                      double target_dose_cgy, const SensitivityLimits& limits) {
   Sensitivity result;
   result.target_dose_cgy = target_dose_cgy;
   result.baseline_dose_cgy = dose_with_change_cgy(beam, parts, SensitivityQuantity::depth, 0.0);
@@ -172,13 +191,15 @@ Sensitivity reconcile(const beamdata::BeamData& beam, std::span<const DoseInputs
     const std::string_view name = label(quantity);
     if (r.change_cm) {
       r.extrapolated = any_extrapolated(beam, parts, quantity, *r.change_cm);
-      r.sentence = fmt::format("{} {} change of {:+.2f} cm ({:.2f} -> {:.2f} cm) alone would make the computed dose equal "
-                               "the planned dose{}",
-                               quantity == SensitivityQuantity::ssd ? "an" : "a", name, *r.change_cm, r.baseline_cm, r.baseline_cm + *r.change_cm,
-                               r.extrapolated ? "; that value lies outside the beam-data tables" : "");
+      r.sentence = fmt::format(
+          "{} {} change of {:+.2f} cm ({:.2f} -> {:.2f} cm) alone would make the computed dose equal "
+          "the planned dose{}",
+          quantity == SensitivityQuantity::ssd ? "an" : "a", name, *r.change_cm, r.baseline_cm,
+          r.baseline_cm + *r.change_cm,
+          r.extrapolated ? "; that value lies outside the beam-data tables" : "");
     } else {
-      r.sentence = fmt::format("no {} change between {:+.2f} cm and {:+.2f} cm reconciles the two doses", name,
-                               r.search_min_change_cm, r.search_max_change_cm);
+      r.sentence = fmt::format("no {} change between {:+.2f} cm and {:+.2f} cm reconciles the two doses",
+                               name, r.search_min_change_cm, r.search_max_change_cm);
     }
     result.changes.push_back(std::move(r));
   }

@@ -63,7 +63,8 @@ std::vector<geometry::ApertureRow> merge_rows(std::vector<geometry::ApertureRow>
   for (const auto& r : rows) {
     if (!merged.empty()) {
       auto& last = merged.back();
-      if (same(last.y_lower_mm, r.y_lower_mm) && same(last.y_upper_mm, r.y_upper_mm) && r.lo_mm <= last.hi_mm) {
+      if (same(last.y_lower_mm, r.y_lower_mm) && same(last.y_upper_mm, r.y_upper_mm) &&
+          r.lo_mm <= last.hi_mm) {
         last.hi_mm = std::max(last.hi_mm, r.hi_mm);
         continue;
       }
@@ -111,8 +112,10 @@ std::optional<SweptOpening> swept_opening(const plan::Beam& beam) {
     // smaller to the larger of the two openings.
     for (const auto& ra : aperture_a->rows()) {
       for (const auto& rb : aperture_b->rows()) {
-        if (ra.open() && rb.open() && same(ra.y_lower_mm, rb.y_lower_mm) && same(ra.y_upper_mm, rb.y_upper_mm)) {
-          rows.push_back({ra.y_lower_mm, ra.y_upper_mm, std::min(ra.lo_mm, rb.lo_mm), std::max(ra.hi_mm, rb.hi_mm)});
+        if (ra.open() && rb.open() && same(ra.y_lower_mm, rb.y_lower_mm) &&
+            same(ra.y_upper_mm, rb.y_upper_mm)) {
+          rows.push_back(
+              {ra.y_lower_mm, ra.y_upper_mm, std::min(ra.lo_mm, rb.lo_mm), std::max(ra.hi_mm, rb.hi_mm)});
         }
       }
     }
@@ -195,14 +198,16 @@ std::string polygon(const BevMapping& m, double x1, double y1, double x2, double
 }
 
 std::string line(PaperMm a, PaperMm b, std::string_view style) {
-  return fmt::format("<line x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" {}/>\n", number(a.x), number(a.y), number(b.x),
-                     number(b.y), style);
+  return fmt::format("<line x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" {}/>\n", number(a.x), number(a.y),
+                     number(b.x), number(b.y), style);
 }
 
 std::string text(PaperMm at, std::string_view content, std::string_view anchor, double size_mm,
                  std::string_view extra = "") {
-  return fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\" dominant-baseline=\"central\" font-size=\"{}\"{}>{}</text>\n",
-                     number(at.x), number(at.y), anchor, number(size_mm), extra, html_escape(content));
+  return fmt::format(
+      "<text x=\"{}\" y=\"{}\" text-anchor=\"{}\" dominant-baseline=\"central\" "
+      "font-size=\"{}\"{}>{}</text>\n",
+      number(at.x), number(at.y), anchor, number(size_mm), extra, html_escape(content));
 }
 
 // The side of the scale bar in cm: the longest round length not over 50 mm of paper.
@@ -222,12 +227,16 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   const double h = panel.height_mm;
   const PaperMm axis = m.axis();
   std::string svg = fmt::format(
-      "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"bev\" width=\"{0}mm\" height=\"{1}mm\" viewBox=\"0 0 {0} {1}\" "
-      "font-family=\"DejaVu Sans, Arial, sans-serif\" role=\"img\" aria-label=\"Beam's-eye view, scale {2} at the "
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"bev\" width=\"{0}mm\" height=\"{1}mm\" viewBox=\"0 "
+      "0 {0} {1}\" "
+      "font-family=\"DejaVu Sans, Arial, sans-serif\" role=\"img\" aria-label=\"Beam's-eye view, scale {2} "
+      "at the "
       "isocentre plane\">\n",
       number(w), number(h), scale_text(m.scale()));
-  svg += fmt::format("<rect x=\"0.2\" y=\"0.2\" width=\"{}\" height=\"{}\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.3\"/>\n",
-                     number(w - 0.4), number(h - 0.4));
+  svg += fmt::format(
+      "<rect x=\"0.2\" y=\"0.2\" width=\"{}\" height=\"{}\" fill=\"#fff\" stroke=\"#000\" "
+      "stroke-width=\"0.3\"/>\n",
+      number(w - 0.4), number(h - 0.4));
 
   // Gantry-system reference: ticks at the panel edges in line with the axis.
   const std::string_view tick = "stroke=\"#000\" stroke-width=\"0.3\"";
@@ -257,7 +266,8 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
         if (r.hi_mm < j.x2_mm) svg += polygon(m, r.hi_mm, r.y_lower_mm, j.x2_mm, r.y_upper_mm, leaf);
       }
     }
-    svg += polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm, "fill=\"none\" stroke=\"#000\" stroke-width=\"0.6\"");
+    svg +=
+        polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm, "fill=\"none\" stroke=\"#000\" stroke-width=\"0.6\"");
   }
 
   // Jaw names just outside the jaw edges (kept upright for reading).
@@ -274,22 +284,26 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   const std::string_view axis_style = "stroke=\"#000\" stroke-width=\"0.18\" stroke-dasharray=\"3 1 0.6 1\"";
   svg += line(m.to_paper(-reach, 0.0), m.to_paper(reach, 0.0), axis_style);
   svg += line(m.to_paper(0.0, -reach), m.to_paper(0.0, reach), axis_style);
-  svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"1.1\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.3\"/>\n",
-                     number(axis.x), number(axis.y));
+  svg += fmt::format(
+      "<circle cx=\"{}\" cy=\"{}\" r=\"1.1\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.3\"/>\n",
+      number(axis.x), number(axis.y));
   svg += line({axis.x - 2.4, axis.y}, {axis.x + 2.4, axis.y}, "stroke=\"#000\" stroke-width=\"0.3\"");
   svg += line({axis.x, axis.y - 2.4}, {axis.x, axis.y + 2.4}, "stroke=\"#000\" stroke-width=\"0.3\"");
 
   // The dose point: every part's view of it (modulated), then the point at control point 0.
   for (const PaperMm& p : c.part_points_mm) {
     const PaperMm q = m.to_paper(p.x, p.y);
-    svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"0.6\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
-                       number(q.x), number(q.y));
+    svg += fmt::format(
+        "<circle cx=\"{}\" cy=\"{}\" r=\"0.6\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
+        number(q.x), number(q.y));
   }
   if (c.dose_point_mm) {
     const PaperMm p = m.to_paper(c.dose_point_mm->x, c.dose_point_mm->y);
     const double d = 1.5;
-    svg += fmt::format("<circle class=\"dose-point\" cx=\"{}\" cy=\"{}\" r=\"2.1\" fill=\"#fff\" stroke=\"#000\" stroke-width=\"0.45\"/>\n",
-                       number(p.x), number(p.y));
+    svg += fmt::format(
+        "<circle class=\"dose-point\" cx=\"{}\" cy=\"{}\" r=\"2.1\" fill=\"#fff\" stroke=\"#000\" "
+        "stroke-width=\"0.45\"/>\n",
+        number(p.x), number(p.y));
     svg += line({p.x - d, p.y - d}, {p.x + d, p.y + d}, "stroke=\"#000\" stroke-width=\"0.35\"");
     svg += line({p.x - d, p.y + d}, {p.x + d, p.y - d}, "stroke=\"#000\" stroke-width=\"0.35\"");
     svg += text({p.x + 3.0, p.y - 3.0}, "P", "start", 3.2, " font-weight=\"bold\"");
@@ -299,9 +313,11 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   // Kept in the corner, clear of a field that fills the panel up to its margin.
   const PaperMm dial{w - 6.0, 6.5};
   const double rad = c.collimator_deg * std::numbers::pi / 180.0;
-  svg += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"4\" fill=\"none\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
-                     number(dial.x), number(dial.y));
-  svg += line({dial.x, dial.y}, {dial.x, dial.y - 4.0}, "stroke=\"#000\" stroke-width=\"0.2\" stroke-dasharray=\"0.6 0.5\"");
+  svg += fmt::format(
+      "<circle cx=\"{}\" cy=\"{}\" r=\"4\" fill=\"none\" stroke=\"#000\" stroke-width=\"0.15\"/>\n",
+      number(dial.x), number(dial.y));
+  svg += line({dial.x, dial.y}, {dial.x, dial.y - 4.0},
+              "stroke=\"#000\" stroke-width=\"0.2\" stroke-dasharray=\"0.6 0.5\"");
   svg += line({dial.x, dial.y}, {dial.x - 4.0 * std::sin(rad), dial.y - 4.0 * std::cos(rad)},
               "stroke=\"#000\" stroke-width=\"0.45\"");
   svg += text({dial.x - 5.5, dial.y}, fmt::format("coll. {:.1f}\u00B0", c.collimator_deg), "end", 2.5);
@@ -316,7 +332,8 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
          line({bx + bar_mm, by - 1.5}, {bx + bar_mm, by + 1.0}, bar) +
          line({bx + 0.5 * bar_mm, by - 1.0}, {bx + 0.5 * bar_mm, by}, bar);
   svg += text({bx, by - 3.2}, fmt::format("{:g} cm at isocentre", bar_cm), "start", 2.5);
-  svg += text({w - 4.0, h - 4.5}, fmt::format("scale {} at isocentre plane", scale_text(m.scale())), "end", 2.5);
+  svg +=
+      text({w - 4.0, h - 4.5}, fmt::format("scale {} at isocentre plane", scale_text(m.scale())), "end", 2.5);
   svg += "</svg>\n";
   return svg;
 }

@@ -23,9 +23,11 @@ FormalismDose with_method(const beamdata::BeamData& data, const std::vector<engi
 
 }  // namespace
 
-const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number, std::optional<int> fraction_group) {
+const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number,
+                                  std::optional<int> fraction_group) {
   for (const check::BeamCheck& b : check.beams) {
-    if (b.beam_number == beam_number && (!fraction_group || b.fraction_group_number == *fraction_group)) return &b;
+    if (b.beam_number == beam_number && (!fraction_group || b.fraction_group_number == *fraction_group))
+      return &b;
   }
   return nullptr;
 }
@@ -46,7 +48,8 @@ BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::Sensiti
   }
   e.tmr = with_method(*c.beam_data, e.parts, engine::Method::tmr);
   e.pdd = with_method(*c.beam_data, e.parts, engine::Method::pdd);
-  if (e.tmr->dose_cgy > 0.0) e.formalism_difference_percent = 100.0 * (e.pdd->dose_cgy - e.tmr->dose_cgy) / e.tmr->dose_cgy;
+  if (e.tmr->dose_cgy > 0.0)
+    e.formalism_difference_percent = 100.0 * (e.pdd->dose_cgy - e.tmr->dose_cgy) / e.tmr->dose_cgy;
   if (!beam.planned_dose_gy) {
     e.sensitivity_note = "the plan gives no Beam Dose (300A,0084) to reconcile with";
   } else if (!(*beam.planned_dose_gy > 0.0)) {

@@ -70,8 +70,9 @@ json geometry_json(const engine::BeamDose& c) {
   g["patient_position"] = c.patient_position ? json(geometry::to_code(*c.patient_position)) : json(nullptr);
   if (c.patient_position) {
     const Eigen::Matrix3d m = geometry::patient_to_table_top(*c.patient_position);
-    g["patient_to_table_top"] = json::array({json::array({m(0, 0), m(0, 1), m(0, 2)}), json::array({m(1, 0), m(1, 1), m(1, 2)}),
-                                             json::array({m(2, 0), m(2, 1), m(2, 2)})});
+    g["patient_to_table_top"] =
+        json::array({json::array({m(0, 0), m(0, 1), m(0, 2)}), json::array({m(1, 0), m(1, 1), m(1, 2)}),
+                     json::array({m(2, 0), m(2, 1), m(2, 2)})});
   } else {
     g["patient_to_table_top"] = nullptr;
   }
@@ -101,7 +102,10 @@ json geometry_json(const engine::BeamDose& c) {
   g["point_in_field"] = c.point_in_field;
   g["edge_distance_mm"] = c.edge_distance_mm;
   const auto& j = c.aperture.jaws();
-  g["jaws"] = {{"x1_mm", j.x1_mm}, {"x2_mm", j.x2_mm}, {"y1_mm", j.y1_mm}, {"y2_mm", j.y2_mm},
+  g["jaws"] = {{"x1_mm", j.x1_mm},
+               {"x2_mm", j.x2_mm},
+               {"y1_mm", j.y1_mm},
+               {"y2_mm", j.y2_mm},
                {"x_from_mlc_envelope", j.x_source == geometry::JawSource::mlc_envelope},
                {"y_from_mlc_envelope", j.y_source == geometry::JawSource::mlc_envelope}};
   g["aperture_area_cm2"] = c.aperture.area_mm2() / 100.0;
@@ -131,7 +135,8 @@ json beam_data_json(const check::PlanCheck& check, const engine::BeamDose& c) {
 }
 
 json sensitivity_json(const BeamExplanation& e) {
-  if (!e.sensitivity) return {{"note", e.sensitivity_note}, {"changes", json::array()}, {"factor_needed", json::array()}};
+  if (!e.sensitivity)
+    return {{"note", e.sensitivity_note}, {"changes", json::array()}, {"factor_needed", json::array()}};
   const engine::Sensitivity& s = *e.sensitivity;
   json changes = json::array();
   for (const engine::Reconciliation& r : s.changes) {
@@ -148,10 +153,13 @@ json sensitivity_json(const BeamExplanation& e) {
   json needed = json::array();
   const double ratio = s.baseline_dose_cgy > 0.0 ? s.target_dose_cgy / s.baseline_dose_cgy : 0.0;
   if (ratio > 0.0 && e.tmr && e.pdd) {
-    const engine::PointDose& used = e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
+    const engine::PointDose& used =
+        e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
     for (const FactorRow& row : factor_rows(used)) {
       const double value = row.factor->value;
-      needed.push_back({{"key", row.key}, {"value", value}, {"needed_value", row.role == "divides" ? value / ratio : value * ratio}});
+      needed.push_back({{"key", row.key},
+                        {"value", value},
+                        {"needed_value", row.role == "divides" ? value / ratio : value * ratio}});
     }
   }
   return {{"target_dose_gy", s.target_dose_cgy / 100.0},
@@ -191,7 +199,9 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["sop_instance_uid"] = check.sop_instance_uid;
   j["patient_id"] = check.patient_id;
   j["plan_label"] = check.plan_label;
-  j["beam"] = {{"number", beam.beam_number}, {"name", beam.beam_name}, {"fraction_group_number", beam.fraction_group_number}};
+  j["beam"] = {{"number", beam.beam_number},
+               {"name", beam.beam_name},
+               {"fraction_group_number", beam.fraction_group_number}};
   j["status"] = check::to_code(beam.status);
   j["reason"] = {{"code", engine::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
   j["meterset_mu"] = optional_json(beam.meterset_mu);
@@ -205,9 +215,10 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["tolerance_policy"] = check.options.policy.source;
 
   const engine::BeamDose* c = beam.calculation ? &*beam.calculation : nullptr;
-  j["calculation_problem"] = c != nullptr && c->problem ? json({{"code", engine::reason_code(c->problem->reason)},
-                                                                {"sentence", c->problem->sentence}})
-                                                        : json(nullptr);
+  j["calculation_problem"] =
+      c != nullptr && c->problem
+          ? json({{"code", engine::reason_code(c->problem->reason)}, {"sentence", c->problem->sentence}})
+          : json(nullptr);
   j["beam_data"] = c != nullptr ? beam_data_json(check, *c) : json(nullptr);
   j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c) : json(nullptr);
   if (c != nullptr && c->dose_computed) {

@@ -18,26 +18,31 @@ std::string opt(const std::optional<double>& v, int decimals, std::string_view u
 
 std::string status_line(const check::BeamCheck& beam) {
   switch (beam.status) {
-    case check::Status::within_tolerance: return "WITHIN TOLERANCE";
-    case check::Status::outside_tolerance: return "OUTSIDE TOLERANCE";
-    case check::Status::not_checked: return "NOT CHECKED";
-    case check::Status::skipped: return "SKIPPED";
+    case check::Status::within_tolerance:
+      return "WITHIN TOLERANCE";
+    case check::Status::outside_tolerance:
+      return "OUTSIDE TOLERANCE";
+    case check::Status::not_checked:
+      return "NOT CHECKED";
+    case check::Status::skipped:
+      return "SKIPPED";
   }
   return "NOT CHECKED";
 }
 
 void factor_lines(std::string& out, const engine::PointDose& dose) {
-  out += fmt::format("    {:<52} {:>8}  {}\n", "output at the calibration point (cGy/MU)", fmt::format("{:.4f}", dose.factors.output_cgy_per_mu),
-                     "machine.toml");
+  out += fmt::format("    {:<52} {:>8}  {}\n", "output at the calibration point (cGy/MU)",
+                     fmt::format("{:.4f}", dose.factors.output_cgy_per_mu), "machine.toml");
   for (const FactorRow& row : factor_rows(dose)) {
     const engine::Factor& f = *row.factor;
-    out += fmt::format("    {:<52} {:>8.4f}  {}{}\n", row.name + (row.role == "divides" ? " (divides)" : ""), f.value,
-                       describe_basis(f), f.extrapolated() ? "  << EXTRAPOLATED" : "");
+    out += fmt::format("    {:<52} {:>8.4f}  {}{}\n", row.name + (row.role == "divides" ? " (divides)" : ""),
+                       f.value, describe_basis(f), f.extrapolated() ? "  << EXTRAPOLATED" : "");
     if (f.lookup) {
       for (const beamdata::AxisBracket& a : f.lookup->axes) {
-        out += fmt::format("        {} {:.3f}: rows/columns {}..{} (nodes {:g}..{:g}), weights {:.3f}/{:.3f}{}\n", a.axis,
-                           a.query, a.lower_index, a.upper_index, a.lower_node, a.upper_node, 1.0 - a.upper_weight,
-                           a.upper_weight, a.extrapolated ? ", OUTSIDE THE TABLE" : "");
+        out += fmt::format(
+            "        {} {:.3f}: nodes {:g}..{:g} (0-based data index {}..{}), weights {:.3f}/{:.3f}{}\n",
+            a.axis, a.query, a.lower_node, a.upper_node, a.lower_index, a.upper_index, 1.0 - a.upper_weight,
+            a.upper_weight, a.extrapolated ? ", OUTSIDE THE TABLE" : "");
       }
     }
   }
@@ -46,20 +51,23 @@ void factor_lines(std::string& out, const engine::PointDose& dose) {
 
 }  // namespace
 
-std::string explanation_text(const check::PlanCheck& check, const check::BeamCheck& beam, const BeamExplanation& e) {
+std::string explanation_text(const check::PlanCheck& check, const check::BeamCheck& beam,
+                             const BeamExplanation& e) {
   std::string out;
   out += fmt::format("Beam {} \"{}\", fraction group {}, of {}\n", beam.beam_number, beam.beam_name,
                      beam.fraction_group_number, check.source_file);
-  out += fmt::format("Patient {}  plan {}  SOP Instance UID {}\n\n", check.patient_id, check.plan_label, check.sop_instance_uid);
+  out += fmt::format("Patient {}  plan {}  SOP Instance UID {}\n\n", check.patient_id, check.plan_label,
+                     check.sop_instance_uid);
 
   out += fmt::format("Outcome: {}\n  {}\n", status_line(beam), beam.reason.sentence);
-  out += fmt::format("  MU {}  planned {} Gy  independent {} Gy  deviation {} %  tolerance {} %  independent MU {}\n",
-                     opt(beam.meterset_mu, 1), opt(beam.planned_dose_gy, 4), opt(beam.computed_dose_gy, 4),
-                     beam.deviation_percent ? fmt::format("{:+.2f}", *beam.deviation_percent) : "-",
-                     opt(beam.tolerance_percent, 1), opt(beam.independent_mu, 1));
+  out += fmt::format(
+      "  MU {}  planned {} Gy  independent {} Gy  deviation {} %  tolerance {} %  independent MU {}\n",
+      opt(beam.meterset_mu, 1), opt(beam.planned_dose_gy, 4), opt(beam.computed_dose_gy, 4),
+      beam.deviation_percent ? fmt::format("{:+.2f}", *beam.deviation_percent) : "-",
+      opt(beam.tolerance_percent, 1), opt(beam.independent_mu, 1));
   if (beam.category) {
-    out += fmt::format("  category {} ({}), policy: {}\n", check::to_code(*beam.category), check::to_code(beam.medium),
-                       check.options.policy.source);
+    out += fmt::format("  category {} ({}), policy: {}\n", check::to_code(*beam.category),
+                       check::to_code(beam.medium), check.options.policy.source);
   }
 
   if (!beam.calculation) {
@@ -72,13 +80,15 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
 
   out += "\nBeam data\n";
   out += fmt::format("  library {}  SHA-256 {}\n", check.beamdata_root, check.beamdata_sha256);
-  if (c.machine != nullptr) out += fmt::format("  machine {} ({})\n", c.machine->name, c.machine->manifest.string());
+  if (c.machine != nullptr)
+    out += fmt::format("  machine {} ({})\n", c.machine->name, c.machine->manifest.string());
   if (c.beam_data != nullptr) {
     const auto& d = *c.beam_data;
-    out += fmt::format("  beam {} {} {:g} MV, dmax {:g} cm, PDD measured at SSD {:g} cm\n", d.id, d.radiation, d.energy_mv,
-                       d.dmax_cm, d.pdd_ssd_cm);
-    out += fmt::format("  calibration {:.4f} cGy/MU, {:g} cm field, SSD {:g} cm, depth {:g} cm\n", d.calibration.output_cgy_per_mu,
-                       d.calibration.field_cm, d.calibration.ssd_cm, d.calibration.depth_cm);
+    out += fmt::format("  beam {} {} {:g} MV, dmax {:g} cm, PDD measured at SSD {:g} cm\n", d.id, d.radiation,
+                       d.energy_mv, d.dmax_cm, d.pdd_ssd_cm);
+    out += fmt::format("  calibration {:.4f} cGy/MU, {:g} cm field, SSD {:g} cm, depth {:g} cm\n",
+                       d.calibration.output_cgy_per_mu, d.calibration.field_cm, d.calibration.ssd_cm,
+                       d.calibration.depth_cm);
   }
 
   if (c.point.spd_mm > 0.0) {
@@ -91,31 +101,38 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
         out += fmt::format("      [{:+.0f} {:+.0f} {:+.0f}]\n", m(r, 0), m(r, 1), m(r, 2));
       }
     }
-    out += fmt::format("  gantry {:.1f} deg, collimator {:.1f} deg, couch {:.1f} deg, SAD {:.1f} mm\n", c.angles.gantry_deg,
-                       c.angles.collimator_deg, c.angles.couch_deg, c.sad_mm);
-    out += fmt::format("  isocentre ({:.1f}, {:.1f}, {:.1f}) mm; dose point ({:.1f}, {:.1f}, {:.1f}) mm from {}\n",
-                       c.isocenter_mm[0], c.isocenter_mm[1], c.isocenter_mm[2], c.dose_point.point_mm[0],
-                       c.dose_point.point_mm[1], c.dose_point.point_mm[2], engine::to_code(c.dose_point.source));
+    out += fmt::format("  gantry {:.1f} deg, collimator {:.1f} deg, couch {:.1f} deg, SAD {:.1f} mm\n",
+                       c.angles.gantry_deg, c.angles.collimator_deg, c.angles.couch_deg, c.sad_mm);
+    out += fmt::format(
+        "  isocentre ({:.1f}, {:.1f}, {:.1f}) mm; dose point ({:.1f}, {:.1f}, {:.1f}) mm from {}\n",
+        c.isocenter_mm[0], c.isocenter_mm[1], c.isocenter_mm[2], c.dose_point.point_mm[0],
+        c.dose_point.point_mm[1], c.dose_point.point_mm[2], engine::to_code(c.dose_point.source));
     const auto& p = c.point.collimator_mm;
-    out += fmt::format("  point in collimator coordinates ({:.1f}, {:.1f}, {:.1f}) mm\n", p.x(), p.y(), p.z());
-    out += fmt::format("  SPD {:.1f} mm, ray length {:.1f} mm, SSD {}\n", c.point.spd_mm, c.point.ray_length_mm,
-                       opt(c.ssd_mm, 1, " mm"));
+    out +=
+        fmt::format("  point in collimator coordinates ({:.1f}, {:.1f}, {:.1f}) mm\n", p.x(), p.y(), p.z());
+    out += fmt::format("  SPD {:.1f} mm, ray length {:.1f} mm, SSD {}\n", c.point.spd_mm,
+                       c.point.ray_length_mm, opt(c.ssd_mm, 1, " mm"));
     out += fmt::format("  depth {:.1f} mm: {}\n", c.depth.depth_mm, c.depth.description);
-    out += fmt::format("    plan depth {}, plan equivalent depth {}, SPD - SSD {}\n", opt(c.depth.plan_depth_mm, 1, " mm"),
-                       opt(c.depth.plan_equivalent_depth_mm, 1, " mm"), opt(c.depth.spd_minus_ssd_mm, 1, " mm"));
-    out += fmt::format("  off axis {:.1f} mm at the isocentre plane, projected to ({:.1f}, {:.1f}) mm; {} the field, "
-                       "{:.1f} mm from its nearest edge\n",
-                       c.point.off_axis_mm, c.point.iso_plane_x_mm, c.point.iso_plane_y_mm,
-                       c.point_in_field ? "inside" : "OUTSIDE", c.edge_distance_mm);
+    out += fmt::format("    plan depth {}, plan equivalent depth {}, SPD - SSD {}\n",
+                       opt(c.depth.plan_depth_mm, 1, " mm"), opt(c.depth.plan_equivalent_depth_mm, 1, " mm"),
+                       opt(c.depth.spd_minus_ssd_mm, 1, " mm"));
+    out += fmt::format(
+        "  off axis {:.1f} mm at the isocentre plane, projected to ({:.1f}, {:.1f}) mm; {} the field, "
+        "{:.1f} mm from its nearest edge\n",
+        c.point.off_axis_mm, c.point.iso_plane_x_mm, c.point.iso_plane_y_mm,
+        c.point_in_field ? "inside" : "OUTSIDE", c.edge_distance_mm);
     const auto& j = c.aperture.jaws();
-    out += fmt::format("  jaws X1 {:.1f} X2 {:.1f} Y1 {:.1f} Y2 {:.1f} mm; opening {:.2f} cm2, perimeter {:.2f} cm{}\n", j.x1_mm,
-                       j.x2_mm, j.y1_mm, j.y2_mm, c.aperture.area_mm2() / 100.0, c.aperture.perimeter_mm() / 10.0,
-                       c.aperture.shaped_by_mlc() ? ", shaped by MLC" : "");
+    out += fmt::format(
+        "  jaws X1 {:.1f} X2 {:.1f} Y1 {:.1f} Y2 {:.1f} mm; opening {:.2f} cm2, perimeter {:.2f} cm{}\n",
+        j.x1_mm, j.x2_mm, j.y1_mm, j.y2_mm, c.aperture.area_mm2() / 100.0, c.aperture.perimeter_mm() / 10.0,
+        c.aperture.shaped_by_mlc() ? ", shaped by MLC" : "");
     if (c.dose_computed) {
       const auto& s = c.dose.fields;
-      out += fmt::format("  equivalent squares: collimator (s_c) {:.2f} cm; at isocentre {:.2f} cm; surface (s_s) {:.2f} cm; "
-                         "at the point (s_d) {:.2f} cm; at SSD + dmax (s_d0) {:.2f} cm\n",
-                         s.collimator_cm, s.isocentre_cm, s.surface_cm, s.point_cm, s.normalisation_depth_cm);
+      out += fmt::format(
+          "  equivalent squares: collimator (s_c) {:.2f} cm; at isocentre {:.2f} cm; surface (s_s) {:.2f} "
+          "cm; "
+          "at the point (s_d) {:.2f} cm; at SSD + dmax (s_d0) {:.2f} cm\n",
+          s.collimator_cm, s.isocentre_cm, s.surface_cm, s.point_cm, s.normalisation_depth_cm);
     }
   }
 
@@ -123,16 +140,20 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     out += fmt::format("\nFactors ({}; {})\n", engine::to_code(c.method), c.method_reason);
     if (c.segments.size() > 1) out += "  (first part of the beam; every part is listed below)\n";
     factor_lines(out, c.dose);
-    out += fmt::format("    x {:.2f} MU = {:.3f} cGy for the beam\n", c.meterset_mu, c.computed_dose_gy * 100.0);
+    out +=
+        fmt::format("    x {:.2f} MU = {:.3f} cGy for the beam\n", c.meterset_mu, c.computed_dose_gy * 100.0);
     if (c.segments.size() > 1) {
-      out += fmt::format("\nParts ({})\n    part  from_cp       MU  gantry  field_cm  depth_mm  point          dose_cGy\n",
-                         c.segments.size());
+      out += fmt::format(
+          "\nParts ({})\n    part  from_cp       MU  gantry  field_cm  depth_mm  point          dose_cGy\n",
+          c.segments.size());
       for (std::size_t i = 0; i < c.segments.size(); ++i) {
         const auto& s = c.segments[i];
-        out += fmt::format("    {:>4}  {:>7}  {:>7.2f}  {:>6.1f}  {:>8.2f}  {:>8.1f}  {:<13}  {:>8.3f}\n", i + 1,
-                           s.from_control_point, s.meterset_mu, s.angles.gantry_deg, s.inputs.field_at_isocentre_cm,
-                           s.depth_mm, s.point_in_opening ? "in opening" : (s.point_in_jaws ? "under leaves" : "outside jaws"),
-                           s.dose.dose_cgy);
+        out += fmt::format(
+            "    {:>4}  {:>7}  {:>7.2f}  {:>6.1f}  {:>8.2f}  {:>8.1f}  {:<13}  {:>8.3f}\n", i + 1,
+            s.from_control_point, s.meterset_mu, s.angles.gantry_deg, s.inputs.field_at_isocentre_cm,
+            s.depth_mm,
+            s.point_in_opening ? "in opening" : (s.point_in_jaws ? "under leaves" : "outside jaws"),
+            s.dose.dose_cgy);
       }
     }
   }
@@ -143,7 +164,9 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     const auto value_of = [](const engine::PointDose& d, const std::string& key) -> std::string {
       for (const FactorRow& row : factor_rows(d, FactorSelection::all_factors)) {
         if (row.key == key) {
-          return row.factor->basis == engine::FactorBasis::not_applicable ? "-" : fmt::format("{:.4f}", row.factor->value);
+          return row.factor->basis == engine::FactorBasis::not_applicable
+                     ? "-"
+                     : fmt::format("{:.4f}", row.factor->value);
         }
       }
       return "-";
@@ -154,11 +177,13 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
       if (a == "-" && b == "-") continue;
       out += fmt::format("    {:<40} {:>12} {:>12}\n", row.key, a, b);
     }
-    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "dose per MU, first part (cGy/MU)", e.tmr->first_part.dose_per_mu_cgy,
-                       e.pdd->first_part.dose_per_mu_cgy);
-    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "beam dose (Gy)", e.tmr->dose_cgy / 100.0, e.pdd->dose_cgy / 100.0);
-    out += fmt::format("    PDD form - TMR form: {} %\n",
-                       e.formalism_difference_percent ? fmt::format("{:+.2f}", *e.formalism_difference_percent) : "-");
+    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "dose per MU, first part (cGy/MU)",
+                       e.tmr->first_part.dose_per_mu_cgy, e.pdd->first_part.dose_per_mu_cgy);
+    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "beam dose (Gy)", e.tmr->dose_cgy / 100.0,
+                       e.pdd->dose_cgy / 100.0);
+    out += fmt::format(
+        "    PDD form - TMR form: {} %\n",
+        e.formalism_difference_percent ? fmt::format("{:+.2f}", *e.formalism_difference_percent) : "-");
   }
 
   out += "\nWhat would reconcile the independent dose with the planned dose\n";
@@ -167,16 +192,23 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
   } else {
     const auto& s = *e.sensitivity;
     const double ratio = s.baseline_dose_cgy > 0.0 ? s.target_dose_cgy / s.baseline_dose_cgy : 0.0;
-    out += fmt::format("  planned {:.4f} Gy, independent {:.4f} Gy (planned / independent = {:.4f})\n", s.target_dose_cgy / 100.0,
-                       s.baseline_dose_cgy / 100.0, ratio);
+    out += fmt::format("  planned {:.4f} Gy, independent {:.4f} Gy (planned / independent = {:.4f})\n",
+                       s.target_dose_cgy / 100.0, s.baseline_dose_cgy / 100.0, ratio);
+    if (beam.meterset_mu && beam.independent_mu) {
+      out += fmt::format(
+          "  the meterset: the plan has {:.1f} MU, this calculation needs {:.1f} MU for the planned dose\n",
+          *beam.meterset_mu, *beam.independent_mu);
+    }
     out += "  each change alone, every other input as calculated:\n";
     for (const auto& r : s.changes) out += fmt::format("  - {}\n", r.sentence);
     if (ratio > 0.0 && !e.parts.empty() && e.tmr && e.pdd) {
-      const engine::PointDose& used = e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
+      const engine::PointDose& used =
+          e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
       out += "  or a single factor off by the whole difference (value needed):\n";
       for (const FactorRow& row : factor_rows(used)) {
         const double v = row.factor->value;
-        out += fmt::format("      {:<52} {:.4f} -> {:.4f}\n", row.name, v, row.role == "divides" ? v / ratio : v * ratio);
+        out += fmt::format("      {:<52} {:.4f} -> {:.4f}\n", row.name, v,
+                           row.role == "divides" ? v / ratio : v * ratio);
       }
     }
   }

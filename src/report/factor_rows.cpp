@@ -13,11 +13,12 @@ std::vector<FactorRow> factor_rows(const engine::PointDose& dose, FactorSelectio
     rows.push_back({key, name, role, &factor});
   };
   add("calibration_depth",
-      tmr ? "Calibration-depth term TMR(d_c, s_ref)" : "Calibration-depth term PDD(d_c, s_ref)/100 x F", "divides",
-      f.calibration_depth);
+      tmr ? "Calibration-depth term TMR(d_c, s_ref)" : "Calibration-depth term PDD(d_c, s_ref)/100 x F",
+      "divides", f.calibration_depth);
   add("sc", "Collimator scatter Sc(s_c)", "multiplies", f.sc);
   add("sp", tmr ? "Phantom scatter Sp(s_d)" : "Phantom scatter Sp(s_d0)", "multiplies", f.sp);
-  if (tmr || selection == FactorSelection::all_factors) add("tmr", "Tissue-maximum ratio TMR(d, s_d)", "multiplies", f.tmr);
+  if (tmr || selection == FactorSelection::all_factors)
+    add("tmr", "Tissue-maximum ratio TMR(d, s_d)", "multiplies", f.tmr);
   if (!tmr || selection == FactorSelection::all_factors) {
     add("pdd", "Percent depth dose PDD(d, s_s)/100 at the table SSD", "multiplies", f.pdd);
     add("mayneord_f", "Mayneord F factor", "multiplies", f.mayneord_f);
@@ -27,8 +28,9 @@ std::vector<FactorRow> factor_rows(const engine::PointDose& dose, FactorSelectio
   add("wedge", "Wedge factor", "multiplies", f.wedge);
   add("tray", "Tray factor", "multiplies", f.tray);
   add("transmission", "MLC transmission", "multiplies", f.transmission);
-  add("inverse_square", tmr ? "Inverse square (SCD_ref/SPD)^2" : "Inverse square ((SSD_ref + d0)/(SSD + d0))^2",
-      "multiplies", f.inverse_square);
+  add("inverse_square",
+      tmr ? "Inverse square (SCD_ref/SPD)^2" : "Inverse square ((SSD_ref + d0)/(SSD + d0))^2", "multiplies",
+      f.inverse_square);
   return rows;
 }
 
@@ -39,8 +41,8 @@ std::string describe_lookup(const beamdata::Lookup& lookup) {
     if (a.lower_index == a.upper_index) {
       text += fmt::format("{} {:.2f} at node {:g}", a.axis, a.query, a.lower_node);
     } else {
-      text += fmt::format("{} {:.2f} between {:g} and {:g} (weight {:.3f} on {:g})", a.axis, a.query, a.lower_node,
-                          a.upper_node, a.upper_weight, a.upper_node);
+      text += fmt::format("{} {:.2f} between {:g} and {:g} (weight {:.3f} on {:g})", a.axis, a.query,
+                          a.lower_node, a.upper_node, a.upper_weight, a.upper_node);
     }
     if (a.extrapolated) text += " OUTSIDE THE TABLE";
   }
@@ -51,10 +53,14 @@ std::string describe_basis(const engine::Factor& factor) {
   switch (factor.basis) {
     case engine::FactorBasis::table:
       return factor.lookup ? fmt::format("table {}", factor.lookup->table_file) : std::string{"table"};
-    case engine::FactorBasis::manifest_constant: return "constant from machine.toml";
-    case engine::FactorBasis::formula: return "computed from distances";
-    case engine::FactorBasis::not_applicable: return "not part of this beam or formalism";
-    case engine::FactorBasis::on_axis_unity: return "1: point on the central axis, no OAR table";
+    case engine::FactorBasis::manifest_constant:
+      return "constant from machine.toml";
+    case engine::FactorBasis::formula:
+      return "computed from distances";
+    case engine::FactorBasis::not_applicable:
+      return "not part of this beam or formalism";
+    case engine::FactorBasis::on_axis_unity:
+      return "1: point on the central axis, no OAR table";
   }
   return "";
 }

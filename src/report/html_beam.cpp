@@ -31,14 +31,18 @@ std::string setup_facts(const engine::BeamDose& c) {
     out += fact("Machine / beam", fmt::format("{} / {} ({:g} MV {})", c.machine->name, c.beam_data->id,
                                               c.beam_data->energy_mv, c.beam_data->radiation));
   }
-  out += fact("Gantry / coll. / couch", fmt::format("{:.1f}\u00B0 / {:.1f}\u00B0 / {:.1f}\u00B0", c.angles.gantry_deg,
-                                                     c.angles.collimator_deg, c.angles.couch_deg));
-  if (c.patient_position) out += fact("Patient position", std::string(geometry::to_code(*c.patient_position)));
+  out += fact("Gantry / coll. / couch",
+              fmt::format("{:.1f}\u00B0 / {:.1f}\u00B0 / {:.1f}\u00B0", c.angles.gantry_deg,
+                          c.angles.collimator_deg, c.angles.couch_deg));
+  if (c.patient_position)
+    out += fact("Patient position", std::string(geometry::to_code(*c.patient_position)));
   const auto& j = c.aperture.jaws();
-  out += fact("Jaws X1 / X2 mm", fmt::format("{:.1f} / {:.1f}{}", j.x1_mm, j.x2_mm,
-                                              j.x_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
-  out += fact("Jaws Y1 / Y2 mm", fmt::format("{:.1f} / {:.1f}{}", j.y1_mm, j.y2_mm,
-                                              j.y_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
+  out += fact("Jaws X1 / X2 mm",
+              fmt::format("{:.1f} / {:.1f}{}", j.x1_mm, j.x2_mm,
+                          j.x_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
+  out += fact("Jaws Y1 / Y2 mm",
+              fmt::format("{:.1f} / {:.1f}{}", j.y1_mm, j.y2_mm,
+                          j.y_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
   out += fact("Opening (cp 0)", fmt::format("{:.1f} cm\u00B2{}", c.aperture.area_mm2() / 100.0,
                                             c.aperture.shaped_by_mlc() ? ", shaped by MLC" : ", jaws only"));
   if (c.ssd_mm) out += fact("SSD", fmt::format("{:.1f} mm", *c.ssd_mm));
@@ -51,8 +55,8 @@ std::string setup_facts(const engine::BeamDose& c) {
   if (c.dose_computed) {
     const engine::FieldSizes& s = c.dose.fields;
     out += fact("Equivalent squares cm",
-                fmt::format("collimator {:.2f}; at isocentre {:.2f}; surface {:.2f}; at point {:.2f}", s.collimator_cm,
-                            s.isocentre_cm, s.surface_cm, s.point_cm));
+                fmt::format("collimator {:.2f}; at isocentre {:.2f}; surface {:.2f}; at point {:.2f}",
+                            s.collimator_cm, s.isocentre_cm, s.surface_cm, s.point_cm));
   }
   out += "</table>\n";
   return out;
@@ -64,45 +68,58 @@ std::string factor_table(const engine::BeamDose& c) {
       "<table class=\"factors\"><thead><tr><th>Factor</th><th class=\"num\">Value</th><th>Source</th>"
       "<th>Looked up at</th></tr></thead><tbody>\n";
   const beamdata::Calibration* cal = c.beam_data != nullptr ? &c.beam_data->calibration : nullptr;
-  out += fmt::format("<tr><td>Calibrated output \u1E0A<sub>ref</sub> (cGy/MU)</td><td class=\"num\">{:.4f}</td><td>machine.toml</td><td class=\"lookup\">{}</td></tr>\n",
-                     d.factors.output_cgy_per_mu,
-                     cal != nullptr ? fmt::format("{:g} \u00D7 {:g} cm field, SSD {:g} cm, depth {:g} cm", cal->field_cm,
-                                                  cal->field_cm, cal->ssd_cm, cal->depth_cm)
-                                    : std::string{});
+  out += fmt::format(
+      "<tr><td>Calibrated output \u1E0A<sub>ref</sub> (cGy/MU)</td><td "
+      "class=\"num\">{:.4f}</td><td>machine.toml</td><td class=\"lookup\">{}</td></tr>\n",
+      d.factors.output_cgy_per_mu,
+      cal != nullptr ? fmt::format("{:g} \u00D7 {:g} cm field, SSD {:g} cm, depth {:g} cm", cal->field_cm,
+                                   cal->field_cm, cal->ssd_cm, cal->depth_cm)
+                     : std::string{});
   for (const FactorRow& row : factor_rows(d)) {
     const engine::Factor& f = *row.factor;
     const bool outside = f.extrapolated();
-    out += fmt::format("<tr{}><td>{}{}</td><td class=\"num\">{:.4f}</td><td>{}</td><td class=\"lookup\">{}</td></tr>\n",
-                       outside ? " class=\"outside\"" : "", html_escape(row.name),
-                       row.role == "divides" ? " (divides)" : "", f.value, html_escape(describe_basis(f)),
-                       f.lookup ? html_escape(describe_lookup(*f.lookup)) : std::string{});
+    out += fmt::format(
+        "<tr{}><td>{}{}</td><td class=\"num\">{:.4f}</td><td>{}</td><td class=\"lookup\">{}</td></tr>\n",
+        outside ? " class=\"outside\"" : "", html_escape(row.name), row.role == "divides" ? " (divides)" : "",
+        f.value, html_escape(describe_basis(f)),
+        f.lookup ? html_escape(describe_lookup(*f.lookup)) : std::string{});
   }
-  out += fmt::format("<tr class=\"total\"><td>Dose per MU (cGy/MU)</td><td class=\"num\">{:.4f}</td><td colspan=\"2\"></td></tr>\n",
-                     d.dose_per_mu_cgy);
-  out += fmt::format("<tr><td>\u00D7 Meterset (MU)</td><td class=\"num\">{:.1f}</td><td colspan=\"2\"></td></tr>\n",
-                     c.meterset_mu);
-  out += fmt::format("<tr class=\"total\"><td>Independent dose (cGy)</td><td class=\"num\">{:.2f}</td><td colspan=\"2\"></td></tr>\n",
-                     c.computed_dose_gy * 100.0);
+  out += fmt::format(
+      "<tr class=\"total\"><td>Dose per MU (cGy/MU)</td><td class=\"num\">{:.4f}</td><td "
+      "colspan=\"2\"></td></tr>\n",
+      d.dose_per_mu_cgy);
+  out += fmt::format(
+      "<tr><td>\u00D7 Meterset (MU)</td><td class=\"num\">{:.1f}</td><td colspan=\"2\"></td></tr>\n",
+      c.meterset_mu);
+  out += fmt::format(
+      "<tr class=\"total\"><td>Independent dose (cGy)</td><td class=\"num\">{:.2f}</td><td "
+      "colspan=\"2\"></td></tr>\n",
+      c.computed_dose_gy * 100.0);
   out += "</tbody></table>\n";
   return out;
 }
 
 std::string parts_table(const engine::BeamDose& c) {
   std::string out = fmt::format(
-      "<p>The meterset is delivered in {} parts; each part is computed like a static field and the doses are summed.</p>\n"
-      "<table class=\"factors\"><thead><tr><th class=\"num\">Part</th><th class=\"num\">From CP</th><th class=\"num\">MU</th>"
-      "<th class=\"num\">Gantry\u00B0</th><th class=\"num\">Eq. sq. at iso cm</th><th class=\"num\">Depth mm</th>"
+      "<p>The meterset is delivered in {} parts; each part is computed like a static field and the doses are "
+      "summed.</p>\n"
+      "<table class=\"factors\"><thead><tr><th class=\"num\">Part</th><th class=\"num\">From CP</th><th "
+      "class=\"num\">MU</th>"
+      "<th class=\"num\">Gantry\u00B0</th><th class=\"num\">Eq. sq. at iso cm</th><th class=\"num\">Depth "
+      "mm</th>"
       "<th>Point</th><th class=\"num\">Dose cGy</th></tr></thead><tbody>\n",
       c.segments.size());
   const std::size_t shown = std::min(c.segments.size(), max_part_rows);
   for (std::size_t i = 0; i < shown; ++i) {
     const engine::Segment& s = c.segments[i];
-    const std::string where = s.point_in_opening ? "in opening" : (s.point_in_jaws ? "under leaves" : "outside jaws");
-    out += fmt::format("<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{:.2f}</td>"
-                       "<td class=\"num\">{:.1f}</td><td class=\"num\">{:.2f}</td><td class=\"num\">{:.1f}</td><td>{}</td>"
-                       "<td class=\"num\">{:.2f}</td></tr>\n",
-                       i + 1, s.from_control_point, s.meterset_mu, s.angles.gantry_deg, s.inputs.field_at_isocentre_cm,
-                       s.depth_mm, where, s.dose.dose_cgy);
+    const std::string where =
+        s.point_in_opening ? "in opening" : (s.point_in_jaws ? "under leaves" : "outside jaws");
+    out += fmt::format(
+        "<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{:.2f}</td>"
+        "<td class=\"num\">{:.1f}</td><td class=\"num\">{:.2f}</td><td class=\"num\">{:.1f}</td><td>{}</td>"
+        "<td class=\"num\">{:.2f}</td></tr>\n",
+        i + 1, s.from_control_point, s.meterset_mu, s.angles.gantry_deg, s.inputs.field_at_isocentre_cm,
+        s.depth_mm, where, s.dose.dose_cgy);
   }
   if (shown < c.segments.size()) {
     double rest_mu = 0.0, rest_cgy = 0.0;
@@ -110,13 +127,15 @@ std::string parts_table(const engine::BeamDose& c) {
       rest_mu += c.segments[i].meterset_mu;
       rest_cgy += c.segments[i].dose.dose_cgy;
     }
-    out += fmt::format("<tr><td colspan=\"2\">{} more</td><td class=\"num\">{:.2f}</td><td colspan=\"4\">"
-                       "(every part: countersign explain)</td><td class=\"num\">{:.2f}</td></tr>\n",
-                       c.segments.size() - shown, rest_mu, rest_cgy);
+    out += fmt::format(
+        "<tr><td colspan=\"2\">{} more</td><td class=\"num\">{:.2f}</td><td colspan=\"4\">"
+        "(every part: countersign explain)</td><td class=\"num\">{:.2f}</td></tr>\n",
+        c.segments.size() - shown, rest_mu, rest_cgy);
   }
-  out += fmt::format("<tr class=\"total\"><td colspan=\"2\">Beam</td><td class=\"num\">{:.2f}</td><td colspan=\"4\"></td>"
-                     "<td class=\"num\">{:.2f}</td></tr>\n</tbody></table>\n",
-                     c.meterset_mu, c.computed_dose_gy * 100.0);
+  out += fmt::format(
+      "<tr class=\"total\"><td colspan=\"2\">Beam</td><td class=\"num\">{:.2f}</td><td colspan=\"4\"></td>"
+      "<td class=\"num\">{:.2f}</td></tr>\n</tbody></table>\n",
+      c.meterset_mu, c.computed_dose_gy * 100.0);
   return out;
 }
 
@@ -126,17 +145,19 @@ std::string figure(const engine::BeamDose& c, const HtmlOptions& options, int be
   const BevPanel panel;
   const BevMapping mapping = bev_mapping(*content, panel);
   std::string caption = fmt::format(
-      "Beam's-eye view from the source, scale {} at the isocentre plane (a 10 cm field side is {:g} mm). Thick line: "
+      "Beam's-eye view from the source, scale {} at the isocentre plane (a 10 cm field side is {:g} mm). "
+      "Thick line: "
       "jaws X1/X2, Y1/Y2; dash-dot: collimator axes; \u2295 central axis; P: the dose point projected to the "
       "isocentre plane ({:.1f} mm off axis).",
       scale_text(mapping.scale()), 100.0 * mapping.scale(), content->off_axis_mm);
   if (content->shaped_by_mlc) caption += " Grey: MLC leaves inside the jaws.";
   if (content->modulated) {
-    caption += content->outline_known
-                   ? " Grey: area open in at least one part of the beam; dashed: envelope of the jaws; small circles: the "
-                     "point as each part sees it."
-                   : " Dashed: envelope of the jaws of all parts (leaf shapes need the plan); small circles: the point "
-                     "as each part sees it.";
+    caption += content->outline_known ? " Grey: area open in at least one part of the beam; dashed: envelope "
+                                        "of the jaws; small circles: the "
+                                        "point as each part sees it."
+                                      : " Dashed: envelope of the jaws of all parts (leaf shapes need the "
+                                        "plan); small circles: the point "
+                                        "as each part sees it.";
   }
   return fmt::format("<figure>{}<figcaption>{}</figcaption></figure>\n", beams_eye_view_svg(*content, panel),
                      html_escape(caption));
@@ -146,25 +167,33 @@ std::string figure(const engine::BeamDose& c, const HtmlOptions& options, int be
 
 std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& beam, std::size_t index,
                          std::size_t count, const HtmlOptions& options) {
-  std::string out = fmt::format("<section class=\"beam\" id=\"beam-{}-{}\">\n", beam.fraction_group_number, beam.beam_number);
-  out += fmt::format("<div class=\"running\"><span>Patient {} \u00B7 {} \u00B7 plan {}</span><span>Beam page {} of {}</span></div>\n",
-                     html_escape(or_dash(check.patient_id)), html_escape(person_name(check.patient_name)),
-                     html_escape(or_dash(check.plan_label)), index + 1, count);
+  std::string out = fmt::format("<section class=\"beam\" id=\"beam-{}-{}\">\n", beam.fraction_group_number,
+                                beam.beam_number);
+  out += fmt::format(
+      "<div class=\"running\"><span>Patient {} \u00B7 {} \u00B7 plan {}</span><span>Beam page {} of "
+      "{}</span></div>\n",
+      html_escape(or_dash(check.patient_id)), html_escape(person_name(check.patient_name)),
+      html_escape(or_dash(check.plan_label)), index + 1, count);
   out += fmt::format("<h2>Beam {} \u201C{}\u201D \u2013 fraction group {}</h2>\n", beam.beam_number,
                      html_escape(or_dash(beam.beam_name)), beam.fraction_group_number);
 
-  out += "<table class=\"summary\"><thead><tr><th class=\"num\">MU</th><th class=\"num\">Planned Gy</th>"
-         "<th class=\"num\">Independent Gy</th><th class=\"num\">Deviation %</th><th class=\"num\">Tolerance %</th>"
-         "<th class=\"num\">Independent MU</th><th>Outcome</th></tr></thead><tbody>\n";
-  out += fmt::format("<tr class=\"{}\"><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>"
-                     "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"word\">{}</td></tr>\n"
-                     "</tbody></table>\n",
-                     status_class(beam.status), fixed(beam.meterset_mu, 1), fixed(beam.planned_dose_gy, 3),
-                     fixed(beam.computed_dose_gy, 3), signed_fixed(beam.deviation_percent, 1),
-                     beam.tolerance_percent ? "\u00B1" + fixed(beam.tolerance_percent, 1) : std::string{"\u2013"},
-                     fixed(beam.independent_mu, 1), status_words(beam.status));
-  out += fmt::format("<div class=\"outcome {}\"><div class=\"word\">{}</div><div>{}</div></div>\n", status_class(beam.status),
-                     status_words(beam.status), html_escape(verdict_sentence(beam)));
+  out +=
+      "<table class=\"summary\"><thead><tr><th class=\"num\">MU</th><th class=\"num\">Planned Gy</th>"
+      "<th class=\"num\">Independent Gy</th><th class=\"num\">Deviation %</th><th class=\"num\">Tolerance "
+      "%</th>"
+      "<th class=\"num\">Independent MU</th><th>Outcome</th></tr></thead><tbody>\n";
+  out += fmt::format(
+      "<tr class=\"{}\"><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>"
+      "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td "
+      "class=\"word\">{}</td></tr>\n"
+      "</tbody></table>\n",
+      status_class(beam.status), fixed(beam.meterset_mu, 1), fixed(beam.planned_dose_gy, 3),
+      fixed(beam.computed_dose_gy, 3), signed_fixed(beam.deviation_percent, 1),
+      beam.tolerance_percent ? "\u00B1" + fixed(beam.tolerance_percent, 1) : std::string{"\u2013"},
+      fixed(beam.independent_mu, 1), status_words(beam.status));
+  out +=
+      fmt::format("<div class=\"outcome {}\"><div class=\"word\">{}</div><div>{}</div></div>\n",
+                  status_class(beam.status), status_words(beam.status), html_escape(verdict_sentence(beam)));
 
   if (!beam.calculation) {
     out += "</section>\n";
@@ -178,7 +207,8 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
     if (c.features.modulated) {
       out += "<h3>Parts of the beam</h3>\n" + parts_table(c);
     } else {
-      out += fmt::format("<h3>Factors ({} form)</h3>\n", c.method == engine::Method::tmr ? "isocentric TMR" : "fixed-SSD PDD");
+      out += fmt::format("<h3>Factors ({} form)</h3>\n",
+                         c.method == engine::Method::tmr ? "isocentric TMR" : "fixed-SSD PDD");
       out += factor_table(c);
     }
   } else if (c.problem) {

@@ -4,6 +4,8 @@
 
 #include <fmt/format.h>
 
+#include <cmath>
+
 namespace countersign::report::html {
 
 std::string_view style_sheet() {
@@ -65,39 +67,59 @@ ul.notes { margin: 1mm 0 2mm 4mm; padding: 0; font-size: 8pt; }
 
 std::string_view status_words(check::Status status) {
   switch (status) {
-    case check::Status::within_tolerance: return "Within tolerance";
-    case check::Status::outside_tolerance: return "Outside tolerance";
-    case check::Status::not_checked: return "Not checked";
-    case check::Status::skipped: return "Skipped";
+    case check::Status::within_tolerance:
+      return "Within tolerance";
+    case check::Status::outside_tolerance:
+      return "Outside tolerance";
+    case check::Status::not_checked:
+      return "Not checked";
+    case check::Status::skipped:
+      return "Skipped";
   }
   return "Not checked";
 }
 
 std::string_view status_class(check::Status status) {
   switch (status) {
-    case check::Status::within_tolerance: return "within";
-    case check::Status::outside_tolerance: return "outside";
-    case check::Status::not_checked: return "not-checked";
-    case check::Status::skipped: return "skipped";
+    case check::Status::within_tolerance:
+      return "within";
+    case check::Status::outside_tolerance:
+      return "outside";
+    case check::Status::not_checked:
+      return "not-checked";
+    case check::Status::skipped:
+      return "skipped";
   }
   return "not-checked";
 }
 
 std::string_view category_words(check::FieldCategory category) {
   switch (category) {
-    case check::FieldCategory::simple: return "simple field";
-    case check::FieldCategory::complex: return "complex field";
-    case check::FieldCategory::modulated: return "modulated field";
+    case check::FieldCategory::simple:
+      return "simple field";
+    case check::FieldCategory::complex:
+      return "complex field";
+    case check::FieldCategory::modulated:
+      return "modulated field";
   }
   return "";
 }
 
+namespace {
+// A value that rounds to zero is printed as zero, never "-0.0".
+double without_negative_zero(double value, int decimals) {
+  return std::abs(value) < 0.5 * std::pow(10.0, -decimals) ? 0.0 : value;
+}
+}  // namespace
+
 std::string fixed(const std::optional<double>& value, int decimals) {
-  return value ? fmt::format("{:.{}f}", *value, decimals) : std::string{"\u2013"};
+  return value ? fmt::format("{:.{}f}", without_negative_zero(*value, decimals), decimals)
+               : std::string{"\u2013"};
 }
 
 std::string signed_fixed(const std::optional<double>& value, int decimals) {
-  return value ? fmt::format("{:+.{}f}", *value, decimals) : std::string{"\u2013"};
+  return value ? fmt::format("{:+.{}f}", without_negative_zero(*value, decimals), decimals)
+               : std::string{"\u2013"};
 }
 
 std::string person_name(const std::string& dicom_name) {
@@ -107,7 +129,8 @@ std::string person_name(const std::string& dicom_name) {
   int component = 0;
   while (start <= dicom_name.size() && component < 3) {
     const std::size_t caret = dicom_name.find('^', start);
-    const std::string part = dicom_name.substr(start, caret == std::string::npos ? std::string::npos : caret - start);
+    const std::string part =
+        dicom_name.substr(start, caret == std::string::npos ? std::string::npos : caret - start);
     if (!part.empty()) out += (out.empty() ? "" : (component == 1 ? ", " : " ")) + part;
     if (caret == std::string::npos) break;
     start = caret + 1;
@@ -120,23 +143,26 @@ std::string or_dash(const std::string& text) { return text.empty() ? std::string
 
 std::string verdict_sentence(const check::BeamCheck& beam) {
   const std::string category =
-      beam.category ? fmt::format(" for a {}{}", category_words(*beam.category),
-                                  beam.medium == check::Medium::heterogeneous ? " in heterogeneous tissue" : "")
-                    : std::string{};
+      beam.category
+          ? fmt::format(" for a {}{}", category_words(*beam.category),
+                        beam.medium == check::Medium::heterogeneous ? " in heterogeneous tissue" : "")
+          : std::string{};
   switch (beam.status) {
     case check::Status::within_tolerance: {
-      std::string text = fmt::format("The independent dose differs from the planned dose by {} %, inside the \u00B1{} % "
-                                     "allowed{}.",
-                                     signed_fixed(beam.deviation_percent, 1), fixed(beam.tolerance_percent, 1), category);
+      std::string text = fmt::format(
+          "The independent dose differs from the planned dose by {} %, inside the \u00B1{} % "
+          "allowed{}.",
+          signed_fixed(beam.deviation_percent, 1), fixed(beam.tolerance_percent, 1), category);
       if (beam.reason.reason == engine::Reason::deviation_within_tolerance_of_point_total) {
         text += fmt::format(" Judged against the dose point's total: {}.", beam.reason.sentence);
       }
       return text;
     }
     case check::Status::outside_tolerance:
-      return fmt::format("The independent dose differs from the planned dose by {} %, beyond the \u00B1{} % "
-                         "allowed{}. Investigate before treatment.",
-                         signed_fixed(beam.deviation_percent, 1), fixed(beam.tolerance_percent, 1), category);
+      return fmt::format(
+          "The independent dose differs from the planned dose by {} %, beyond the \u00B1{} % "
+          "allowed{}. Investigate before treatment.",
+          signed_fixed(beam.deviation_percent, 1), fixed(beam.tolerance_percent, 1), category);
     case check::Status::not_checked:
       return fmt::format("This beam was not checked: {}.", beam.reason.sentence);
     case check::Status::skipped:

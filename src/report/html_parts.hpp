@@ -30,7 +30,7 @@ namespace countersign::report::html {
 [[nodiscard]] std::string verdict_sentence(const check::BeamCheck& beam);
 
 // The page section for one beam (starts a new printed page).
-[[nodiscard]] std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& beam, std::size_t index,
-                                       std::size_t count, const HtmlOptions& options);
+[[nodiscard]] std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& beam,
+                                       std::size_t index, std::size_t count, const HtmlOptions& options);
 
 }  // namespace countersign::report::html

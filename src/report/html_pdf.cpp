@@ -90,16 +90,17 @@ std::optional<std::filesystem::path> find_chromium() {
 }
 
 std::string no_chromium_message(const std::filesystem::path& pdf_file) {
-  return fmt::format("{}: cannot write the PDF: no Chromium found (install Debian's chromium package, or set "
-                     "COUNTERSIGN_CHROMIUM; the HTML record (--html) needs no extra program)",
-                     pdf_file.string());
+  return fmt::format(
+      "{}: cannot write the PDF: no Chromium found (install Debian's chromium package, or set "
+      "COUNTERSIGN_CHROMIUM; the HTML record (--html) needs no extra program)",
+      pdf_file.string());
 }
 
 std::string file_url(const std::filesystem::path& absolute_path) {
   std::string url = "file://";
   for (const unsigned char c : absolute_path.string()) {
-    const bool plain = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '/' ||
-                       c == '-' || c == '_' || c == '.' || c == '~';
+    const bool plain = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
+                       c == '/' || c == '-' || c == '_' || c == '.' || c == '~';
     url += plain ? std::string(1, static_cast<char>(c)) : fmt::format("%{:02X}", c);
   }
   return url;
@@ -127,8 +128,10 @@ std::vector<std::string> chromium_print_arguments(const std::filesystem::path& c
           file_url(std::filesystem::absolute(html_file))};
 }
 
-Expected<std::filesystem::path> print_pdf(const std::filesystem::path& html_file, const std::filesystem::path& pdf_file,
-                                          const std::filesystem::path& chromium, std::chrono::seconds timeout) {
+Expected<std::filesystem::path> print_pdf(const std::filesystem::path& html_file,
+                                          const std::filesystem::path& pdf_file,
+                                          const std::filesystem::path& chromium,
+                                          std::chrono::seconds timeout) {
   auto work = TemporaryFolder::create("countersign-pdf-");
   if (!work) return pdf_error(pdf_file, "cannot create a temporary folder for Chromium");
   const std::filesystem::path profile = work->path() / "profile";
@@ -189,7 +192,8 @@ Expected<std::filesystem::path> print_pdf(const std::filesystem::path& html_file
   return pdf_file;
 }
 
-Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check, const std::filesystem::path& pdf_file,
+Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check,
+                                          const std::filesystem::path& pdf_file,
                                           const std::filesystem::path& chromium, const HtmlOptions& options) {
   auto work = TemporaryFolder::create("countersign-html-");
   if (!work) return pdf_error(pdf_file, "cannot create a temporary folder for the HTML record");

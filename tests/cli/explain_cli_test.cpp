@@ -25,37 +25,78 @@ TEST(ExplainCli, JsonHasTheDocumentedKeys) {
   const auto r = explain(quote(plan.string()) + " --beam 2 --json");
   ASSERT_EQ(r.exit_code, 1) << r.err;  // the demo's flagged beam: outside tolerance
   const auto j = nlohmann::json::parse(r.out);
-  for (const char* key : {"source_file", "sop_instance_uid", "patient_id", "plan_label", "beam", "status", "reason",
-                          "meterset_mu", "planned_dose_gy", "computed_dose_gy", "deviation_percent", "tolerance_percent",
-                          "independent_mu", "category", "medium", "tolerance_policy", "calculation_problem", "beam_data",
-                          "geometry", "method", "factors", "dose_per_mu_cgy", "parts", "formalisms", "sensitivity",
-                          "approximations", "caution"}) {
+  for (const char* key : {"source_file",
+                          "sop_instance_uid",
+                          "patient_id",
+                          "plan_label",
+                          "beam",
+                          "status",
+                          "reason",
+                          "meterset_mu",
+                          "planned_dose_gy",
+                          "computed_dose_gy",
+                          "deviation_percent",
+                          "tolerance_percent",
+                          "independent_mu",
+                          "category",
+                          "medium",
+                          "tolerance_policy",
+                          "calculation_problem",
+                          "beam_data",
+                          "geometry",
+                          "method",
+                          "factors",
+                          "dose_per_mu_cgy",
+                          "parts",
+                          "formalisms",
+                          "sensitivity",
+                          "approximations",
+                          "caution"}) {
     EXPECT_TRUE(j.contains(key)) << key;
   }
   EXPECT_EQ(j["status"], "outside_tolerance");
   EXPECT_EQ(j["beam"]["number"], 2);
-  for (const char* key : {"patient_position", "patient_to_table_top", "gantry_deg", "collimator_deg", "couch_deg",
-                          "isocenter_mm", "dose_point_mm", "dose_point_source", "point_in_collimator_mm", "spd_mm",
-                          "ssd_mm", "depth_mm", "depth_source", "depth_description", "plan_depth_mm", "off_axis_mm",
-                          "iso_plane_x_mm", "iso_plane_y_mm", "edge_distance_mm", "jaws", "aperture_area_cm2",
+  for (const char* key : {"patient_position",
+                          "patient_to_table_top",
+                          "gantry_deg",
+                          "collimator_deg",
+                          "couch_deg",
+                          "isocenter_mm",
+                          "dose_point_mm",
+                          "dose_point_source",
+                          "point_in_collimator_mm",
+                          "spd_mm",
+                          "ssd_mm",
+                          "depth_mm",
+                          "depth_source",
+                          "depth_description",
+                          "plan_depth_mm",
+                          "off_axis_mm",
+                          "iso_plane_x_mm",
+                          "iso_plane_y_mm",
+                          "edge_distance_mm",
+                          "jaws",
+                          "aperture_area_cm2",
                           "field_sizes"}) {
     EXPECT_TRUE(j["geometry"].contains(key)) << "geometry." << key;
   }
-  for (const char* key : {"collimator_cm", "isocentre_cm", "surface_cm", "point_cm", "normalisation_depth_cm"}) {
+  for (const char* key :
+       {"collimator_cm", "isocentre_cm", "surface_cm", "point_cm", "normalisation_depth_cm"}) {
     EXPECT_TRUE(j["geometry"]["field_sizes"].contains(key)) << key;
   }
   ASSERT_FALSE(j["factors"].empty());
   bool tmr_seen = false;
   for (const auto& f : j["factors"]) {
-    for (const char* key : {"key", "name", "role", "value", "basis", "table_file", "quantity", "extrapolated", "axes"}) {
+    for (const char* key :
+         {"key", "name", "role", "value", "basis", "table_file", "quantity", "extrapolated", "axes"}) {
       EXPECT_TRUE(f.contains(key)) << key;
     }
     if (f["key"] == "tmr") {
       tmr_seen = true;
       EXPECT_EQ(f["table_file"], "10X/tmr.csv");
       ASSERT_EQ(f["axes"].size(), 2u);
-      for (const char* key : {"axis", "query", "lower_index", "upper_index", "lower_node", "upper_node", "lower_weight",
-                              "upper_weight", "extrapolated"}) {
+      for (const char* key : {"axis", "query", "lower_index", "upper_index", "lower_node", "upper_node",
+                              "lower_weight", "upper_weight", "extrapolated"}) {
         EXPECT_TRUE(f["axes"][0].contains(key)) << key;
       }
       EXPECT_EQ(f["axes"][0]["axis"], "depth_cm");
@@ -75,8 +116,8 @@ TEST(ExplainCli, JsonHasTheDocumentedKeys) {
   EXPECT_EQ(s["changes"][1]["quantity"], "ssd");
   EXPECT_EQ(s["changes"][2]["quantity"], "field_size");
   for (const auto& c : s["changes"]) {
-    for (const char* key : {"baseline_cm", "change_cm", "reconciled_cm", "search_min_change_cm", "search_max_change_cm",
-                            "extrapolated", "sentence"}) {
+    for (const char* key : {"baseline_cm", "change_cm", "reconciled_cm", "search_min_change_cm",
+                            "search_max_change_cm", "extrapolated", "sentence"}) {
       EXPECT_TRUE(c.contains(key)) << key;
     }
   }
@@ -98,9 +139,10 @@ TEST(ExplainCli, TextShowsEverySection) {
   if (!std::filesystem::exists(plan)) GTEST_SKIP() << "demo plans not generated";
   const auto r = explain(quote(plan.string()) + " --beam 2");
   ASSERT_EQ(r.exit_code, 1) << r.err;
-  for (const char* section : {"Outcome: OUTSIDE TOLERANCE", "Beam data", "Geometry", "patient position HFS", "Factors (tmr",
-                              "10X/tmr.csv", "weights", "Both formalisms", "PDD form - TMR form", "What would reconcile",
-                              "a depth change of", "an SSD change of", "a field-size change of", "does not replace"}) {
+  for (const char* section :
+       {"Outcome: OUTSIDE TOLERANCE", "Beam data", "Geometry", "patient position HFS", "Factors (tmr",
+        "10X/tmr.csv", "weights", "Both formalisms", "PDD form - TMR form", "What would reconcile",
+        "a depth change of", "an SSD change of", "a field-size change of", "does not replace"}) {
     EXPECT_NE(r.out.find(section), std::string::npos) << section;
   }
 }
@@ -123,7 +165,8 @@ TEST(ExplainCli, UnknownBeamIsBadInputNamingTheFileAndAttribute) {
 }
 
 TEST(ExplainCli, NotAPlanIsBadInput) {
-  const auto r = explain(quote((source_dir() / "testdata" / "malformed" / "not_dicom.dcm").string()) + " --beam 1");
+  const auto r =
+      explain(quote((source_dir() / "testdata" / "malformed" / "not_dicom.dcm").string()) + " --beam 1");
   EXPECT_EQ(r.exit_code, 3);
   EXPECT_NE(r.err.find("not_dicom.dcm"), std::string::npos) << r.err;
 }

@@ -51,8 +51,9 @@ TEST(FuzzRegressions, EachPlanInputGivesACleanErrorOrAJudgedPlan) {
 }
 
 TEST(FuzzRegressions, EachBeamDataFolderGivesACleanErrorNamingTheFile) {
-  const auto folders = entries(regressions() / "beamdata", true);
-  ASSERT_FALSE(folders.empty()) << "the regression corpus is missing";
+  const fs::path root = regressions() / "beamdata";
+  const auto folders = fs::is_directory(root) ? entries(root, true) : std::vector<fs::path>{};
+  if (folders.empty()) GTEST_SKIP() << "fuzz_beamdata has found nothing to keep yet";
   for (const fs::path& folder : folders) {
     SCOPED_TRACE(folder.string());
     const auto library = beamdata::load_library(folder);

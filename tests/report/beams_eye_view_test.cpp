@@ -34,9 +34,12 @@ TEST(BeamsEyeView, PanelChoosesFullScaleForTenByTenAndSvgUnitsAreMillimetres) {
   EXPECT_DOUBLE_EQ(bev_mapping(c, roomy).scale(), 1.0);
 
   const std::string svg = beams_eye_view_svg(c, roomy);
-  EXPECT_NE(svg.find("width=\"130.00mm\" height=\"130.00mm\" viewBox=\"0 0 130.00 130.00\""), std::string::npos) << svg;
+  EXPECT_NE(svg.find("width=\"130.00mm\" height=\"130.00mm\" viewBox=\"0 0 130.00 130.00\""),
+            std::string::npos)
+      << svg;
   // The jaw rectangle: corners 100 mm apart, centred on the panel.
-  EXPECT_NE(svg.find("points=\"15.00,115.00 115.00,115.00 115.00,15.00 15.00,15.00\""), std::string::npos) << svg;
+  EXPECT_NE(svg.find("points=\"15.00,115.00 115.00,115.00 115.00,15.00 15.00,15.00\""), std::string::npos)
+      << svg;
   EXPECT_NE(svg.find("scale 1:1 at isocentre plane"), std::string::npos);
   EXPECT_NE(svg.find("5 cm at isocentre"), std::string::npos);
 }
@@ -71,12 +74,14 @@ TEST(BeamsEyeView, DosePointLandsWhereTheBeamSeesItWhateverTheCollimatorAngle) {
   const geometry::BeamAngles straight{0.0, 0.0, 0.0};
   const geometry::BeamFrame frame0(geometry::PatientPosition::hfs, straight, {0.0, 0.0, 0.0}, 1000.0);
   const geometry::PointInBeam seen0 = frame0.locate(point);
-  const PaperMm reference = BevMapping(1.0, 0.0, {60.0, 60.0}).to_paper(seen0.iso_plane_x_mm, seen0.iso_plane_y_mm);
+  const PaperMm reference =
+      BevMapping(1.0, 0.0, {60.0, 60.0}).to_paper(seen0.iso_plane_x_mm, seen0.iso_plane_y_mm);
   for (const double collimator : {30.0, 90.0, 135.0, 270.0, 345.0}) {
     const geometry::BeamAngles turned{0.0, collimator, 0.0};
     const geometry::BeamFrame frame(geometry::PatientPosition::hfs, turned, {0.0, 0.0, 0.0}, 1000.0);
     const geometry::PointInBeam seen = frame.locate(point);
-    const PaperMm p = BevMapping(1.0, collimator, {60.0, 60.0}).to_paper(seen.iso_plane_x_mm, seen.iso_plane_y_mm);
+    const PaperMm p =
+        BevMapping(1.0, collimator, {60.0, 60.0}).to_paper(seen.iso_plane_x_mm, seen.iso_plane_y_mm);
     EXPECT_NEAR(p.x, reference.x, 1e-9) << "collimator " << collimator;
     EXPECT_NEAR(p.y, reference.y, 1e-9) << "collimator " << collimator;
   }
@@ -107,7 +112,8 @@ TEST(BeamsEyeView, MlcLeavesAreDrawnOnlyWhereTheyBlockInsideTheJaws) {
   const BevPanel panel{130.0, 130.0, 10.0};
   const std::string svg = beams_eye_view_svg(c, panel);
   const std::regex leaf("fill=\"#c4c4c4\"");
-  const auto leaves = std::distance(std::sregex_iterator(svg.begin(), svg.end(), leaf), std::sregex_iterator());
+  const auto leaves =
+      std::distance(std::sregex_iterator(svg.begin(), svg.end(), leaf), std::sregex_iterator());
   EXPECT_EQ(leaves, 2);  // bank A and bank B of the lower pair; the upper pair is open to the jaws
 }
 

@@ -70,13 +70,14 @@ TEST(HtmlReport, CarriesIdentityPolicyVerdictsSignOffAndCaution) {
   const std::string page = html_report(c.check, options);
 
   for (const std::string& expected :
-       {std::string("FERN-TEST-01"), std::string("PHANTOM, CUBE"), std::string("APPROVED"), std::string("2.25.1"),
-        std::string("TEST"), std::string(64, 'a'), std::string("countersign ") + version_string,
-        std::string("2026-12-02 09:15:00 +0000"), std::string("built-in defaults"), std::string("TEST-LINAC"),
-        std::string("Checked by (name)"), std::string("Signature"), std::string("does not replace")}) {
+       {std::string("FERN-TEST-01"), std::string("PHANTOM, CUBE"), std::string("APPROVED"),
+        std::string("2.25.1"), std::string("TEST"), std::string(64, 'a'),
+        std::string("countersign ") + version_string, std::string("2026-12-02 09:15:00 +0000"),
+        std::string("built-in defaults"), std::string("TEST-LINAC"), std::string("Checked by (name)"),
+        std::string("Signature"), std::string("does not replace")}) {
     EXPECT_NE(page.find(expected), std::string::npos) << "missing: " << expected;
   }
-  EXPECT_EQ(count(page, "<svg "), 2u);                 // one beam's-eye view per beam
+  EXPECT_EQ(count(page, "<svg "), 2u);  // one beam's-eye view per beam
   EXPECT_EQ(count(page, "<section class=\"beam\""), 2u);
   EXPECT_NE(page.find("Outside tolerance"), std::string::npos);
   EXPECT_NE(page.find("beyond the \u00B12.0 % allowed for a simple field"), std::string::npos);
@@ -118,7 +119,8 @@ TEST(HtmlReport, NotCheckedBeamSaysWhyAndIsNeverShownAsAPass) {
   b.beam_number = 1;
   b.beam_name = "B1";
   b.status = check::Status::not_checked;
-  b.reason = {engine::Reason::unknown_machine, "Treatment Machine Name (300A,00B2) \"OTHER\" is not in the library"};
+  b.reason = {engine::Reason::unknown_machine,
+              "Treatment Machine Name (300A,00B2) \"OTHER\" is not in the library"};
   b.meterset_mu = 100.0;
   b.planned_dose_gy = 1.0;
   c.beams.push_back(b);
@@ -126,16 +128,18 @@ TEST(HtmlReport, NotCheckedBeamSaysWhyAndIsNeverShownAsAPass) {
   setup.beam_number = 9;
   setup.beam_name = "SETUP";
   setup.status = check::Status::skipped;
-  setup.reason = {engine::Reason::setup_beam, "Treatment Delivery Type (300A,00CE) is SETUP: listed, not judged"};
+  setup.reason = {engine::Reason::setup_beam,
+                  "Treatment Delivery Type (300A,00CE) is SETUP: listed, not judged"};
   c.beams.push_back(setup);
   const std::string page = html_report(c, {});
-  EXPECT_NE(page.find("This beam was not checked: Treatment Machine Name (300A,00B2) \"OTHER\""), std::string::npos)
+  EXPECT_NE(page.find("This beam was not checked: Treatment Machine Name (300A,00B2) &quot;OTHER&quot;"),
+            std::string::npos)
       << page;
   EXPECT_EQ(page.find("Within tolerance"), std::string::npos);
   EXPECT_EQ(page.find("within tolerance</div>"), std::string::npos);
   EXPECT_EQ(count(page, "<section class=\"beam\""), 1u);  // the skipped setup beam is listed, not detailed
   EXPECT_NE(page.find("Listed and skipped"), std::string::npos);
-  EXPECT_EQ(count(page, "<svg "), 0u);                     // no geometry, no drawing
+  EXPECT_EQ(count(page, "<svg "), 0u);  // no geometry, no drawing
 }
 
 TEST(HtmlReport, WriteHtmlNamesTheFileOnError) {
@@ -146,9 +150,11 @@ TEST(HtmlReport, WriteHtmlNamesTheFileOnError) {
 }
 
 TEST(HtmlReport, ChromiumArgumentsKeepTheBrowserOffTheNetwork) {
-  const auto args = chromium_print_arguments("/usr/bin/chromium", "/tmp/a b.html", "/tmp/o.pdf", "/tmp/profile");
-  for (const char* flag : {"--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                           "--disable-background-networking", "--disable-component-update", "--disable-sync"}) {
+  const auto args =
+      chromium_print_arguments("/usr/bin/chromium", "/tmp/a b.html", "/tmp/o.pdf", "/tmp/profile");
+  for (const char* flag :
+       {"--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+        "--disable-background-networking", "--disable-component-update", "--disable-sync"}) {
     EXPECT_NE(std::find(args.begin(), args.end(), flag), args.end()) << flag;
   }
   EXPECT_EQ(args.back(), "file:///tmp/a%20b.html");
@@ -172,12 +178,14 @@ int pdf_pages(const std::filesystem::path& pdf) {
   if (info.exit_code == 0 && std::regex_search(info.out, m, pages)) return std::stoi(m[1]);
   const std::string bytes = slurp(pdf);
   const std::regex page_object("/Type\\s*/Page[^s]");
-  return static_cast<int>(std::distance(std::sregex_iterator(bytes.begin(), bytes.end(), page_object), std::sregex_iterator()));
+  return static_cast<int>(
+      std::distance(std::sregex_iterator(bytes.begin(), bytes.end(), page_object), std::sregex_iterator()));
 }
 
 TEST(HtmlReportInChromium, RendersWithoutConsoleErrorsAndPrintsOnePagePerBeamPlusTheCover) {
   const auto chromium = find_chromium();
-  if (!chromium) GTEST_SKIP() << "no Chromium on this machine (tools/install-deps installs Debian's chromium)";
+  if (!chromium)
+    GTEST_SKIP() << "no Chromium on this machine (tools/install-deps installs Debian's chromium)";
   const Checked c = two_beam_check();
   HtmlOptions options;
   options.plan = &c.plan;
@@ -192,8 +200,9 @@ TEST(HtmlReportInChromium, RendersWithoutConsoleErrorsAndPrintsOnePagePerBeamPlu
       test::quote(chromium->string()) +
       " --headless --no-sandbox --disable-gpu --disable-quic --no-first-run --disable-background-networking"
       " --disable-component-update --disable-sync --enable-logging=stderr --v=0 --hide-scrollbars"
-      " --window-size=800,1200 --user-data-dir=" + test::quote(profile.string()) +
-      " --screenshot=" + test::quote((dir / "record.png").string()) + " " + test::quote(file_url(*html)));
+      " --window-size=800,1200 --user-data-dir=" +
+      test::quote(profile.string()) + " --screenshot=" + test::quote((dir / "record.png").string()) + " " +
+      test::quote(file_url(*html)));
   EXPECT_EQ(shot.exit_code, 0) << shot.err;
   EXPECT_TRUE(std::filesystem::exists(dir / "record.png")) << shot.err;
   EXPECT_EQ(shot.err.find("CONSOLE"), std::string::npos) << shot.err;

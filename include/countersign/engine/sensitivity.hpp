@@ -17,8 +17,9 @@
 namespace countersign::engine {
 
 enum class SensitivityQuantity {
-  depth,       // depth_cm alone (TMR form: the surface moves, the point stays; PDD form: the point moves, the SSD stays)
-  ssd,         // ssd_cm and spd_cm together, depth held (the patient moved along the central axis)
+  depth,  // depth_cm alone (TMR form: the surface moves, the point stays; PDD form: the point moves, the SSD
+          // stays)
+  ssd,    // ssd_cm and spd_cm together, depth held (the patient moved along the central axis)
   field_size,  // collimator and irradiated equivalent squares at the isocentre, by the same amount
 };
 [[nodiscard]] std::string_view to_code(SensitivityQuantity quantity);
@@ -36,17 +37,17 @@ struct SensitivityLimits {
 
 struct Reconciliation {
   SensitivityQuantity quantity = SensitivityQuantity::depth;
-  double baseline_cm = 0.0;               // the value the calculation used (first part for modulated beams)
-  double search_min_change_cm = 0.0;      // the range searched, as changes from the baseline
+  double baseline_cm = 0.0;           // the value the calculation used (first part for modulated beams)
+  double search_min_change_cm = 0.0;  // the range searched, as changes from the baseline
   double search_max_change_cm = 0.0;
-  std::optional<double> change_cm;        // the smallest change that reconciles, if one exists in the range
-  bool extrapolated = false;              // the reconciling value needs a table lookup outside a table
-  std::string sentence;                   // one line for reports
+  std::optional<double> change_cm;  // the smallest change that reconciles, if one exists in the range
+  bool extrapolated = false;        // the reconciling value needs a table lookup outside a table
+  std::string sentence;             // one line for reports
 };
 
 struct Sensitivity {
-  double target_dose_cgy = 0.0;     // the planned dose
-  double baseline_dose_cgy = 0.0;   // the independent dose as calculated
+  double target_dose_cgy = 0.0;         // the planned dose
+  double baseline_dose_cgy = 0.0;       // the independent dose as calculated
   std::vector<Reconciliation> changes;  // depth, ssd, field_size in that order
 };
 
@@ -56,7 +57,8 @@ struct Sensitivity {
                                           SensitivityQuantity quantity, double change_cm);
 
 // One part's inputs with the change applied (see SensitivityQuantity for what moves together).
-[[nodiscard]] DoseInputs with_change(const DoseInputs& inputs, SensitivityQuantity quantity, double change_cm);
+[[nodiscard]] DoseInputs with_change(const DoseInputs& inputs, SensitivityQuantity quantity,
+                                     double change_cm);
 
 // Solves dose(change) = target for each quantity alone. The nearest root to zero change is
 // reported; "no change within the range reconciles" when the dose does not cross the target.

@@ -56,13 +56,13 @@ class BevMapping {
 // What one beam's drawing shows.
 struct BevContent {
   double collimator_deg = 0.0;
-  geometry::JawOpening jaws;                 // static: control point 0; modulated: envelope of all parts
-  std::vector<geometry::ApertureRow> open;   // static: the opening; modulated: area open in any part
-  bool shaped_by_mlc = false;                // static beam with an MLC: draw the leaves inside the jaws
+  geometry::JawOpening jaws;                // static: control point 0; modulated: envelope of all parts
+  std::vector<geometry::ApertureRow> open;  // static: the opening; modulated: area open in any part
+  bool shaped_by_mlc = false;               // static beam with an MLC: draw the leaves inside the jaws
   bool modulated = false;
-  bool outline_known = true;                 // false: a modulated beam without its control points
-  std::optional<PaperMm> dose_point_mm;      // projected to the isocentre plane (collimator system, mm)
-  std::vector<PaperMm> part_points_mm;       // modulated/arc: the point as each part sees it
+  bool outline_known = true;             // false: a modulated beam without its control points
+  std::optional<PaperMm> dose_point_mm;  // projected to the isocentre plane (collimator system, mm)
+  std::vector<PaperMm> part_points_mm;   // modulated/arc: the point as each part sees it
   double off_axis_mm = 0.0;
 };
 

@@ -24,15 +24,16 @@ struct FormalismDose {
 };
 
 struct BeamExplanation {
-  std::vector<engine::DoseInputs> parts;          // inputs of every part that delivers dose at the point
+  std::vector<engine::DoseInputs> parts;  // inputs of every part that delivers dose at the point
   std::optional<FormalismDose> tmr;
   std::optional<FormalismDose> pdd;
   std::optional<double> formalism_difference_percent;  // 100 (PDD form - TMR form) / TMR form
   std::optional<engine::Sensitivity> sensitivity;
-  std::string sensitivity_note;                   // why there is no sensitivity section, if there is none
+  std::string sensitivity_note;  // why there is no sensitivity section, if there is none
 };
 
-[[nodiscard]] BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::SensitivityLimits& limits = {});
+[[nodiscard]] BeamExplanation explain_beam(const check::BeamCheck& beam,
+                                           const engine::SensitivityLimits& limits = {});
 
 // The beam of `check` with this number (first fraction group that has it, or the given group).
 [[nodiscard]] const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number,

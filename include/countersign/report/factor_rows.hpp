@@ -12,9 +12,9 @@
 namespace countersign::report {
 
 struct FactorRow {
-  std::string key;        // JSON key: "sc", "sp", "tmr", "pdd", "mayneord_f", "oar", "wedge", ...
-  std::string name;       // words with the symbol, e.g. "Collimator scatter Sc(s_c)"
-  std::string role;       // "multiplies" or "divides" (the calibration-depth term divides the output)
+  std::string key;   // JSON key: "sc", "sp", "tmr", "pdd", "mayneord_f", "oar", "wedge", ...
+  std::string name;  // words with the symbol, e.g. "Collimator scatter Sc(s_c)"
+  std::string role;  // "multiplies" or "divides" (the calibration-depth term divides the output)
   const engine::Factor* factor = nullptr;  // points into the PointDose passed in
 };
 

@@ -30,13 +30,13 @@ namespace countersign::report {
 
 // Prints an HTML file to a PDF file. Errors (kind io) name the PDF file and quote Chromium's last
 // message line. Chromium is stopped after `timeout`.
-[[nodiscard]] Expected<std::filesystem::path> print_pdf(const std::filesystem::path& html_file,
-                                                        const std::filesystem::path& pdf_file,
-                                                        const std::filesystem::path& chromium,
-                                                        std::chrono::seconds timeout = std::chrono::seconds(120));
+[[nodiscard]] Expected<std::filesystem::path> print_pdf(
+    const std::filesystem::path& html_file, const std::filesystem::path& pdf_file,
+    const std::filesystem::path& chromium, std::chrono::seconds timeout = std::chrono::seconds(120));
 
 // The record of `check` as a PDF (the HTML is written to a temporary folder first).
-[[nodiscard]] Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check, const std::filesystem::path& pdf_file,
+[[nodiscard]] Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check,
+                                                        const std::filesystem::path& pdf_file,
                                                         const std::filesystem::path& chromium,
                                                         const HtmlOptions& options = {});
 

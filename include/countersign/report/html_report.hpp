@@ -24,7 +24,8 @@ struct HtmlOptions {
 [[nodiscard]] std::string html_report(const check::PlanCheck& check, const HtmlOptions& options = {});
 
 // Writes the page to `file` (temporary file in the same folder, then rename). Errors name the file.
-[[nodiscard]] Expected<std::filesystem::path> write_html(const check::PlanCheck& check, const std::filesystem::path& file,
+[[nodiscard]] Expected<std::filesystem::path> write_html(const check::PlanCheck& check,
+                                                         const std::filesystem::path& file,
                                                          const HtmlOptions& options = {});
 
 // The current local date and time, "YYYY-MM-DD HH:MM:SS +hhmm".
