@@ -4,5 +4,6 @@
 #include <unistd.h>
 
 int main(int argc, char** argv) {
-  return countersign::cli::run(argc, argv, {std::cout, std::cerr, ::isatty(STDOUT_FILENO) == 1});
+  return countersign::cli::run(argc, argv, {std::cout, std::cerr, ::isatty(STDOUT_FILENO) == 1,
+                                  ::isatty(STDERR_FILENO) == 1});
 }

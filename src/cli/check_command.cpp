@@ -107,7 +107,11 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     io.err << "countersign check: no .dcm file found in the folders given\n";
     return ExitCode::bad_input;
   }
+  // A progress line only when a person is watching: both streams on a terminal, several plans.
+  const bool show_progress = io.out_is_terminal && io.err_is_terminal && files.size() > 1 && options.json == false;
+  std::size_t done = 0;
   for (const fs::path& file : files) {
+    if (show_progress) io.err << "\r\x1b[K[" << ++done << "/" << files.size() << "] " << file.filename().string() << std::flush;
     auto plan = dicom::read_plan_file(file);
     if (!plan) {
       // One bad file does not stop the others.
@@ -142,6 +146,13 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
       io.out << "\n";
     }
     checks.push_back(std::move(result));
+  }
+  if (show_progress) io.err << "\r\x1b[K" << std::flush;
+  if (!options.json && files.size() > 1) {
+    io.out << "Summary of " << files.size() << " plan file(s):\n";
+    for (const check::PlanCheck& c : checks) report::write_plan_summary_line(io.out, c);
+    for (const std::string& e : errors) io.out << "bad input           " << e << "\n";
+    io.out << "\n";
   }
   if (options.json) {
     io.out << report::check_run_to_json(checks, errors, static_cast<int>(exit_code)).dump(2) << "\n";

@@ -14,6 +14,7 @@ struct Io {
   std::ostream& out;
   std::ostream& err;
   bool out_is_terminal = false;  // progress indicators and colour only on a terminal
+  bool err_is_terminal = false;  // the progress line goes to the error stream
 };
 
 struct CommandContext {

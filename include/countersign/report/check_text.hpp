@@ -12,4 +12,7 @@ namespace countersign::report {
 // the dose-reference totals and the plan's verdict.
 void write_check_text(std::ostream& out, const check::PlanCheck& check);
 
+// One line per plan for a run over several plans: verdict, beams by status, worst deviation, file.
+void write_plan_summary_line(std::ostream& out, const check::PlanCheck& check);
+
 }  // namespace countersign::report
