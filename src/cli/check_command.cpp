@@ -186,14 +186,16 @@ void add_check_command(CLI::App& app, CommandContext& context) {
   command
       ->add_option("--method", options->method,
                    "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
-      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
+      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case).description(""))
+      ->option_text("auto|tmr|pdd");
   const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
                                                           {"equivalent", engine::DepthChoice::equivalent}};
   command
       ->add_option("--depth", options->depth,
                    "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
                    "(the plan's radiological depth)")
-      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
+      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
+      ->option_text("planned|equivalent");
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

@@ -118,11 +118,13 @@ void add_explain_command(CLI::App& app, CommandContext& context) {
   command
       ->add_option("--method", options->method,
                    "formalism used for the verdict: auto (the default), tmr or pdd")
-      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case));
+      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case).description(""))
+      ->option_text("auto|tmr|pdd");
   const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
                                                           {"equivalent", engine::DepthChoice::equivalent}};
   command->add_option("--depth", options->depth, "depth: planned (the default) or equivalent")
-      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case));
+      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
+      ->option_text("planned|equivalent");
   command
       ->add_option("--search-depth-cm", options->limits.depth_cm,
                    "how far the depth search goes each way (default 10)")
