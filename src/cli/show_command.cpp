@@ -141,7 +141,7 @@ void add_show_command(CLI::App& app, CommandContext& context) {
   command->add_option("plans", options->paths, "RT Plan files (DICOM)")->required();
   command->add_flag(
       "--json", options->json,
-      "Print the plan model as JSON (one plan: an object; several: an array; keys in docs/json-show.md)");
+      "Print the plan model as JSON (one plan: an object; several: an array; keys in the README)");
   command->callback([options, &context] { run_show(*options, context); });
 }
 

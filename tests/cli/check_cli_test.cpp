@@ -63,7 +63,7 @@ TEST(CheckCli, TextTableAndCaution) {
   EXPECT_NE(out.out.find("does not replace"), std::string::npos);
 }
 
-// The keys of `check --json` (documented in docs/json-check.md): a change is a breaking change.
+// The keys of `check --json` (documented in the README, "JSON output"): a change is a breaking change.
 TEST(CheckCli, JsonKeys) {
   const auto out = check("--json " + plan_path("fern_wedged_pair.dcm") + " " + plan_path("fern_two_arc.dcm"));
   ASSERT_EQ(out.exit_code, 0) << out.err;

@@ -1,6 +1,6 @@
 #pragma once
 
-// The result of `countersign check` as JSON (keys documented in docs/json-check.md; changing one is
+// The result of `countersign check` as JSON (keys documented in the README; changing one is
 // a breaking change). Every key carries its unit; a value that does not exist is null, never 0.
 
 #include <countersign/check/check_plan.hpp>

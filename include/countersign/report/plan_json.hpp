@@ -1,6 +1,6 @@
 #pragma once
 
-// The plan model as JSON, for `countersign show --json` (keys documented in docs/json-show.md).
+// The plan model as JSON, for `countersign show --json` (keys documented in the README).
 // Every key carries its unit; an absent value is null, never 0.
 
 #include <countersign/plan/plan.hpp>
