@@ -12,18 +12,15 @@
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/report/html_report.hpp>
 
+#include "shared_options.hpp"
+
 #include <algorithm>
 #include <filesystem>
-#include <map>
 #include <memory>
 #include <optional>
 #include <ostream>
 #include <string>
 #include <vector>
-
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -50,25 +47,6 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
   return r.parent_path() / (r.stem().string() + "-" + plan_file.stem().string() + r.extension().string());
 }
 
-// The files named, folders expanded to their .dcm files (sorted, so the output order is stable).
-std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
-  std::vector<fs::path> files;
-  for (const std::string& path : paths) {
-    std::error_code ec;
-    if (!fs::is_directory(path, ec)) {
-      files.emplace_back(path);
-      continue;
-    }
-    std::vector<fs::path> found;
-    for (const auto& entry : fs::directory_iterator(path, ec)) {
-      if (entry.is_regular_file() && entry.path().extension() == ".dcm") found.push_back(entry.path());
-    }
-    std::sort(found.begin(), found.end());
-    files.insert(files.end(), found.begin(), found.end());
-  }
-  return files;
-}
-
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
   check::CheckOptions check_options;
   check_options.engine.method = options.method;
@@ -81,8 +59,7 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     check_options.policy = std::move(policy.value());
   }
-  const fs::path library_dir =
-      options.beamdata.empty() ? fs::path(COUNTERSIGN_BUNDLED_BEAMDATA) : fs::path(options.beamdata);
+  const fs::path library_dir = beamdata_folder(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign check: " << library.error().message() << "\n";
@@ -108,10 +85,13 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     return ExitCode::bad_input;
   }
   // A progress line only when a person is watching: both streams on a terminal, several plans.
-  const bool show_progress = io.out_is_terminal && io.err_is_terminal && files.size() > 1 && options.json == false;
+  const bool show_progress =
+      io.out_is_terminal && io.err_is_terminal && files.size() > 1 && options.json == false;
   std::size_t done = 0;
   for (const fs::path& file : files) {
-    if (show_progress) io.err << "\r\x1b[K[" << ++done << "/" << files.size() << "] " << file.filename().string() << std::flush;
+    if (show_progress)
+      io.err << "\r\x1b[K[" << ++done << "/" << files.size() << "] " << file.filename().string()
+             << std::flush;
     auto plan = dicom::read_plan_file(file);
     if (!plan) {
       // One bad file does not stop the others.
@@ -174,28 +154,13 @@ void add_check_command(CLI::App& app, CommandContext& context) {
       "checked; "
       "3: bad input or usage; 4: a record asked for with --html or --pdf could not be written.");
   command->add_option("plans", options->paths, "RT Plan files, or folders of .dcm files")->required();
-  command->add_option(
-      "--beamdata", options->beamdata,
-      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy,
-                      "tolerance policy TOML file (default: built-in TG-114 based values)");
-  const std::map<std::string, engine::MethodChoice> methods{
-      {"auto", engine::MethodChoice::by_setup_technique},
-      {"tmr", engine::MethodChoice::tmr},
-      {"pdd", engine::MethodChoice::pdd}};
-  command
-      ->add_option("--method", options->method,
-                   "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
-      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case).description(""))
-      ->option_text("auto|tmr|pdd");
-  const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
-                                                          {"equivalent", engine::DepthChoice::equivalent}};
-  command
-      ->add_option("--depth", options->depth,
+  add_beamdata_option(*command, options->beamdata);
+  add_policy_option(*command, options->policy);
+  add_method_option(*command, options->method,
+                    "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd");
+  add_depth_option(*command, options->depth,
                    "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
-                   "(the plan's radiological depth)")
-      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
-      ->option_text("planned|equivalent");
+                   "(the plan's radiological depth)");
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

@@ -8,16 +8,13 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/explain_report.hpp>
 
+#include "shared_options.hpp"
+
 #include <filesystem>
-#include <map>
 #include <memory>
 #include <optional>
 #include <ostream>
 #include <string>
-
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -61,9 +58,7 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
     }
     check_options.policy = std::move(policy.value());
   }
-  const std::filesystem::path library_dir = options.beamdata.empty()
-                                                ? std::filesystem::path(COUNTERSIGN_BUNDLED_BEAMDATA)
-                                                : std::filesystem::path(options.beamdata);
+  const std::filesystem::path library_dir = beamdata_folder(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign explain: " << library.error().message() << "\n";
@@ -106,25 +101,11 @@ void add_explain_command(CLI::App& app, CommandContext& context) {
   command->add_option("--beam", options->beam, "Beam Number (300A,00C0) of the beam to explain")->required();
   command->add_option("--fraction-group", options->fraction_group,
                       "Fraction Group Number (300A,0071) (default: the first that references the beam)");
-  command->add_option(
-      "--beamdata", options->beamdata,
-      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy,
-                      "tolerance policy TOML file (default: built-in TG-114 based values)");
-  const std::map<std::string, engine::MethodChoice> methods{
-      {"auto", engine::MethodChoice::by_setup_technique},
-      {"tmr", engine::MethodChoice::tmr},
-      {"pdd", engine::MethodChoice::pdd}};
-  command
-      ->add_option("--method", options->method,
-                   "formalism used for the verdict: auto (the default), tmr or pdd")
-      ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case).description(""))
-      ->option_text("auto|tmr|pdd");
-  const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
-                                                          {"equivalent", engine::DepthChoice::equivalent}};
-  command->add_option("--depth", options->depth, "depth: planned (the default) or equivalent")
-      ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
-      ->option_text("planned|equivalent");
+  add_beamdata_option(*command, options->beamdata);
+  add_policy_option(*command, options->policy);
+  add_method_option(*command, options->method,
+                    "formalism used for the verdict: auto (the default), tmr or pdd");
+  add_depth_option(*command, options->depth, "depth: planned (the default) or equivalent");
   command
       ->add_option("--search-depth-cm", options->limits.depth_cm,
                    "how far the depth search goes each way (default 10)")

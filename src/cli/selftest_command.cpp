@@ -7,6 +7,8 @@
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
 
+#include "shared_options.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -23,28 +25,9 @@ namespace {
 namespace fs = std::filesystem;
 
 struct SelfTestOptions {
-  std::vector<std::string> paths{"testdata/plans"};
-  std::string beamdata = "beamdata";
+  std::vector<std::string> paths;  // empty: the bundled demo plans
+  std::string beamdata;            // empty: the bundled library
 };
-
-// The .dcm files named, folders expanded (sorted, so the table order is stable).
-std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
-  std::vector<fs::path> files;
-  for (const std::string& path : paths) {
-    std::error_code ec;
-    if (!fs::is_directory(path, ec)) {
-      files.emplace_back(path);
-      continue;
-    }
-    std::vector<fs::path> found;
-    for (const auto& entry : fs::directory_iterator(path, ec)) {
-      if (entry.is_regular_file() && entry.path().extension() == ".dcm") found.push_back(entry.path());
-    }
-    std::sort(found.begin(), found.end());
-    files.insert(files.end(), found.begin(), found.end());
-  }
-  return files;
-}
 
 std::string percent_or_dash(const std::optional<double>& value) {
   return value ? fmt::format("{:+.2f}", *value) : "-";
@@ -81,14 +64,15 @@ void print_report(const check::SelfTestReport& report, std::ostream& out) {
 }
 
 void run_selftest(const SelfTestOptions& options, CommandContext& context) {
-  const auto library = beamdata::load_library(options.beamdata);
+  const auto library = beamdata::load_library(beamdata_folder(options.beamdata));
   if (!library) {
     context.io.err << library.error().message() << '\n';
     context.exit_code = ExitCode::bad_input;
     return;
   }
   std::vector<plan::Plan> plans;
-  for (const fs::path& file : plan_files(options.paths)) {
+  for (const fs::path& file : plan_files(
+           options.paths.empty() ? std::vector<std::string>{bundled_demo_plans().string()} : options.paths)) {
     auto plan = dicom::read_plan_file(file);
     if (!plan) {
       context.io.err << plan.error().message() << '\n';
@@ -120,8 +104,9 @@ void add_selftest_command(CLI::App& app, CommandContext& context) {
       "%);\n"
       "each error that takes a beam beyond its tolerance must be flagged. Exit 0 when every case behaves.");
   command->add_option("plans", options->paths,
-                      "RT Plan files or folders of .dcm files (default: testdata/plans)");
-  command->add_option("--beamdata", options->beamdata, "beam-data library folder (default: beamdata)");
+                      "RT Plan files or folders of .dcm files (default: the bundled demo plans, " +
+                          bundled_demo_plans().string() + ")");
+  add_beamdata_option(*command, options->beamdata);
   command->callback([options, &context] { run_selftest(*options, context); });
 }
 

@@ -72,22 +72,29 @@ void write_plan_summary_line(std::ostream& out, const check::PlanCheck& c) {
   std::optional<double> largest_deviation_percent;
   for (const check::BeamCheck& b : c.beams) {
     switch (b.status) {
-      case check::Status::within_tolerance: ++within; break;
-      case check::Status::outside_tolerance: ++outside; break;
-      case check::Status::not_checked: ++not_checked; break;
-      case check::Status::skipped: ++skipped; break;
+      case check::Status::within_tolerance:
+        ++within;
+        break;
+      case check::Status::outside_tolerance:
+        ++outside;
+        break;
+      case check::Status::not_checked:
+        ++not_checked;
+        break;
+      case check::Status::skipped:
+        ++skipped;
+        break;
     }
-    if (b.deviation_percent &&
-        (!largest_deviation_percent || std::abs(*b.deviation_percent) > std::abs(*largest_deviation_percent))) {
+    if (b.deviation_percent && (!largest_deviation_percent ||
+                                std::abs(*b.deviation_percent) > std::abs(*largest_deviation_percent))) {
       largest_deviation_percent = b.deviation_percent;
     }
   }
-  out << fmt::format("{:<18} {:>3} within {:>3} outside {:>3} not checked {:>3} skipped  largest {:>8}  {} ({})\n",
-                     check::to_code(c.status), within, outside, not_checked, skipped,
-                     largest_deviation_percent ? fmt::format("{:+.2f} %", *largest_deviation_percent)
-                                               : std::string{"-"},
-                     c.plan_label, c.source_file);
+  out << fmt::format(
+      "{:<18} {:>3} within {:>3} outside {:>3} not checked {:>3} skipped  largest {:>8}  {} ({})\n",
+      check::to_code(c.status), within, outside, not_checked, skipped,
+      largest_deviation_percent ? fmt::format("{:+.2f} %", *largest_deviation_percent) : std::string{"-"},
+      c.plan_label, c.source_file);
 }
 
 }  // namespace countersign::report
-
