@@ -24,6 +24,27 @@ std::string_view to_code(Status status) {
   return "unknown";
 }
 
+PlanCheck::BeamCounts PlanCheck::beam_counts() const {
+  BeamCounts counts;
+  for (const BeamCheck& b : beams) {
+    switch (b.status) {
+      case Status::within_tolerance:
+        ++counts.within;
+        break;
+      case Status::outside_tolerance:
+        ++counts.outside;
+        break;
+      case Status::not_checked:
+        ++counts.not_checked;
+        break;
+      case Status::skipped:
+        ++counts.skipped;
+        break;
+    }
+  }
+  return counts;
+}
+
 ExitCode PlanCheck::exit_code() const {
   switch (status) {
     case Status::within_tolerance:

@@ -48,17 +48,12 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
-  check::CheckOptions check_options;
-  check_options.engine.method = options.method;
-  check_options.engine.depth = options.depth;
-  if (!options.policy.empty()) {
-    auto policy = check::load_policy(options.policy);
-    if (!policy) {
-      io.err << "countersign check: " << policy.error().message() << "\n";
-      return ExitCode::bad_input;
-    }
-    check_options.policy = std::move(policy.value());
+  auto configured = check_options_from(options.method, options.depth, options.policy);
+  if (!configured) {
+    io.err << "countersign check: " << configured.error().message() << "\n";
+    return ExitCode::bad_input;
   }
+  const check::CheckOptions& check_options = configured.value();
   const fs::path library_dir = beamdata_folder(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {

@@ -47,17 +47,12 @@ ExitCode beam_exit_code(check::Status status) {
 }
 
 ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
-  check::CheckOptions check_options;
-  check_options.engine.method = options.method;
-  check_options.engine.depth = options.depth;
-  if (!options.policy.empty()) {
-    auto policy = check::load_policy(options.policy);
-    if (!policy) {
-      io.err << "countersign explain: " << policy.error().message() << "\n";
-      return ExitCode::bad_input;
-    }
-    check_options.policy = std::move(policy.value());
+  auto configured = check_options_from(options.method, options.depth, options.policy);
+  if (!configured) {
+    io.err << "countersign explain: " << configured.error().message() << "\n";
+    return ExitCode::bad_input;
   }
+  const check::CheckOptions& check_options = configured.value();
   const std::filesystem::path library_dir = beamdata_folder(options.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {

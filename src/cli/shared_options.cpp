@@ -33,6 +33,19 @@ fs::path beamdata_folder(const std::string& option_value) {
   return option_value.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{option_value};
 }
 
+Expected<check::CheckOptions> check_options_from(engine::MethodChoice method, engine::DepthChoice depth,
+                                                 const std::string& policy_file) {
+  check::CheckOptions options;
+  options.engine.method = method;
+  options.engine.depth = depth;
+  if (!policy_file.empty()) {
+    auto policy = check::load_policy(policy_file);
+    if (!policy) return policy.error();
+    options.policy = std::move(policy.value());
+  }
+  return options;
+}
+
 fs::path bundled_demo_plans() {
   return fs::path{COUNTERSIGN_BUNDLED_BEAMDATA}.parent_path() / "testdata" / "plans";
 }

@@ -2,7 +2,9 @@
 
 // Options and argument handling that several subcommands share, so each reads the same way.
 
+#include <countersign/check/check_plan.hpp>
 #include <countersign/engine/beam_dose.hpp>
+#include <countersign/util/error.hpp>
 
 #include <CLI/CLI.hpp>
 #include <filesystem>
@@ -16,6 +18,11 @@ namespace countersign::cli {
 
 // The library folder to use: the option's value, else the bundled beamdata/ of the source tree.
 [[nodiscard]] std::filesystem::path beamdata_folder(const std::string& option_value);
+
+// Check options from the shared flags; the policy file (if named) is loaded and validated.
+[[nodiscard]] Expected<check::CheckOptions> check_options_from(engine::MethodChoice method,
+                                                               engine::DepthChoice depth,
+                                                               const std::string& policy_file);
 
 // The bundled demo plans (testdata/plans beside the bundled beamdata/).
 [[nodiscard]] std::filesystem::path bundled_demo_plans();

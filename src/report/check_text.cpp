@@ -68,23 +68,9 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
 }
 
 void write_plan_summary_line(std::ostream& out, const check::PlanCheck& c) {
-  int within = 0, outside = 0, not_checked = 0, skipped = 0;
+  const auto [within, outside, not_checked, skipped] = c.beam_counts();
   std::optional<double> largest_deviation_percent;
   for (const check::BeamCheck& b : c.beams) {
-    switch (b.status) {
-      case check::Status::within_tolerance:
-        ++within;
-        break;
-      case check::Status::outside_tolerance:
-        ++outside;
-        break;
-      case check::Status::not_checked:
-        ++not_checked;
-        break;
-      case check::Status::skipped:
-        ++skipped;
-        break;
-    }
     if (b.deviation_percent && (!largest_deviation_percent ||
                                 std::abs(*b.deviation_percent) > std::abs(*largest_deviation_percent))) {
       largest_deviation_percent = b.deviation_percent;

@@ -79,23 +79,7 @@ std::string plan_outcome_words(const check::PlanCheck& check) {
 }
 
 std::string counts_text(const check::PlanCheck& check) {
-  int within = 0, outside = 0, not_checked = 0, skipped = 0;
-  for (const auto& b : check.beams) {
-    switch (b.status) {
-      case check::Status::within_tolerance:
-        ++within;
-        break;
-      case check::Status::outside_tolerance:
-        ++outside;
-        break;
-      case check::Status::not_checked:
-        ++not_checked;
-        break;
-      case check::Status::skipped:
-        ++skipped;
-        break;
-    }
-  }
+  const auto [within, outside, not_checked, skipped] = check.beam_counts();
   return fmt::format("{} beam{}: {} within tolerance, {} outside tolerance, {} not checked, {} skipped",
                      check.beams.size(), check.beams.size() == 1 ? "" : "s", within, outside, not_checked,
                      skipped);

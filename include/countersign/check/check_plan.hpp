@@ -88,6 +88,12 @@ struct PlanCheck {
 
   // 0 within, 1 outside, 2 not checked (DESIGN.md §6).
   [[nodiscard]] ExitCode exit_code() const;
+
+  struct BeamCounts {
+    int within = 0, outside = 0, not_checked = 0, skipped = 0;
+  };
+  // How many beams ended in each status.
+  [[nodiscard]] BeamCounts beam_counts() const;
 };
 
 [[nodiscard]] PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library,
