@@ -29,8 +29,7 @@ th, td { border: 0.25mm solid #000; padding: 0.7mm 1.4mm; text-align: left; vert
 th { background: #e8e8e8; font-weight: bold; }
 thead { display: table-header-group; }
 tr { break-inside: avoid; }
-td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
-td.num { white-space: nowrap; }
+td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 table.identity th { width: 34mm; background: #f2f2f2; font-weight: normal; }
 table.identity td { font-weight: bold; }
 .mono { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; font-size: 8pt; word-break: break-all; font-weight: normal; }
@@ -39,7 +38,7 @@ table.identity td { font-weight: bold; }
 .outcome.outside { background: #000; color: #fff; border: 0.6mm solid #000; }
 .outcome.not-checked { border: 0.9mm dashed #000; }
 .outcome.skipped { border: 0.4mm dotted #000; }
-td.word { font-weight: bold; }
+td.word { font-weight: bold; white-space: nowrap; }
 tr.outside td { font-weight: bold; border-top-width: 0.6mm; border-bottom-width: 0.6mm; }
 tr.outside td.word { background: #000; color: #fff; }
 tr.not-checked td.word { text-decoration: underline; }
