@@ -6,18 +6,16 @@
 #include <countersign/service/check_processor.hpp>
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/stop_signals.hpp>
-#include <countersign/service/storage_receiver.hpp>
 
-#include <chrono>
+#include <countersign/service/storage_receiver.hpp>
+#include "service_startup.hpp"
+#include "shared_options.hpp"
+
 #include <memory>
 #include <ostream>
 #include <string>
 #include <system_error>
 #include <vector>
-
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -43,21 +41,10 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
 
-    const fs::path library_dir =
-        options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
-    auto processor = service::load_check_processor(
-        library_dir, options.policy.empty() ? std::nullopt : std::optional<fs::path>{options.policy});
-    if (!processor) {
-      io.err << "countersign receive: " << processor.error().message() << "\n";
-      return ExitCode::bad_input;
-    }
-
     service::ServiceSettings settings;
     settings.results = options.results;
     settings.inbox = options.inbox.empty() ? settings.results / "incoming" : fs::path{options.inbox};
-    settings.intake.settle_time =
-        std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
-    auto opened = service::CheckingService::open(settings, std::move(processor.value()), log);
+    auto opened = open_checking_service(settings, options.settle_s, options.beamdata, options.policy, log);
     if (!opened) {
       io.err << "countersign receive: " << opened.error().message() << "\n";
       return ExitCode::bad_input;
@@ -74,21 +61,17 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
       io.err << "countersign receive: " << receiver.error().message() << "\n";
       return ExitCode::bad_input;
     }
-    log.line("beam data " + library_dir.string() + "; stop with SIGTERM or SIGINT");
+    log.line("beam data " + opened->beamdata_dir.string() + "; stop with SIGTERM or SIGINT");
 
     const int stop_fds[] = {signals.fd()};
-    const auto summary = opened.value()->run(service::RunUntil::stopped, stop_fds);
+    const auto summary = opened->service->run(service::RunUntil::stopped, stop_fds);
     // Plans received from here on wait in the inbox and are checked at the next start.
     receiver.value()->stop();
     if (!summary) {
       io.err << "countersign receive: " << summary.error().message() << "\n";
       return ExitCode::bad_input;
     }
-    const auto signal = signals.take();
-    log.line(std::string{"stopped"} +
-             (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) + ": " +
-             std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
-             " already checked, " + std::to_string(summary->quarantined) + " quarantined");
+    log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
     io.err << "countersign receive: " << e.what() << "\n";
@@ -118,10 +101,8 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
   command->add_option("--inbox", options->inbox,
                       "where received plans are stored and checked from "
                       "(default: RESULTS/incoming)");
-  command->add_option(
-      "--beamdata", options->beamdata,
-      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in values)");
+  add_beamdata_option(*command, options->beamdata);
+  add_policy_option(*command, options->policy);
   command
       ->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
       ->check(CLI::Range(1, 64));

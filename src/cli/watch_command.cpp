@@ -6,15 +6,13 @@
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/stop_signals.hpp>
 
-#include <chrono>
+#include "service_startup.hpp"
+#include "shared_options.hpp"
+
 #include <memory>
 #include <ostream>
 #include <string>
 #include <system_error>
-
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -38,42 +36,26 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
 
-    const fs::path library_dir =
-        options.beamdata.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{options.beamdata};
-    auto processor = service::load_check_processor(
-        library_dir, options.policy.empty() ? std::nullopt : std::optional<fs::path>{options.policy});
-    if (!processor) {
-      io.err << "countersign watch: " << processor.error().message() << "\n";
-      return ExitCode::bad_input;
-    }
-
     service::ServiceSettings settings;
     settings.inbox = options.inbox;
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
-    settings.intake.settle_time =
-        std::chrono::milliseconds{static_cast<long long>(options.settle_s * 1000.0)};
-    auto opened = service::CheckingService::open(settings, std::move(processor.value()), log);
+    auto opened = open_checking_service(settings, options.settle_s, options.beamdata, options.policy, log);
     if (!opened) {
       io.err << "countersign watch: " << opened.error().message() << "\n";
       return ExitCode::bad_input;
     }
-    log.line("beam data " + library_dir.string() + "; " +
+    log.line("beam data " + opened->beamdata_dir.string() + "; " +
              (options.once ? "checking what is there, then stopping" : "stop with SIGTERM or SIGINT"));
 
     const int stop_fds[] = {signals.fd()};
     const auto summary =
-        opened.value()->run(options.once ? service::RunUntil::idle : service::RunUntil::stopped, stop_fds);
+        opened->service->run(options.once ? service::RunUntil::idle : service::RunUntil::stopped, stop_fds);
     if (!summary) {
       io.err << "countersign watch: " << summary.error().message() << "\n";
       return ExitCode::bad_input;
     }
-    const auto signal = signals.take();
-    log.line(std::string{"stopped"} +
-             (signal ? std::string{" on signal "} + std::to_string(*signal) : std::string{}) + ": " +
-             std::to_string(summary->checked) + " checked, " + std::to_string(summary->duplicates) +
-             " already checked, " + std::to_string(summary->quarantined) + " quarantined, " +
-             std::to_string(summary->failures) + " failed attempts");
+    log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
     io.err << "countersign watch: " << e.what() << "\n";
@@ -97,10 +79,8 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
   command->add_option("--quarantine", options->quarantine,
                       "folder for bad files (default: RESULTS/quarantine)");
-  command->add_option(
-      "--beamdata", options->beamdata,
-      std::string{"beam-data library folder (default: the bundled "} + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
-  command->add_option("--policy", options->policy, "tolerance policy TOML file (default: built-in values)");
+  add_beamdata_option(*command, options->beamdata);
+  add_policy_option(*command, options->policy);
   command
       ->add_option("--settle-seconds", options->settle_s,
                    "a file that does not read as a plan is retried until it has been unchanged this long, "

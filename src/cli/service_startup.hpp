@@ -1,0 +1,33 @@
+#pragma once
+
+// What `watch` and `receive` share: load the beam data and policy once, open the checking service,
+// and the log line written when a service stops.
+
+#include <countersign/service/checking_service.hpp>
+#include <countersign/service/folder_watcher.hpp>
+#include <countersign/service/service_log.hpp>
+#include <countersign/util/error.hpp>
+
+#include <filesystem>
+#include <memory>
+#include <optional>
+#include <string>
+
+namespace countersign::cli {
+
+struct OpenedService {
+  std::filesystem::path beamdata_dir;  // the library in use, for the log
+  std::unique_ptr<service::CheckingService> service;
+};
+
+// settle_s: how long an unreadable inbox file must stay unchanged before it is quarantined.
+[[nodiscard]] Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
+                                                            double settle_s,
+                                                            const std::string& beamdata_option,
+                                                            const std::string& policy_option,
+                                                            service::ServiceLog& log);
+
+// "stopped on signal 15: 3 checked, 1 already checked, 0 quarantined, 0 failed attempts".
+[[nodiscard]] std::string stopped_line(const service::WatchSummary& summary, std::optional<int> signal);
+
+}  // namespace countersign::cli
