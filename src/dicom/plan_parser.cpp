@@ -159,6 +159,11 @@ Expected<plan::Plan> read_plan_dataset(DcmItem& dataset, std::string display_nam
   plan.geometry = top.text(DCM_RTPlanGeometry, Need::optional);
   plan.approval_status = top.text(DCM_ApprovalStatus, Need::optional);
   plan.manufacturer = top.text(DCM_Manufacturer, Need::optional);
+  plan.frame_of_reference_uid = top.text(DCM_FrameOfReferenceUID, Need::optional);
+  // Read as given; whether the reference leads to a usable study is the study reader's question.
+  for (const auto& item : top.sequence(DCM_ReferencedStructureSetSequence, Need::optional)) {
+    plan.referenced_structure_set_uids.push_back(item.text(DCM_ReferencedSOPInstanceUID, Need::optional));
+  }
   if (sink.failed()) return sink.error();
 
   plan.patient_setups = detail::parse_patient_setups(top);

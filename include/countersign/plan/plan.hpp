@@ -176,6 +176,10 @@ struct Plan {
   std::string geometry;                    // RT Plan Geometry (300A,000C): PATIENT, TREATMENT_DEVICE
   std::string approval_status;             // Approval Status (300E,0002): APPROVED, UNAPPROVED, REJECTED
   std::string manufacturer;                // (0008,0070)
+  std::string frame_of_reference_uid;      // Frame of Reference UID (0020,0052); empty if absent
+  // Referenced SOP Instance UID (0008,1155) of each item of the Referenced Structure Set Sequence
+  // (300C,0060): the structure set (and through it the CT) the plan was made on. DICOM permits one.
+  std::vector<std::string> referenced_structure_set_uids;
   std::vector<PatientSetup> patient_setups;
   std::vector<DoseReference> dose_references;
   std::vector<FractionGroup> fraction_groups;
