@@ -184,17 +184,19 @@ Result<double> slice_spacing(const std::vector<SliceHeader>& slices) {
                              "the CT series has a single slice; a volume needs two or more");
   }
   double smallest = std::numeric_limits<double>::max();
-  for (std::size_t k = 1; k < slices.size(); ++k)
-    smallest = std::min(smallest, slices[k].position[2] - slices[k - 1].position[2]);
+  for (std::size_t k = 1; k < slices.size(); ++k) {
+    const double step = slices[k].position[2] - slices[k - 1].position[2];
+    if (step <= slice_position_tolerance_mm) {
+      return attribute_problem(ProblemKind::ct_slices_inconsistent, slices[k], DCM_ImagePositionPatient,
+                               fmt::format("two slices at z = {:g} mm (also {})", slices[k].position[2],
+                                           slices[k - 1].path.string()));
+    }
+    smallest = std::min(smallest, step);
+  }
   for (std::size_t k = 1; k < slices.size(); ++k) {
     const SliceHeader& before = slices[k - 1];
     const SliceHeader& after = slices[k];
     const double step = after.position[2] - before.position[2];
-    if (step <= slice_position_tolerance_mm) {
-      return attribute_problem(
-          ProblemKind::ct_slices_inconsistent, after, DCM_ImagePositionPatient,
-          fmt::format("two slices at z = {:g} mm (also {})", after.position[2], before.path.string()));
-    }
     if (std::abs(step - smallest) <= slice_position_tolerance_mm) continue;
     const double multiple = std::round(step / smallest);
     if (multiple >= 2.0 && std::abs(step - multiple * smallest) <= slice_position_tolerance_mm) {
