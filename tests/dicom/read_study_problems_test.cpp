@@ -13,7 +13,9 @@ void expect_problem(const study::Result<study::Study>& result, ProblemKind kind,
                     const std::string& attribute = "") {
   ASSERT_FALSE(result.has_value()) << "loaded although it should not";
   EXPECT_EQ(study::code(result.problem().kind), study::code(kind)) << result.problem().message();
-  if (!attribute.empty()) EXPECT_EQ(result.problem().attribute, attribute) << result.problem().message();
+  if (!attribute.empty()) {
+    EXPECT_EQ(result.problem().attribute, attribute) << result.problem().message();
+  }
 }
 
 TEST(StudyProblems, MissingMiddleSliceIsAGap) {
