@@ -19,13 +19,15 @@ using study::ProblemKind;
 
 // The entry parameter counts as "on the CT's outer face" within this fraction of a micrometre.
 constexpr double face_tolerance_mm = 1e-6;
+// Pieces shorter than this are rounding between voxel faces and the outline, not tissue or air.
+constexpr double sliver_mm = 1e-6;
 
 std::string point_text(const Eigen::Vector3d& p) {
   return fmt::format("({:.1f}, {:.1f}, {:.1f}) mm", p.x(), p.y(), p.z());
 }
 
 void add_layer(std::vector<DensityLayer>& layers, double thickness_mm, double density) {
-  if (!(thickness_mm > 0.0)) return;
+  if (!(thickness_mm >= sliver_mm)) return;
   if (!layers.empty() && layers.back().relative_density == density) {
     layers.back().thickness_mm += thickness_mm;
     return;
@@ -48,7 +50,12 @@ void integrate(const study::Study& study, const DensityMap& densities,
     for (std::size_t i = b; i < body.size() && body[i].alpha_in < c.alpha_out; ++i)
       inside += std::max(0.0, std::min(c.alpha_out, body[i].alpha_out) - std::max(a0, body[i].alpha_in));
     const double total_mm = (c.alpha_out - a0) * length_mm;
-    const double inside_mm = inside * length_mm;
+    double inside_mm = inside * length_mm;
+    if (inside_mm < sliver_mm) {
+      inside_mm = 0.0;
+    } else if (total_mm - inside_mm < sliver_mm) {
+      inside_mm = total_mm;
+    }
     if (inside_mm > 0.0) {
       const std::int16_t hu = study.ct.hu[c.voxel];
       const double rho = densities.density(hu);

@@ -45,8 +45,12 @@ void write_manifest(const std::vector<std::pair<std::string, BeamGeometry>>& row
   out << "# Geometry of each beam of the INVENTED demo studies, computed by tools/make_demo_studies from "
          "the\n"
          "# phantoms' own polygons (not from the CT files): central axis of the gantry angle through the\n"
-         "# isocentre (HFS, couch 0), dose point at the isocentre. Distances in mm; radiological depth with\n"
-         "# the demo table -1000 HU -> 0.00, 0 HU -> 1.00, 3000 HU -> 2.50 (linear).\n"
+         "# isocentre (HFS, couch 0), dose point at the isocentre. Distances in mm. Entry, SSD and depth "
+         "are\n"
+         "# exact for the polygons; the radiological depth is that of the CT voxels (each of the CT number "
+         "at\n"
+         "# its centre) by the midpoint rule in 0.01 mm steps, with the demo table -1000 HU -> 0.00,\n"
+         "# 0 HU -> 1.00, 3000 HU -> 2.50 (linear).\n"
          "study\tplan_file\tbeam_number\tbeam_name\tgantry_deg\tisocenter_mm\tentry_mm\tssd_mm\tdepth_mm\t"
          "radiological_depth_mm\n";
   for (const auto& [study, g] : rows) {

@@ -48,34 +48,59 @@ void crossings(const std::vector<Polygon>& polygons, const Point2& s, const Poin
   }
 }
 
-// The central axis of gantry angle g (HFS, couch 0) through the isocentre, in the plane z = iso z.
+// The centre of the voxel that holds coordinate c along one axis of the phantom's grid.
+double voxel_centre(double c, double first_centre, double spacing) {
+  return first_centre + std::round((c - first_centre) / spacing) * spacing;
+}
+
+// The radiological depth a planning system computes on the CT: the CT number of the voxel holding
+// each point (decided by the voxel's centre), integrated by the midpoint rule in 0.01 mm steps
+// (a different method from countersign's exact voxel crossings).
+double radiological_depth_on_ct(const PhantomSpec& phantom, const Point2& from, const Point2& to,
+                                double z_mm) {
+  const double z = voxel_centre(z_mm, phantom.first_centre_mm[2], phantom.slice_mm);
+  const PlaneOutlines plane(phantom, z);
+  const double length = std::hypot(to[0] - from[0], to[1] - from[1]);
+  const auto steps = static_cast<std::size_t>(std::ceil(length / 0.01));
+  double sum = 0.0;
+  for (std::size_t n = 0; n < steps; ++n) {
+    const double t = (static_cast<double>(n) + 0.5) / static_cast<double>(steps);
+    const double x =
+        voxel_centre(from[0] + t * (to[0] - from[0]), phantom.first_centre_mm[0], phantom.pixel_mm);
+    const double y =
+        voxel_centre(from[1] + t * (to[1] - from[1]), phantom.first_centre_mm[1], phantom.pixel_mm);
+    sum += demo_density(plane.hu_at(x, y));
+  }
+  return sum * length / static_cast<double>(steps);
+}
+
+// The central axis of gantry angle g (HFS, couch 0) through the isocentre, in the plane z = iso z:
+// where it enters the body outline (exact, from the polygons), SSD and depth of the isocentre.
 BeamGeometry axis_geometry(const PhantomSpec& phantom, const std::array<double, 3>& iso, double gantry_deg) {
   const double g = gantry_deg * std::numbers::pi / 180.0;
   const Point2 dir{-std::sin(g), std::cos(g)};  // source towards isocentre (IEC 61217, HFS)
   const Point2 source{iso[0] - sad_mm * dir[0], iso[1] - sad_mm * dir[1]};
-  const double reach = 2.0 * sad_mm;
-  const Point2 end{source[0] + reach * dir[0], source[1] + reach * dir[1]};
-  std::vector<double> ts{0.0, 1.0, sad_mm / reach};
-  crossings(phantom.body.outline(iso[2]), source, end, ts);
-  for (const auto& region : phantom.regions) crossings(region.outline(iso[2]), source, end, ts);
+  const Point2 end{iso[0] + sad_mm * dir[0], iso[1] + sad_mm * dir[1]};
+  const auto body = phantom.body.outline(iso[2]);
+  std::vector<double> ts{0.0, 1.0};
+  crossings(body, source, end, ts);
   std::sort(ts.begin(), ts.end());
   BeamGeometry out;
   out.gantry_deg = gantry_deg;
   out.isocenter_mm = iso;
-  bool entered = false;
-  for (std::size_t i = 1; i < ts.size() && ts[i - 1] < sad_mm / reach; ++i) {
+  for (std::size_t i = 1; i < ts.size(); ++i) {
     const double mid = 0.5 * (ts[i - 1] + ts[i]);
-    const int hu = phantom.hu_at(source[0] + mid * reach * dir[0], source[1] + mid * reach * dir[1], iso[2]);
-    if (!entered && hu != phantom.air_hu) {
-      entered = true;
-      out.ssd_mm = ts[i - 1] * reach;
-      out.entry_mm = {source[0] + ts[i - 1] * reach * dir[0], source[1] + ts[i - 1] * reach * dir[1], iso[2]};
-    }
-    if (entered) out.radiological_depth_mm += (ts[i] - ts[i - 1]) * reach * demo_density(hu);
+    if (!inside(body, source[0] + mid * (end[0] - source[0]), source[1] + mid * (end[1] - source[1])))
+      continue;
+    out.ssd_mm = ts[i - 1] * 2.0 * sad_mm;
+    out.entry_mm = {source[0] + ts[i - 1] * (end[0] - source[0]),
+                    source[1] + ts[i - 1] * (end[1] - source[1]), iso[2]};
+    out.depth_mm = sad_mm - out.ssd_mm;
+    out.radiological_depth_mm =
+        radiological_depth_on_ct(phantom, {out.entry_mm[0], out.entry_mm[1]}, {iso[0], iso[1]}, iso[2]);
+    return out;
   }
-  if (!entered) throw std::logic_error("a demo beam misses its phantom");
-  out.depth_mm = sad_mm - out.ssd_mm;
-  return out;
+  throw std::logic_error("a demo beam misses its phantom");
 }
 
 BeamSpec beam_on(int number, const std::string& name, double gantry_deg, double dose_gy,
@@ -206,8 +231,9 @@ std::vector<BeamGeometry> write_study_plans(const PhantomSpec& phantom, const st
                dir, rows);
   } else if (phantom.folder == "fern_breast") {
     // Tangential pair along the chest wall under the left breast, isocentre 20 mm in front of the
-    // wall; the anterior jaw overshoots the skin (flash), so part of each field misses tissue.
-    write_plan(phantom, "RP.fern_breast_tangents.dcm", "BRTAN", "Left breast tangents", {55.0, -98.0, 0.0},
+    // wall (on a slice centre, z = 2.5); the anterior jaw overshoots the skin (flash), so part of
+    // each field misses tissue.
+    write_plan(phantom, "RP.fern_breast_tangents.dcm", "BRTAN", "Left breast tangents", {55.0, -98.0, 2.5},
                {{1, "MED-TAN", 285.0, 1.0, {-25.0, 45.0, -40.0, 40.0}},
                 {2, "LAT-TAN", 105.0, 1.0, {-45.0, 25.0, -40.0, 40.0}}},
                dir, rows);
