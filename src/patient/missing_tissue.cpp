@@ -1,7 +1,6 @@
 #include <countersign/patient/missing_tissue.hpp>
 
 #include <countersign/geometry/beam_frame.hpp>
-#include <countersign/patient/body_path.hpp>
 #include <countersign/patient/ray_trace.hpp>
 
 #include <algorithm>
@@ -39,7 +38,7 @@ void polygon_spans(std::span<const std::array<double, 2>> polygon, double v, std
 
 }  // namespace
 
-MissingTissue missing_tissue(const study::Study& study, const FieldPlane& plane,
+MissingTissue missing_tissue(const BodyOutline& body, const FieldPlane& plane,
                              std::span<const std::array<double, 2>> field_uv_mm, double row_spacing_mm) {
   MissingTissue out;
   if (field_uv_mm.size() < 3 || !(row_spacing_mm > 0.0)) return out;
@@ -62,13 +61,13 @@ MissingTissue missing_tissue(const study::Study& study, const FieldPlane& plane,
       const Eigen::Vector3d from = plane.centre_mm + us[m] * plane.u_axis + v * plane.v_axis;
       const Eigen::Vector3d to = plane.centre_mm + us[m + 1] * plane.u_axis + v * plane.v_axis;
       out.field_area_mm2 += length * h;
-      const auto inside_ct = trace_voxels(study.ct.grid, from, to, crossings);
+      const auto inside_ct = trace_voxels(body.study().ct.grid, from, to, crossings);
       if (!inside_ct) {
         outside_ct_mm2 += length * h;
         continue;
       }
       double in_body = 0.0;
-      for (const auto& range : body_intervals(study, from, to, *inside_ct, crossings))
+      for (const auto& range : body.intervals(from, to, *inside_ct, crossings))
         in_body += range.alpha_out - range.alpha_in;
       const double in_ct = inside_ct->alpha_out - inside_ct->alpha_in;
       outside_ct_mm2 += (1.0 - in_ct) * length * h;

@@ -1,7 +1,6 @@
 #include <countersign/patient/ray_depth.hpp>
 
 #include <countersign/geometry/beam_frame.hpp>
-#include <countersign/patient/body_path.hpp>
 #include <countersign/patient/ray_trace.hpp>
 
 #include <fmt/format.h>
@@ -76,8 +75,9 @@ void integrate(const study::Study& study, const DensityMap& densities,
 
 }  // namespace
 
-study::Result<RayDepth> trace_depth(const study::Study& study, const DensityMap& densities,
+study::Result<RayDepth> trace_depth(const BodyOutline& outline, const DensityMap& densities,
                                     const Eigen::Vector3d& source_mm, const Eigen::Vector3d& point_mm) {
+  const study::Study& study = outline.study();
   const study::VoxelGrid& grid = study.ct.grid;
   if (!grid.contains(to_point(point_mm))) {
     return Problem{ProblemKind::point_outside_ct, "", "", "",
@@ -90,7 +90,7 @@ study::Result<RayDepth> trace_depth(const study::Study& study, const DensityMap&
     return Problem{ProblemKind::point_outside_ct, "", "", "",
                    fmt::format("the ray to the point {} does not pass through the CT", point_text(point_mm))};
   }
-  const auto body = body_intervals(study, source_mm, point_mm, *inside_ct, crossings);
+  const auto body = outline.intervals(source_mm, point_mm, *inside_ct, crossings);
   if (body.empty() || body.back().alpha_out < 1.0 - face_tolerance_mm / length_mm) {
     return Problem{ProblemKind::point_outside_body, "", "", "",
                    fmt::format("the point {} lies outside the body outline", point_text(point_mm))};
@@ -113,9 +113,9 @@ study::Result<RayDepth> trace_depth(const study::Study& study, const DensityMap&
   return out;
 }
 
-study::Result<SurfaceDistance> surface_along(const study::Study& study, const Eigen::Vector3d& source_mm,
+study::Result<SurfaceDistance> surface_along(const BodyOutline& outline, const Eigen::Vector3d& source_mm,
                                              const Eigen::Vector3d& direction) {
-  const study::VoxelGrid& grid = study.ct.grid;
+  const study::VoxelGrid& grid = outline.study().ct.grid;
   const Eigen::Vector3d unit = direction.normalized();
   Eigen::Vector3d centre;
   double diagonal_mm = 0.0;
@@ -129,7 +129,7 @@ study::Result<SurfaceDistance> surface_along(const study::Study& study, const Ei
   std::vector<VoxelCrossing> crossings;
   const auto inside_ct = trace_voxels(grid, source_mm, far_mm, crossings);
   const auto body =
-      inside_ct ? body_intervals(study, source_mm, far_mm, *inside_ct, crossings) : std::vector<AlphaRange>{};
+      inside_ct ? outline.intervals(source_mm, far_mm, *inside_ct, crossings) : std::vector<AlphaRange>{};
   if (body.empty()) {
     return Problem{ProblemKind::central_axis_misses_body, "", "", "",
                    "the central axis does not meet the body inside the CT"};
@@ -145,8 +145,9 @@ study::Result<SurfaceDistance> surface_along(const study::Study& study, const Ei
                          body.front().alpha_in * reach_mm};
 }
 
-study::Result<SurfaceDistance> central_axis_ssd(const study::Study& study, const geometry::BeamFrame& frame) {
-  return surface_along(study, frame.source_in_patient_mm(), frame.beam_direction_in_patient());
+study::Result<SurfaceDistance> central_axis_ssd(const BodyOutline& outline,
+                                                const geometry::BeamFrame& frame) {
+  return surface_along(outline, frame.source_in_patient_mm(), frame.beam_direction_in_patient());
 }
 
 }  // namespace countersign::patient

@@ -6,7 +6,7 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom/read_study.hpp>
 #include <countersign/geometry/beam_frame.hpp>
-#include <countersign/patient/ray_depth.hpp>
+#include <countersign/patient/patient_model.hpp>
 
 #include "support/paths.hpp"
 #include "synthetic_study.hpp"
@@ -24,7 +24,7 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const study::Study& demo(const std::string& name) {
+const study::Study& demo_study(const std::string& name) {
   static std::map<std::string, study::Study> loaded;
   auto found = loaded.find(name);
   if (found != loaded.end()) return found->second;
@@ -38,6 +38,18 @@ const study::Study& demo(const std::string& name) {
     return loaded.emplace(name, std::move(study.value())).first->second;
   }
   throw std::runtime_error("no plan in " + folder.string());
+}
+
+// The demo study with the demo table (-1000 HU -> 0, 0 -> 1, 3000 -> 2.5).
+const patient::PatientModel& demo(const std::string& name) {
+  static std::map<std::string, patient::PatientModel> models;
+  auto found = models.find(name);
+  if (found != models.end()) return found->second;
+  const auto table = patient::piecewise_linear_density({{-1000.0, 0.0}, {0.0, 1.0}, {3000.0, 2.5}});
+  return models
+      .emplace(std::piecewise_construct, std::forward_as_tuple(name),
+               std::forward_as_tuple(demo_study(name), table))
+      .first->second;
 }
 
 std::vector<std::map<std::string, std::string>> expected_geometry() {
@@ -71,20 +83,19 @@ Eigen::Vector3d triple(const std::string& text) {
 TEST(DemoGeometry, EveryBeamAgreesWithTheGeneratorsPolygons) {
   const auto rows = expected_geometry();
   ASSERT_EQ(rows.size(), 9u);
-  const auto densities = demo_densities();
   for (const auto& row : rows) {
     SCOPED_TRACE(row.at("study") + " beam " + row.at("beam_name"));
-    const auto& study = demo(row.at("study"));
+    const auto& model = demo(row.at("study"));
     const Eigen::Vector3d iso = triple(row.at("isocenter_mm"));
     const geometry::BeamFrame frame(geometry::PatientPosition::hfs,
                                     {std::stod(row.at("gantry_deg")), 0.0, 0.0}, {iso.x(), iso.y(), iso.z()},
                                     1000.0);
-    const auto ssd = patient::central_axis_ssd(study, frame);
+    const auto ssd = model.ssd(frame);
     ASSERT_TRUE(ssd.has_value()) << ssd.problem().message();
     // Contour vertices are stored with 10 significant digits: agreement to well below a micrometre.
     EXPECT_NEAR(ssd->distance_mm, std::stod(row.at("ssd_mm")), 1e-5);
     EXPECT_LT((ssd->entry_mm - triple(row.at("entry_mm"))).norm(), 1e-5);
-    const auto depth = patient::trace_depth(study, densities, frame.source_in_patient_mm(), iso);
+    const auto depth = model.depth(frame.source_in_patient_mm(), iso);
     ASSERT_TRUE(depth.has_value()) << depth.problem().message();
     EXPECT_NEAR(depth->depth_mm, std::stod(row.at("depth_mm")), 1e-5);
     // The generator integrates the same voxels by the midpoint rule in 0.01 mm steps.
@@ -92,22 +103,20 @@ TEST(DemoGeometry, EveryBeamAgreesWithTheGeneratorsPolygons) {
   }
 }
 
-// Oblique surface y = -80 + x tan(20 deg) for |x| <= 120, all z: rays from many directions, some
-// leaving the transverse plane, against the analytic intersection of the line with that plane.
 TEST(DemoGeometry, LungSlabAnteriorBeamIsExact) {
   // 40 mm water, 40 mm lung (-700 HU -> 0.3 in the demo table), 40 mm water: 92 mm (hand calculation).
   const geometry::BeamFrame frame(geometry::PatientPosition::hfs, {0.0, 0.0, 0.0}, {0.0, 20.0, 0.0}, 1000.0);
-  const auto depth = patient::trace_depth(demo("fern_lung_slab"), demo_densities(),
-                                          frame.source_in_patient_mm(), {0.0, 20.0, 0.0});
+  const auto depth = demo("fern_lung_slab").depth(frame.source_in_patient_mm(), {0.0, 20.0, 0.0});
   ASSERT_TRUE(depth.has_value()) << depth.problem().message();
   EXPECT_NEAR(depth->depth_mm, 120.0, 1e-9);
   EXPECT_NEAR(depth->radiological_depth_mm, 40.0 + 40.0 * 0.3 + 40.0, 1e-9);
   EXPECT_NEAR(depth->source_to_entry_mm, 880.0, 1e-9);
 }
 
+// Oblique surface y = -80 + x tan(20 deg) for |x| <= 120, all z: rays from many directions, some
+// leaving the transverse plane, against the analytic intersection of the line with that plane.
 TEST(DemoGeometry, ObliqueSurfaceDepthIsTheLinePlaneIntersection) {
-  const auto& study = demo("fern_oblique");
-  const auto densities = demo_densities();
+  const auto& model = demo("fern_oblique");
   const double slope = std::tan(20.0 * std::numbers::pi / 180.0);
   const Eigen::Vector3d normal(-slope, 1.0, 0.0);  // plane: normal . p = -80
   int checked = 0;
@@ -121,7 +130,7 @@ TEST(DemoGeometry, ObliqueSurfaceDepthIsTheLinePlaneIntersection) {
       const Eigen::Vector3d entry = source + t * (point - source);
       ASSERT_LE(std::abs(entry.x()), 120.0);
       ASSERT_LE(std::abs(entry.z()), 40.0);
-      const auto depth = patient::trace_depth(study, densities, source, point);
+      const auto depth = model.depth(source, point);
       ASSERT_TRUE(depth.has_value()) << depth.problem().message();
       EXPECT_NEAR(depth->depth_mm, (point - entry).norm(), 1e-5) << "gantry " << gantry << " tilt " << tilt;
       EXPECT_LT((depth->entry_mm - entry).norm(), 1e-5);

@@ -40,7 +40,8 @@ FieldPlane transverse_plane() {
 }
 
 TEST(MissingTissue, FieldInsideTheBodyMissesNothing) {
-  const auto m = missing_tissue(box(), transverse_plane(), rectangle_mm(-40, 40, -15, 15));
+  const auto m =
+      missing_tissue(patient::BodyOutline(box()), transverse_plane(), rectangle_mm(-40, 40, -15, 15));
   EXPECT_NEAR(m.field_area_mm2, 80.0 * 30.0, 1e-9);
   EXPECT_NEAR(m.outside_body_fraction, 0.0, 1e-12);
   EXPECT_NEAR(m.outside_ct_fraction, 0.0, 1e-12);
@@ -48,13 +49,15 @@ TEST(MissingTissue, FieldInsideTheBodyMissesNothing) {
 
 TEST(MissingTissue, FieldOverTheEdgeOfTheBody) {
   // u from 20 to 80: 30 of 60 mm lie beyond x = 50 (analytic: half).
-  const auto m = missing_tissue(box(), transverse_plane(), rectangle_mm(20, 80, -10, 10));
+  const auto m =
+      missing_tissue(patient::BodyOutline(box()), transverse_plane(), rectangle_mm(20, 80, -10, 10));
   EXPECT_NEAR(m.outside_body_fraction, 0.5, 1e-12);
 }
 
 TEST(MissingTissue, FieldBeyondTheScannedLength) {
   // v (z) from -10 to 30: 10 of 40 mm beyond the CT's end at z = 20 (analytic: a quarter).
-  const auto m = missing_tissue(box(), transverse_plane(), rectangle_mm(-20, 20, -10, 30));
+  const auto m =
+      missing_tissue(patient::BodyOutline(box()), transverse_plane(), rectangle_mm(-20, 20, -10, 30));
   EXPECT_NEAR(m.outside_ct_fraction, 0.25, 1e-12);
   EXPECT_NEAR(m.outside_body_fraction, 0.0, 1e-12);
 }
@@ -68,7 +71,7 @@ TEST(MissingTissue, TiltedPlaneAcrossACorner) {
   plane.centre_mm = {50.0, 90.0, 0.0};
   plane.u_axis = Eigen::Vector3d(1.0, 1.0, 0.0).normalized();
   plane.v_axis = {0.0, 0.0, 1.0};
-  const auto m = missing_tissue(box(), plane, rectangle_mm(-30, 30, -5, 5));
+  const auto m = missing_tissue(patient::BodyOutline(box()), plane, rectangle_mm(-30, 30, -5, 5));
   EXPECT_NEAR(m.outside_body_fraction + m.outside_ct_fraction, 0.5, 1e-9);
   EXPECT_NEAR(m.outside_body_fraction, 10.0 * std::sqrt(2.0) / 60.0, 1e-9);
 }
@@ -77,7 +80,7 @@ TEST(MissingTissue, TrianglesAndRowSpacing) {
   // The triangle (20, -10), (80, -10), (20, 10): the part beyond u = 50 is a triangle of a quarter
   // of its area (similar triangles, ratio 1/2). Rows of 0.05 mm: midpoint rule exact for linear spans.
   const std::vector<std::array<double, 2>> triangle{{20.0, -10.0}, {80.0, -10.0}, {20.0, 10.0}};
-  const auto m = missing_tissue(box(), transverse_plane(), triangle, 0.05);
+  const auto m = missing_tissue(patient::BodyOutline(box()), transverse_plane(), triangle, 0.05);
   EXPECT_NEAR(m.field_area_mm2, 600.0, 1e-9);
   EXPECT_NEAR(m.outside_body_fraction, 0.25, 1e-9);
 }
@@ -107,7 +110,8 @@ TEST(MissingTissue, BreastTangentsAgreeWithPointSampling) {
     const geometry::BeamFrame frame(geometry::PatientPosition::hfs, {*cp.gantry_deg, 0.0, 0.0},
                                     *cp.isocenter_mm, 1000.0);
     const auto plane = patient::field_plane(frame, 1000.0);
-    const auto m = missing_tissue(*study, plane, rectangle_mm(jaws_x[0], jaws_x[1], jaws_y[0], jaws_y[1]));
+    const auto m = missing_tissue(patient::BodyOutline(*study), plane,
+                                  rectangle_mm(jaws_x[0], jaws_x[1], jaws_y[0], jaws_y[1]));
     std::size_t inside = 0, total = 0;
     for (double u = jaws_x[0] + 0.5; u < jaws_x[1]; u += 1.0) {
       for (double v = jaws_y[0] + 0.5; v < jaws_y[1]; v += 1.0) {

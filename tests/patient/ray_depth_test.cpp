@@ -2,7 +2,7 @@
 // sum of thickness x density (exact: every slab face lies on a voxel face), geometric depth the
 // analytic distance to the surface; and the structured problems of rays that cannot be used.
 
-#include <countersign/patient/ray_depth.hpp>
+#include <countersign/patient/patient_model.hpp>
 
 #include "synthetic_study.hpp"
 
@@ -14,7 +14,11 @@
 namespace countersign::test {
 namespace {
 
-using patient::trace_depth;
+// The depth of source -> point with the demo table.
+study::Result<patient::RayDepth> depth_of(const study::Study& s, const Eigen::Vector3d& source,
+                                          const Eigen::Vector3d& point) {
+  return patient::trace_depth(patient::BodyOutline(s), demo_densities(), source, point);
+}
 using study::ProblemKind;
 
 // 200 x 200 x 40 mm of 5 mm voxels. Body x in [-80, 80], y in [-60, 90] (anterior surface y = -60).
@@ -47,9 +51,8 @@ class SlabPhantom : public ::testing::TestWithParam<bool> {
 };
 
 TEST_P(SlabPhantom, AnteriorRayRadiologicalDepthIsTheSumOfThicknessTimesDensity) {
-  const auto densities = demo_densities();
   const Eigen::Vector3d point(2.5, 50.0, 2.5);
-  const auto depth = trace_depth(study(), densities, {2.5, -1000.0, 2.5}, point);
+  const auto depth = depth_of(study(), {2.5, -1000.0, 2.5}, point);
   ASSERT_TRUE(depth.has_value()) << depth.problem().message();
   EXPECT_NEAR(depth->depth_mm, 110.0, 1e-9);
   EXPECT_NEAR(depth->source_to_entry_mm, 940.0, 1e-9);
@@ -70,21 +73,19 @@ TEST_P(SlabPhantom, AnteriorRayRadiologicalDepthIsTheSumOfThicknessTimesDensity)
 }
 
 TEST_P(SlabPhantom, ObliqueRayScalesEverySlabBySecantOfTheAngle) {
-  const auto densities = demo_densities();
   const double angle = 25.0 * std::numbers::pi / 180.0;
   const Eigen::Vector3d point(10.0, 50.0, 2.5);
   const Eigen::Vector3d source = point - 1000.0 * Eigen::Vector3d(std::sin(angle), std::cos(angle), 0.0);
-  const auto depth = trace_depth(study(), densities, source, point);
+  const auto depth = depth_of(study(), source, point);
   ASSERT_TRUE(depth.has_value()) << depth.problem().message();
   EXPECT_NEAR(depth->depth_mm, 110.0 / std::cos(angle), 1e-9);
   EXPECT_NEAR(depth->radiological_depth_mm, slab_radiological_mm / std::cos(angle), 1e-9);
 }
 
 TEST_P(SlabPhantom, NonCoplanarRayCrossesSlicesExactly) {
-  const auto densities = demo_densities();
   const Eigen::Vector3d d(0.3, 1.0, 0.1);  // rises 11 mm in z while crossing the 110 mm of slabs
   const Eigen::Vector3d point(0.0, 50.0, 0.0);
-  const auto depth = trace_depth(study(), densities, point - 900.0 * d, point);
+  const auto depth = depth_of(study(), point - 900.0 * d, point);
   ASSERT_TRUE(depth.has_value()) << depth.problem().message();
   EXPECT_NEAR(depth->depth_mm, 110.0 * d.norm(), 1e-9);
   EXPECT_NEAR(depth->radiological_depth_mm, slab_radiological_mm * d.norm(), 1e-9);
@@ -94,20 +95,20 @@ INSTANTIATE_TEST_SUITE_P(Body, SlabPhantom, ::testing::Values(false, true),
                          [](const auto& info) { return info.param ? "FromThreshold" : "FromContours"; });
 
 TEST(RayDepthProblems, PointOutsideTheCt) {
-  const auto result = trace_depth(contour_slabs(), demo_densities(), {0, -1000, 0}, {0, 150, 0});
+  const auto result = depth_of(contour_slabs(), {0, -1000, 0}, {0, 150, 0});
   ASSERT_FALSE(result.has_value());
   EXPECT_EQ(result.problem().kind, ProblemKind::point_outside_ct);
 }
 
 TEST(RayDepthProblems, PointInAirInFrontOfTheBody) {
-  const auto result = trace_depth(contour_slabs(), demo_densities(), {0, -1000, 0}, {0, -70, 0});
+  const auto result = depth_of(contour_slabs(), {0, -1000, 0}, {0, -70, 0});
   ASSERT_FALSE(result.has_value());
   EXPECT_EQ(result.problem().kind, ProblemKind::point_outside_body);
 }
 
 TEST(RayDepthProblems, RayEnteringThroughTheEndOfTheScan) {
   // The body fills every slice, so a ray from above the scanned length meets it at the CT's end face.
-  const auto result = trace_depth(contour_slabs(), demo_densities(), {0, 0, 1000}, {0, 0, 0});
+  const auto result = depth_of(contour_slabs(), {0, 0, 1000}, {0, 0, 0});
   ASSERT_FALSE(result.has_value());
   EXPECT_EQ(result.problem().kind, ProblemKind::ray_leaves_ct_inside_body) << result.problem().message();
 }
@@ -115,7 +116,8 @@ TEST(RayDepthProblems, RayEnteringThroughTheEndOfTheScan) {
 TEST(RayDepth, VoxelsBeyondTheTableAreCounted) {
   // A table that ends at 1000 HU: the three 1200 HU voxels on the ray take its last row.
   const patient::DensityMap densities(patient::piecewise_linear_density({{-1000.0, 0.0}, {1000.0, 1.5}}));
-  const auto depth = trace_depth(contour_slabs(), densities, {2.5, -1000.0, 2.5}, {2.5, 50.0, 2.5});
+  const auto depth = patient::trace_depth(patient::BodyOutline(contour_slabs()), densities,
+                                          {2.5, -1000.0, 2.5}, {2.5, 50.0, 2.5});
   ASSERT_TRUE(depth.has_value());
   EXPECT_EQ(depth->voxels_beyond_table, 3u);
   EXPECT_DOUBLE_EQ(depth->highest_density, 1.5);
@@ -128,7 +130,7 @@ TEST(RayDepth, AirGapBetweenTwoPartsOfTheBody) {
   };
   const auto s = synthetic_study(slab_grid, hu,
                                  {rectangle_outline(-80, 80, -60, 0), rectangle_outline(-80, 80, 20, 90)});
-  const auto depth = trace_depth(s, demo_densities(), {2.5, -1000.0, 2.5}, {2.5, 50.0, 2.5});
+  const auto depth = depth_of(s, {2.5, -1000.0, 2.5}, {2.5, 50.0, 2.5});
   ASSERT_TRUE(depth.has_value()) << depth.problem().message();
   EXPECT_EQ(depth->body_entries, 2);
   EXPECT_NEAR(depth->depth_mm, 110.0, 1e-9);
@@ -140,7 +142,7 @@ TEST(RayDepth, AirGapBetweenTwoPartsOfTheBody) {
 }
 
 TEST(SurfaceAlong, CentralAxisSsdAndItsProblems) {
-  const auto& s = contour_slabs();
+  const patient::BodyOutline s(contour_slabs());
   const auto ssd = patient::surface_along(s, {2.5, -1000.0, 2.5}, {0.0, 1.0, 0.0});
   ASSERT_TRUE(ssd.has_value()) << ssd.problem().message();
   EXPECT_NEAR(ssd->distance_mm, 940.0, 1e-9);

@@ -6,7 +6,7 @@
 // point's distance. Along u each row is exact (the same segment-body intersection as the rays);
 // rows are spaced at most row_spacing_mm apart in v (midpoint rule).
 
-#include <countersign/study/study.hpp>
+#include <countersign/patient/body_outline.hpp>
 
 #include <Eigen/Core>
 
@@ -42,7 +42,7 @@ struct MissingTissue {
 
 // Fractions of the polygon's area (u, v in mm, the closing edge implicit) outside the body and
 // outside the CT. A polygon without area gives all zeros.
-[[nodiscard]] MissingTissue missing_tissue(const study::Study& study, const FieldPlane& plane,
+[[nodiscard]] MissingTissue missing_tissue(const BodyOutline& body, const FieldPlane& plane,
                                            std::span<const std::array<double, 2>> field_uv_mm,
                                            double row_spacing_mm = 0.5);
 

@@ -5,6 +5,7 @@
 // the relative electron density along the ray from the body surface to the point (AAPM TG-114
 // discusses it as the effective path length); voxels outside the body count as air (density 0).
 
+#include <countersign/patient/body_outline.hpp>
 #include <countersign/patient/density.hpp>
 #include <countersign/study/problem.hpp>
 #include <countersign/study/study.hpp>
@@ -45,7 +46,7 @@ struct RayDepth {
 
 // Depths for the ray source -> point. Problems: point_outside_ct, point_outside_body,
 // ray_leaves_ct_inside_body (the surface the ray enters through is not in the CT).
-[[nodiscard]] study::Result<RayDepth> trace_depth(const study::Study& study, const DensityMap& densities,
+[[nodiscard]] study::Result<RayDepth> trace_depth(const BodyOutline& body, const DensityMap& densities,
                                                   const Eigen::Vector3d& source_mm,
                                                   const Eigen::Vector3d& point_mm);
 
@@ -56,12 +57,12 @@ struct SurfaceDistance {
 
 // Source to the body surface along a direction (for the SSD: the central axis, source -> isocentre).
 // Problems: central_axis_misses_body, ray_leaves_ct_inside_body.
-[[nodiscard]] study::Result<SurfaceDistance> surface_along(const study::Study& study,
+[[nodiscard]] study::Result<SurfaceDistance> surface_along(const BodyOutline& body,
                                                            const Eigen::Vector3d& source_mm,
                                                            const Eigen::Vector3d& direction);
 
 // The SSD of a beam direction: surface_along from the frame's source along its central axis.
-[[nodiscard]] study::Result<SurfaceDistance> central_axis_ssd(const study::Study& study,
+[[nodiscard]] study::Result<SurfaceDistance> central_axis_ssd(const BodyOutline& body,
                                                               const geometry::BeamFrame& frame);
 
 }  // namespace countersign::patient
