@@ -215,7 +215,44 @@ Result<double> slice_spacing(const std::vector<SliceHeader>& slices) {
   return (slices.back().position[2] - first.position[2]) / static_cast<double>(slices.size() - 1);
 }
 
-// The slice's pixels as HU into slice k of the volume.
+// The stored value of a pixel: its bits stored, sign-extended when the representation is signed.
+struct StoredValue {
+  std::uint32_t mask;
+  std::int32_t sign_bit;  // 0 when unsigned
+  std::int32_t operator()(Uint16 raw) const {
+    const auto value = static_cast<std::int32_t>(raw & mask);
+    return (value & sign_bit) ? value - 2 * sign_bit : value;
+  }
+};
+
+std::int16_t clamped_hu(double hu, std::size_t& clamped) {
+  if (hu < -32768.0 || hu > 32767.0) {
+    ++clamped;
+    hu = std::clamp(hu, -32768.0, 32767.0);
+  }
+  return static_cast<std::int16_t>(hu);
+}
+
+// Writes the slice's rows into slice k of the volume, converting each pixel with `hu_of`.
+template <class Convert>
+void fill_rows(const Uint16* words, const SliceHeader& slice, const Flips& flips, std::size_t k,
+               study::CtVolume& ct, Convert hu_of) {
+  const auto cols = static_cast<std::size_t>(slice.columns);
+  const auto rows = static_cast<std::size_t>(slice.rows);
+  for (std::size_t j = 0; j < rows; ++j) {
+    std::int16_t* out = ct.hu.data() + ct.grid.index(0, flips.y ? rows - 1 - j : j, k);
+    const Uint16* in = words + j * cols;
+    if (flips.x) {
+      for (std::size_t i = 0; i < cols; ++i) out[cols - 1 - i] = hu_of(in[i]);
+    } else {
+      for (std::size_t i = 0; i < cols; ++i) out[i] = hu_of(in[i]);
+    }
+  }
+}
+
+// The slice's pixels as HU into slice k of the volume: Rescale Slope and Intercept, rounded to
+// 1 HU, clamped to int16 (clamps counted). Integer arithmetic when the slope is 1 and the
+// intercept whole, as CT scanners write them.
 std::optional<Problem> fill_slice(SliceHeader& slice, const Flips& flips, std::size_t k,
                                   study::CtVolume& ct) {
   const Uint16* words = nullptr;
@@ -227,24 +264,21 @@ std::optional<Problem> fill_slice(SliceHeader& slice, const Flips& flips, std::s
                              fmt::format("cannot be read as {} 16-bit values", pixels));
   }
   const unsigned bits = static_cast<unsigned>(slice.bits_stored);
-  const std::uint32_t mask = bits == 16 ? 0xFFFFu : (1u << bits) - 1u;
-  const bool is_signed = slice.pixel_representation == 1;
-  const std::int32_t sign_bit = 1 << (bits - 1);
-  const auto cols = static_cast<std::size_t>(slice.columns);
-  const auto rows = static_cast<std::size_t>(slice.rows);
-  for (std::size_t j = 0; j < rows; ++j) {
-    const std::size_t dj = flips.y ? rows - 1 - j : j;
-    std::int16_t* out = ct.hu.data() + ct.grid.index(0, dj, k);
-    for (std::size_t i = 0; i < cols; ++i) {
-      auto value = static_cast<std::int32_t>(words[j * cols + i] & mask);
-      if (is_signed && (value & sign_bit)) value -= 2 * sign_bit;
-      double hu = std::round(slice.slope * value + slice.intercept);
-      if (hu < -32768.0 || hu > 32767.0) {
-        hu = std::clamp(hu, -32768.0, 32767.0);
-        ++ct.clamped_voxel_count;
-      }
-      out[flips.x ? cols - 1 - i : i] = static_cast<std::int16_t>(hu);
-    }
+  const StoredValue stored{bits == 16 ? 0xFFFFu : (1u << bits) - 1u,
+                           slice.pixel_representation == 1 ? std::int32_t{1} << (bits - 1) : 0};
+  std::size_t& clamped = ct.clamped_voxel_count;
+  if (slice.slope == 1.0 && slice.intercept == std::floor(slice.intercept) &&
+      std::abs(slice.intercept) < 65536.0) {
+    const auto intercept = static_cast<std::int32_t>(slice.intercept);
+    fill_rows(words, slice, flips, k, ct, [&](Uint16 raw) {
+      const std::int32_t hu = stored(raw) + intercept;
+      return hu >= -32768 && hu <= 32767 ? static_cast<std::int16_t>(hu) : clamped_hu(hu, clamped);
+    });
+  } else {
+    const double slope = slice.slope, intercept = slice.intercept;
+    fill_rows(words, slice, flips, k, ct, [&](Uint16 raw) {
+      return clamped_hu(std::floor(slope * stored(raw) + intercept + 0.5), clamped);
+    });
   }
   slice.file.reset();  // the pixels are in the volume now
   return std::nullopt;
@@ -260,7 +294,7 @@ study::CtVolume empty_volume(const std::vector<SliceHeader>& slices, const Flips
       first.position[0] - (flips.x ? static_cast<double>(first.columns - 1) * g.spacing_mm[0] : 0.0),
       first.position[1] - (flips.y ? static_cast<double>(first.rows - 1) * g.spacing_mm[1] : 0.0),
       first.position[2]};
-  ct.hu.assign(g.voxel_count(), 0);
+  ct.hu.resize(g.voxel_count());  // not zeroed: every slice is written
   ct.study_instance_uid = first.study_uid;
   ct.series_instance_uid = first.series_uid;
   ct.frame_of_reference_uid = first.frame_uid;

@@ -169,7 +169,7 @@ std::vector<AlphaRange> BodyOutline::intervals(const Eigen::Vector3d& from_mm, c
   if (!slices_.empty()) return contour_intervals(from_mm, to_mm, inside_ct);
   std::vector<AlphaRange> out;
   for (const VoxelCrossing& c : crossings) {
-    if (study_->body.mask[c.voxel] != 0) append(out, c.alpha_in, c.alpha_out);
+    if (study_->body.mask.contains(c.voxel)) append(out, c.alpha_in, c.alpha_out);
   }
   return out;
 }

@@ -81,13 +81,13 @@ Result<Body> body_from_contours(const VoxelGrid& grid, std::span<const PlanarCon
   body.source = BodySource::rtstruct_external;
   body.roi_number = roi_number;
   body.roi_name = std::move(roi_name);
-  body.mask.assign(grid.voxel_count(), 0);
+  body.mask = BodyMask(grid);
   body.slice_polygons.assign(grid.size[2], {});
   for (auto& [slice, plane] : planes.by_slice) {
     body.slice_polygons[slice] = plane.polygons;
     rasterise_slice(grid, slice, body.slice_polygons[slice], body.mask);
   }
-  body.voxel_count = static_cast<std::size_t>(std::count(body.mask.begin(), body.mask.end(), 1));
+  body.voxel_count = body.mask.voxel_count();
 
   body.notes.push_back(fmt::format(
       "body: ROI {} \"{}\" (RT ROI Interpreted Type EXTERNAL), contours on {} of {} CT slices, voxel centres "

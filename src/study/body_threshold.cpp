@@ -16,7 +16,7 @@ namespace {
 enum : std::uint8_t { outside = 0, candidate = 1, visited = 2, chosen = 3 };
 
 // Flood fill over voxels equal to `from`, setting them to `to`; returns how many were set.
-std::size_t flood_3d(const VoxelGrid& grid, std::vector<std::uint8_t>& state, std::size_t seed,
+std::size_t flood_3d(const VoxelGrid& grid, VoxelArray<std::uint8_t>& state, std::size_t seed,
                      std::uint8_t from, std::uint8_t to) {
   const std::size_t nx = grid.size[0];
   const std::size_t nxy = nx * grid.size[1];
@@ -44,7 +44,7 @@ std::size_t flood_3d(const VoxelGrid& grid, std::vector<std::uint8_t>& state, st
 }
 
 // Sets to 1 the background pixels of slice k that the slice's border cannot reach (4-connected).
-std::size_t fill_cavities(const VoxelGrid& grid, std::size_t k, std::vector<std::uint8_t>& mask) {
+std::size_t fill_cavities(const VoxelGrid& grid, std::size_t k, VoxelArray<std::uint8_t>& mask) {
   const std::size_t nx = grid.size[0];
   const std::size_t ny = grid.size[1];
   std::uint8_t* slice = mask.data() + grid.index(0, 0, k);
@@ -75,11 +75,33 @@ std::size_t fill_cavities(const VoxelGrid& grid, std::size_t k, std::vector<std:
   return filled;
 }
 
+// The 0/1 mask as runs along x.
+BodyMask runs_of(const VoxelGrid& grid, const VoxelArray<std::uint8_t>& dense) {
+  BodyMask mask(grid);
+  std::vector<VoxelRun> runs;
+  for (std::size_t k = 0; k < grid.size[2]; ++k) {
+    for (std::size_t j = 0; j < grid.size[1]; ++j) {
+      runs.clear();
+      const std::uint8_t* row = dense.data() + grid.index(0, j, k);
+      for (std::size_t i = 0; i < grid.size[0]; ++i) {
+        if (row[i] == 0) continue;
+        if (!runs.empty() && runs.back().end == i) {
+          ++runs.back().end;
+        } else {
+          runs.push_back({static_cast<std::uint32_t>(i), static_cast<std::uint32_t>(i + 1)});
+        }
+      }
+      mask.set_row(j, k, runs);
+    }
+  }
+  return mask;
+}
+
 }  // namespace
 
 Result<Body> body_from_threshold(const CtVolume& ct, double threshold_hu) {
   const VoxelGrid& grid = ct.grid;
-  std::vector<std::uint8_t> state(grid.voxel_count(), outside);
+  VoxelArray<std::uint8_t> state(grid.voxel_count(), outside);
   for (std::size_t v = 0; v < state.size(); ++v) {
     if (ct.hu[v] >= threshold_hu) state[v] = candidate;
   }
@@ -100,12 +122,11 @@ Result<Body> body_from_threshold(const CtVolume& ct, double threshold_hu) {
   Body body;
   body.source = BodySource::ct_threshold;
   body.threshold_hu = threshold_hu;
-  body.mask.resize(state.size());
-  std::transform(state.begin(), state.end(), body.mask.begin(),
-                 [](std::uint8_t s) { return static_cast<std::uint8_t>(s == chosen); });
+  for (auto& s : state) s = s == chosen ? 1 : 0;
   std::size_t filled = 0;
-  for (std::size_t k = 0; k < grid.size[2]; ++k) filled += fill_cavities(grid, k, body.mask);
-  body.voxel_count = static_cast<std::size_t>(std::count(body.mask.begin(), body.mask.end(), 1));
+  for (std::size_t k = 0; k < grid.size[2]; ++k) filled += fill_cavities(grid, k, state);
+  body.mask = runs_of(grid, state);
+  body.voxel_count = body.mask.voxel_count();
   body.notes.push_back(fmt::format(
       "body: no EXTERNAL ROI in the structure set; taken from the CT as the voxels at or above {} HU, the "
       "largest 6-connected component ({} voxels; {} smaller components ignored), with {} voxels of cavities "

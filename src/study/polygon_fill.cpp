@@ -43,22 +43,23 @@ bool inside_even_odd(std::span<const Polygon> polygons, double x_mm, double y_mm
 }
 
 void rasterise_slice(const VoxelGrid& grid, std::size_t k, std::span<const Polygon> polygons,
-                     std::span<std::uint8_t> mask) {
+                     BodyMask& mask) {
   std::vector<double> xs;
+  std::vector<VoxelRun> runs;
   const double x0 = grid.origin_mm[0];
   const double dx = grid.spacing_mm[0];
   const auto columns = static_cast<long long>(grid.size[0]);
   for (std::size_t j = 0; j < grid.size[1]; ++j) {
     crossings_at(polygons, grid.centre_mm(1, j), xs);
     std::sort(xs.begin(), xs.end());
-    std::uint8_t* row = mask.data() + grid.index(0, j, k);
+    runs.clear();
     // Centres x with xs[2m] <= x < xs[2m+1] are inside.
     for (std::size_t m = 0; m + 1 < xs.size(); m += 2) {
       const auto first = std::max(0LL, static_cast<long long>(std::ceil((xs[m] - x0) / dx)));
-      auto last = static_cast<long long>(std::ceil((xs[m + 1] - x0) / dx)) - 1;
-      last = std::min(last, columns - 1);
-      for (long long i = first; i <= last; ++i) row[i] = 1;
+      const auto end = std::min(columns, static_cast<long long>(std::ceil((xs[m + 1] - x0) / dx)));
+      if (end > first) runs.push_back({static_cast<std::uint32_t>(first), static_cast<std::uint32_t>(end)});
     }
+    mask.set_row(j, k, runs);
   }
 }
 

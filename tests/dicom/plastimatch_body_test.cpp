@@ -67,7 +67,7 @@ TEST_P(BodyMatchesPlastimatch, AtLeast99PercentOfVoxels) {
   std::size_t same = 0, either = 0, both = 0;
   for (std::size_t v = 0; v < theirs.voxels.size(); ++v) {
     const bool a = theirs.voxels[v] != 0;
-    const bool b = study->body.mask[v] != 0;
+    const bool b = study->body.mask.contains(v);
     same += a == b;
     either += a || b;
     both += a && b;

@@ -21,9 +21,11 @@ VoxelGrid small_grid() {
 
 Polygon square(double lo, double hi) { return {{lo, lo}, {hi, lo}, {hi, hi}, {lo, hi}}; }
 
-std::size_t count_slice(const VoxelGrid& grid, const std::vector<std::uint8_t>& mask, std::size_t k) {
-  return static_cast<std::size_t>(std::count(mask.begin() + static_cast<long>(grid.index(0, 0, k)),
-                                             mask.begin() + static_cast<long>(grid.index(0, 0, k + 1)), 1));
+std::size_t count_slice(const VoxelGrid& grid, const BodyMask& mask, std::size_t k) {
+  std::size_t count = 0;
+  for (std::size_t j = 0; j < grid.size[1]; ++j)
+    for (std::size_t i = 0; i < grid.size[0]; ++i) count += mask.contains(i, j, k);
+  return count;
 }
 
 TEST(Grid, ContainsAndVoxelAt) {
@@ -38,22 +40,27 @@ TEST(Grid, ContainsAndVoxelAt) {
 
 TEST(Rasterise, SquareCoversTheCentresInsideIt) {
   const auto grid = small_grid();
-  std::vector<std::uint8_t> mask(grid.voxel_count(), 0);
+  BodyMask mask(grid);
   const std::vector<Polygon> polygons{square(2.0, 7.0)};  // centres 2.5 .. 6.5: 5 x 5
   rasterise_slice(grid, 1, polygons, mask);
   EXPECT_EQ(count_slice(grid, mask, 1), 25u);
   EXPECT_EQ(count_slice(grid, mask, 0), 0u);
-  EXPECT_EQ(mask[grid.index(2, 2, 1)], 1);
-  EXPECT_EQ(mask[grid.index(7, 2, 1)], 0);
+  EXPECT_EQ(mask.voxel_count(), 25u);
+  EXPECT_TRUE(mask.contains(grid.index(2, 2, 1)));
+  EXPECT_FALSE(mask.contains(grid.index(7, 2, 1)));
+  ASSERT_EQ(mask.row(2, 1).size(), 1u);  // one run per row
+  EXPECT_EQ(mask.row(2, 1)[0].begin, 2u);
+  EXPECT_EQ(mask.row(2, 1)[0].end, 7u);
 }
 
 TEST(Rasterise, EvenOddRuleMakesHoles) {
   const auto grid = small_grid();
-  std::vector<std::uint8_t> mask(grid.voxel_count(), 0);
+  BodyMask mask(grid);
   const std::vector<Polygon> ring{square(1.0, 9.0), square(3.0, 7.0)};  // 8 x 8 minus 4 x 4
   rasterise_slice(grid, 0, ring, mask);
   EXPECT_EQ(count_slice(grid, mask, 0), 64u - 16u);
-  EXPECT_EQ(mask[grid.index(5, 5, 0)], 0);
+  EXPECT_FALSE(mask.contains(5, 5, 0));
+  EXPECT_EQ(mask.row(5, 0).size(), 2u);
   EXPECT_FALSE(inside_even_odd(ring, 5.0, 5.0));
   EXPECT_TRUE(inside_even_odd(ring, 2.0, 5.0));
   EXPECT_FALSE(inside_even_odd(ring, 9.5, 5.0));
@@ -71,12 +78,11 @@ TEST(Rasterise, ScanlineAndPointTestAgreeOnAConcavePolygon) {
                                    {3.1, 6.2},
                                    {0.3, 4.1},
                                    {3.8, 3.9}}};
-  std::vector<std::uint8_t> mask(grid.voxel_count(), 0);
+  BodyMask mask(grid);
   rasterise_slice(grid, 2, star, mask);
   for (std::size_t j = 0; j < 10; ++j)
     for (std::size_t i = 0; i < 10; ++i)
-      EXPECT_EQ(mask[grid.index(i, j, 2)] != 0,
-                inside_even_odd(star, grid.centre_mm(0, i), grid.centre_mm(1, j)))
+      EXPECT_EQ(mask.contains(i, j, 2), inside_even_odd(star, grid.centre_mm(0, i), grid.centre_mm(1, j)))
           << i << "," << j;
 }
 
@@ -136,8 +142,8 @@ TEST(BodyFromThreshold, LargestComponentWithItsCavitiesFilled) {
   ASSERT_TRUE(body.has_value());
   EXPECT_EQ(body->source, BodySource::ct_threshold);
   EXPECT_EQ(body->voxel_count, 36u * 4u);
-  EXPECT_EQ(body->mask[ct.grid.index(3, 3, 2)], 1);
-  EXPECT_EQ(body->mask[ct.grid.index(9, 9, 2)], 0);
+  EXPECT_TRUE(body->mask.contains(3, 3, 2));
+  EXPECT_FALSE(body->mask.contains(9, 9, 2));
   EXPECT_TRUE(body->slice_polygons.empty());
   EXPECT_NE(body->notes.front().find("-350"), std::string::npos);
 }
@@ -146,6 +152,22 @@ TEST(BodyFromThreshold, NothingAboveTheThresholdIsAProblem) {
   const auto body = body_from_threshold(ct_of([](std::size_t, std::size_t, std::size_t) { return -1000; }));
   ASSERT_FALSE(body.has_value());
   EXPECT_EQ(body.problem().kind, ProblemKind::body_not_found);
+}
+
+TEST(BodyMaskRows, RowsMustComeInOrderAndSkippedRowsAreEmpty) {
+  const auto grid = small_grid();
+  BodyMask mask(grid);
+  const std::vector<VoxelRun> runs{{1, 3}, {3, 5}, {7, 8}};  // the first two touch: one run
+  mask.set_row(4, 1, runs);
+  EXPECT_EQ(mask.row(4, 1).size(), 2u);
+  EXPECT_EQ(mask.voxel_count(), 5u);
+  EXPECT_TRUE(mask.row(3, 1).empty());
+  EXPECT_TRUE(mask.row(5, 1).empty());
+  EXPECT_THROW(mask.set_row(0, 1, runs), std::logic_error);
+  EXPECT_FALSE(mask.contains(0, 4, 1));
+  EXPECT_TRUE(mask.contains(4, 4, 1));
+  EXPECT_FALSE(mask.contains(6, 4, 1));
+  EXPECT_TRUE(mask.contains(7, 4, 1));
 }
 
 TEST(BodySource, Codes) {

@@ -4,6 +4,7 @@
 // rasterised slice by slice, holes by the even-odd rule) or, without one, from the CT by a stated
 // HU threshold and the largest connected component.
 
+#include <countersign/study/body_mask.hpp>
 #include <countersign/study/problem.hpp>
 #include <countersign/study/volume.hpp>
 
@@ -36,8 +37,8 @@ inline constexpr double planar_tolerance_mm = 0.05;
 
 struct Body {
   BodySource source = BodySource::rtstruct_external;
-  std::vector<std::uint8_t> mask;  // on the CT grid, 1 = inside; voxel centres decide
-  std::size_t voxel_count = 0;     // voxels inside
+  BodyMask mask;                // on the CT grid; a voxel's centre decides
+  std::size_t voxel_count = 0;  // voxels inside
   // The outline per CT slice (index k), for exact ray intersections; the union of all polygons of a
   // slice under the even-odd rule. Empty for the threshold body (rays then use the mask).
   std::vector<std::vector<Polygon>> slice_polygons;
@@ -50,9 +51,9 @@ struct Body {
 // Whether (x, y) lies inside the polygons under the even-odd rule (boundary points may go either way).
 [[nodiscard]] bool inside_even_odd(std::span<const Polygon> polygons, double x_mm, double y_mm);
 
-// Marks (sets to 1) the voxels of slice k whose centres lie inside the polygons, even-odd rule.
-void rasterise_slice(const VoxelGrid& grid, std::size_t k, std::span<const Polygon> polygons,
-                     std::span<std::uint8_t> mask);
+// Sets the rows of slice k to the voxels whose centres lie inside the polygons (even-odd rule).
+// Slices are rasterised in increasing k (BodyMask::set_row).
+void rasterise_slice(const VoxelGrid& grid, std::size_t k, std::span<const Polygon> polygons, BodyMask& mask);
 
 // The body from the EXTERNAL ROI's contours: each contour's plane goes to the nearest slice; a plane
 // outside the CT, or two planes on one slice, is noted. Problems: no contour on the CT

@@ -4,6 +4,8 @@
 // (x towards the patient's left, y posterior, z head; mm). The reader reorders rows, columns and
 // slices so that indices increase along +x, +y and +z whatever the scan orientation.
 
+#include <countersign/study/voxel_array.hpp>
+
 #include <array>
 #include <cstddef>
 #include <cstdint>
@@ -43,7 +45,7 @@ struct CtVolume {
   VoxelGrid grid;
   // Hounsfield units, Rescale Slope (0028,1053) and Intercept (0028,1052) applied per slice and
   // rounded to the nearest integer (1 HU is far below what a density table resolves).
-  std::vector<std::int16_t> hu;
+  VoxelArray<std::int16_t> hu;
   std::size_t clamped_voxel_count = 0;  // values beyond the int16 range, clamped (stated, normally 0)
 
   std::string study_instance_uid;                    // (0020,000D)
