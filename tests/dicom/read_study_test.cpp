@@ -4,6 +4,7 @@
 #include "study_fixture.hpp"
 
 #include <algorithm>
+#include <cmath>
 
 namespace countersign::test {
 namespace {
@@ -75,6 +76,49 @@ TEST(ReadStudy, PlanReadsItsStructureSetReference) {
   ASSERT_TRUE(plan.has_value());
   EXPECT_EQ(plan->referenced_structure_set_uids, std::vector<std::string>{uid_root + ".202.6.0"});
   EXPECT_EQ(plan->frame_of_reference_uid, uid_root + ".202.4.0");
+}
+
+// DCMTK's dcmconv rewrites the slices in other transfer syntaxes: the volume must not change.
+class OtherTransferSyntax : public ::testing::TestWithParam<std::string> {};
+
+TEST_P(OtherTransferSyntax, SameVolume) {
+  const auto reference = load_demo_study("fern_oblique");
+  ASSERT_TRUE(reference.has_value());
+  const StudyCopy copy("fern_oblique");
+  for (const auto& entry : fs::directory_iterator(copy.dir())) {
+    if (entry.path().filename().string().rfind("CT", 0) != 0) continue;
+    const std::string file = quote(entry.path().string());
+    const auto result = run_command("dcmconv " + GetParam() + " " + file + " " + file);
+    ASSERT_EQ(result.exit_code, 0) << result.err;
+  }
+  const auto study = copy.load();
+  ASSERT_TRUE(study.has_value()) << study.problem().message();
+  EXPECT_TRUE(std::equal(study->ct.hu.begin(), study->ct.hu.end(), reference->ct.hu.begin(), reference->ct.hu.end()));
+}
+
+INSTANTIATE_TEST_SUITE_P(Dcmconv, OtherTransferSyntax, ::testing::Values("+ti", "+tb", "+td"),
+                         [](const auto& info) {
+                           return info.param == "+ti" ? "ImplicitLittle" : info.param == "+tb" ? "ExplicitBig" : "Deflated";
+                         });
+
+TEST(ReadStudy, RescaleSlopeAndInterceptApply) {
+  // Stored value s = HU + 1024 in the demo files; with slope 2 and intercept -1024 the CT number
+  // becomes 2 s - 1024 = 2 HU + 1024.
+  const auto reference = load_demo_study("fern_oblique");
+  ASSERT_TRUE(reference.has_value());
+  const StudyCopy copy("fern_oblique");
+  copy.modify_ct("-m \"(0028,1053)=2\"");
+  const auto study = copy.load();
+  ASSERT_TRUE(study.has_value()) << study.problem().message();
+  for (std::size_t v = 0; v < study->ct.hu.size(); v += 97)
+    ASSERT_EQ(study->ct.hu[v], 2 * reference->ct.hu[v] + 1024) << "voxel " << v;
+  copy.modify_ct("-m \"(0028,1053)=0.5\" -m \"(0028,1052)=-1000.25\"");  // 0.5 s - 1000.25, to 1 HU
+  const auto halved = copy.load();
+  ASSERT_TRUE(halved.has_value()) << halved.problem().message();
+  for (std::size_t v = 0; v < halved->ct.hu.size(); v += 97) {
+    const double expected = std::floor(0.5 * (reference->ct.hu[v] + 1024) - 1000.25 + 0.5);
+    ASSERT_EQ(halved->ct.hu[v], expected) << "voxel " << v;
+  }
 }
 
 TEST(ReadStudy, DuplicateCopiesOfASliceAreUsedOnce) {
