@@ -93,12 +93,15 @@ TEST_P(OtherTransferSyntax, SameVolume) {
   }
   const auto study = copy.load();
   ASSERT_TRUE(study.has_value()) << study.problem().message();
-  EXPECT_TRUE(std::equal(study->ct.hu.begin(), study->ct.hu.end(), reference->ct.hu.begin(), reference->ct.hu.end()));
+  EXPECT_TRUE(
+      std::equal(study->ct.hu.begin(), study->ct.hu.end(), reference->ct.hu.begin(), reference->ct.hu.end()));
 }
 
 INSTANTIATE_TEST_SUITE_P(Dcmconv, OtherTransferSyntax, ::testing::Values("+ti", "+tb", "+td"),
                          [](const auto& info) {
-                           return info.param == "+ti" ? "ImplicitLittle" : info.param == "+tb" ? "ExplicitBig" : "Deflated";
+                           return info.param == "+ti"   ? "ImplicitLittle"
+                                  : info.param == "+tb" ? "ExplicitBig"
+                                                        : "Deflated";
                          });
 
 TEST(ReadStudy, RescaleSlopeAndInterceptApply) {
