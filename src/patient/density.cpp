@@ -10,9 +10,9 @@ DensityMap::DensityMap(const HuToDensity& relation)
     : table_(65536), lowest_hu_(relation.lowest_hu), highest_hu_(relation.highest_hu) {
   if (!relation.density) throw std::invalid_argument("DensityMap: no density relation given");
   // Outside the covered range the relation's end rows apply (BEAMDATA.md): evaluate at the ends.
-  for (int hu = -32768; hu <= 32767; ++hu) {
-    const double clamped = std::clamp(static_cast<double>(hu), lowest_hu_, highest_hu_);
-    table_[static_cast<std::size_t>(hu + 32768)] = relation.density(clamped);
+  for (std::size_t n = 0; n < table_.size(); ++n) {
+    const double hu = static_cast<double>(n) - 32768.0;
+    table_[n] = relation.density(std::clamp(hu, lowest_hu_, highest_hu_));
   }
 }
 
