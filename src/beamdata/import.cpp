@@ -123,13 +123,18 @@ Grid Importer::grid_of(const std::string& relative, const std::string& row_axis,
 }
 
 bool Importer::needs(const MeasuredPoint& p, bool field, bool depth, bool off_axis) {
-  const bool ok = (!field || p.field_cm) && (!depth || p.depth_cm) && (!off_axis || p.off_axis_cm);
-  if (!ok)
-    result_.problems.push_back(Problem{data_.file.string(), std::nullopt, p.line, std::nullopt, p.quantity,
-                                       "a " + p.quantity + " row needs" + (field ? " a field size" : "") +
-                                           (depth ? " a depth" : "") + (off_axis ? " an off-axis distance" : ""),
-                                       Severity::error, "measured row lacks a coordinate"});
-  return ok;
+  std::vector<std::string> missing;
+  if (field && !p.field_cm) missing.emplace_back("a field size");
+  if (depth && !p.depth_cm) missing.emplace_back("a depth");
+  if (off_axis && !p.off_axis_cm) missing.emplace_back("an off-axis distance");
+  if (missing.empty()) return true;
+  std::string list;
+  for (std::size_t i = 0; i < missing.size(); ++i)
+    list += (i == 0 ? "" : i + 1 == missing.size() ? " and " : ", ") + missing[i];
+  result_.problems.push_back(Problem{data_.file.string(), std::nullopt, p.line, std::nullopt, p.quantity,
+                                     "a " + p.quantity + " row needs " + list, Severity::error,
+                                     "measured row lacks a coordinate"});
+  return false;
 }
 
 void Importer::depth_family(const std::string& quantity, double normalise_to, int decimals) {

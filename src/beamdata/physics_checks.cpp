@@ -132,7 +132,7 @@ void check_electron_beam(TableChecker& checker, const ElectronDraft& draft) {
   for (const auto& a : beam.applicators) {
     if (present(a.pdd)) {
       checker.check_ranges(a.pdd, depth_range, field_range, electron_pdd_range);
-      checker.check_column_maximum(a.pdd, 100.0, "pdd");
+      checker.check_column_maximum(a.pdd, 100.0, "100 at dmax of each column");
       const auto& fields = a.pdd.columns();
       if (a.field_cm > 0.0 && (a.field_cm < fields.front() || a.field_cm > fields.back()))
         checker.add(a.pdd.file(), "pdd", checker.header_line(a.pdd.file()), std::nullopt,

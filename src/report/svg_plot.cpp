@@ -54,6 +54,9 @@ Range nice(Range r) {
   return {std::floor(r.min / step) * step, std::ceil(r.max / step) * step};
 }
 
+// The first multiple of the step at or above the axis start, so ticks sit on round numbers.
+double first_tick(double start, double step) { return std::ceil(start / step - 1e-9) * step; }
+
 std::string number(double v) { return fmt::format("{:g}", std::abs(v) < 1e-12 ? 0.0 : v); }
 
 class Frame {
@@ -67,13 +70,13 @@ class Frame {
         "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1\"/>\n",
         left, top, plot_w, plot_h);
     const double xs = tick_step(x_.max - x_.min);
-    for (double v = x_.min; v <= x_.max + xs * 1e-6; v += xs) {
+    for (double v = first_tick(x_.min, xs); v <= x_.max + xs * 1e-6; v += xs) {
       out += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#ddd\"/>"
                          "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4}</text>\n",
                          px(v), top, top + plot_h, top + plot_h + 16, number(v));
     }
     const double ys = tick_step(y_.max - y_.min);
-    for (double v = y_.min; v <= y_.max + ys * 1e-6; v += ys) {
+    for (double v = first_tick(y_.min, ys); v <= y_.max + ys * 1e-6; v += ys) {
       out += fmt::format("<line x1=\"{1}\" y1=\"{0:.1f}\" x2=\"{2}\" y2=\"{0:.1f}\" stroke=\"#ddd\"/>"
                          "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5}</text>\n",
                          py(v), left, left + plot_w, left - 6, py(v) + 4, number(v));
