@@ -75,7 +75,7 @@ TEST(LoadLibrary, MachineFolderGivesTheSameLibraryAndFingerprint) {
 }
 
 TEST(LoadLibrary, FingerprintIsTheDocumentedStreamHashedBySha256sum) {
-  // beamdata/FORMAT-EXTENSIONS.md: manifest, then pdd, tmr, sc, sp, then wedge tables, each as
+  // beamdata/FORMAT.md "Library fingerprint": manifest, then pdd, tmr, sc, sp, then wedge tables, each as
   // "<machine>/<path>\n<size>\n<bytes>". GNU coreutils sha256sum is the independent hasher.
   const TempDir dir;
   testing::write_hand_library(dir.path());
