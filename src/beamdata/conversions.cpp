@@ -109,8 +109,8 @@ DerivedTable rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double n
       how.push_back(p.extrapolated() ? extrapolation_text({p}) : std::string{});
     }
   }
-  return DerivedTable{Table2D{output_file, "pdd", pdd.row_axis_name(), depths_cm, pdd.column_axis_name(), fields_cm,
-                              std::move(values)},
+  return DerivedTable{Table2D{output_file, "pdd", pdd.row_axis_name(), depths_cm, pdd.column_axis_name(),
+                              fields_cm, std::move(values)},
                       std::move(extrapolated), std::move(how)};
 }
 

@@ -169,7 +169,8 @@ Read1D parse_table1d(std::string_view text, const TableSource& source, std::vect
   result.header_line = header.number;
   if (header.cells.size() != 2 || header.cells[0] != axis_name || header.cells[1] != source.quantity) {
     problems.push_back(Problem{source.problem_file, std::nullopt, header.number, std::nullopt,
-                               source.quantity, "header must be '" + axis_name + "," + source.quantity + "'"});
+                               source.quantity,
+                               "header must be '" + axis_name + "," + source.quantity + "'"});
   }
   if (lines.size() < 2) {
     problems.push_back(Problem{source.problem_file, std::nullopt, std::nullopt, std::nullopt, source.quantity,
@@ -191,8 +192,7 @@ Read1D parse_table1d(std::string_view text, const TableSource& source, std::vect
   check_increasing(axis, result.row_lines, std::vector<std::size_t>(axis.size(), 1), axis_name, source,
                    problems);
   if (problems.size() == problems_before && !axis.empty()) {
-    result.table =
-        Table1D{source.table_file, source.quantity, axis_name, std::move(axis), std::move(values)};
+    result.table = Table1D{source.table_file, source.quantity, axis_name, std::move(axis), std::move(values)};
   }
   return result;
 }

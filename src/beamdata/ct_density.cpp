@@ -13,14 +13,16 @@ DensityLookup CtDensityTable::density(double hu_value) const {
     return {relative_electron_density.front(), !(hu_value == hu.front())};
   }
   if (hu_value >= hu.back()) return {relative_electron_density.back(), hu_value > hu.back()};
-  const auto upper = static_cast<std::size_t>(std::distance(hu.begin(), std::upper_bound(hu.begin(), hu.end(), hu_value)));
+  const auto upper =
+      static_cast<std::size_t>(std::distance(hu.begin(), std::upper_bound(hu.begin(), hu.end(), hu_value)));
   const std::size_t lower = upper - 1;
   const double w = (hu_value - hu[lower]) / (hu[upper] - hu[lower]);
   return {(1.0 - w) * relative_electron_density[lower] + w * relative_electron_density[upper], false};
 }
 
 const CtDensityTable* CtDensityTables::default_table() const {
-  const auto it = std::find_if(tables.begin(), tables.end(), [](const CtDensityTable& t) { return t.station.empty(); });
+  const auto it =
+      std::find_if(tables.begin(), tables.end(), [](const CtDensityTable& t) { return t.station.empty(); });
   return it == tables.end() ? nullptr : &*it;
 }
 

@@ -18,8 +18,8 @@ std::vector<fs::path> ct_files(const fs::path& ct_folder, Inspection& inspection
     if (entry.path().extension() == ".csv") {
       files.push_back(entry.path());
     } else {
-      inspection.problems.push_back(Problem{entry.path().string(), std::nullopt, std::nullopt, std::nullopt, "ct",
-                                            "not a .csv table, ignored", Severity::warning});
+      inspection.problems.push_back(Problem{entry.path().string(), std::nullopt, std::nullopt, std::nullopt,
+                                            "ct", "not a .csv table, ignored", Severity::warning});
     }
   }
   std::sort(files.begin(), files.end());

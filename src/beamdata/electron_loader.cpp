@@ -10,8 +10,8 @@ namespace countersign::beamdata::detail {
 ElectronDraft MachineLoader::electron_beam(const toml::table& t, const std::string& path) {
   ElectronDraft draft;
   ElectronBeamData& b = draft.data;
-  reader_.unknown_keys(t, {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "calibration", "applicator"},
-                       path);
+  reader_.unknown_keys(
+      t, {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "calibration", "applicator"}, path);
   const auto id = reader_.text(t, "id", path);
   const auto energy = reader_.number(t, "energy_mv", path, 1.0, 50.0);  // MeV for electrons
   const auto dmax = reader_.number(t, "dmax_cm", path, 0.1, 6.0);
@@ -25,11 +25,12 @@ ElectronDraft MachineLoader::electron_beam(const toml::table& t, const std::stri
   bool complete = id && energy && dmax && pdd_ssd;
   complete = read_electron_calibration(t, path, draft) && complete;
   if (draft.calibration_known && std::abs(b.calibration.output_cgy_per_mu - 1.0) > 0.2)
-    reader_.problem(t.get("calibration"), path + "calibration.output_cgy_per_mu",
-                    number_text(b.calibration.output_cgy_per_mu) +
-                        " cGy/MU is more than 20 % from the usual 1 cGy/MU at the reference; check the unit and "
-                        "the calibration point",
-                    Severity::warning);
+    reader_.problem(
+        t.get("calibration"), path + "calibration.output_cgy_per_mu",
+        number_text(b.calibration.output_cgy_per_mu) +
+            " cGy/MU is more than 20 % from the usual 1 cGy/MU at the reference; check the unit and "
+            "the calibration point",
+        Severity::warning);
 
   const auto applicators = reader_.table_array(t, "applicator", path);
   if (applicators.empty()) {

@@ -37,7 +37,8 @@ std::vector<ResampledValue> along_curve(const std::vector<std::pair<double, doub
 }
 
 std::string cell_name(const GridRequest& r, double row, double column) {
-  return r.quantity + " at " + r.row_axis + " " + number_text(row) + ", " + r.column_axis + " " + number_text(column);
+  return r.quantity + " at " + r.row_axis + " " + number_text(row) + ", " + r.column_axis + " " +
+         number_text(column);
 }
 
 void cell_problem(std::vector<Problem>& problems, const std::string& file, const GridRequest& r, double row,
@@ -47,14 +48,15 @@ void cell_problem(std::vector<Problem>& problems, const std::string& file, const
 }
 
 std::string refusal_rule(const ResampledValue& v) {
-  return v.refusal == ResampleRefusal::gap_too_wide ? "a gap between measured points is wider than the limit"
-                                                    : "the cell lies outside the measured range (no extrapolation)";
+  return v.refusal == ResampleRefusal::gap_too_wide
+             ? "a gap between measured points is wider than the limit"
+             : "the cell lies outside the measured range (no extrapolation)";
 }
 
 }  // namespace
 
-std::vector<double> resample_grid(const std::vector<Sample>& samples, const GridRequest& r, const std::string& file,
-                                  std::vector<Problem>& problems) {
+std::vector<double> resample_grid(const std::vector<Sample>& samples, const GridRequest& r,
+                                  const std::string& file, std::vector<Problem>& problems) {
   const bool along_rows = r.run == CurvesRun::along_rows;
   const std::vector<double>& along_nodes = along_rows ? r.rows : r.columns;
   const std::vector<double>& across_nodes = along_rows ? r.columns : r.rows;
@@ -78,9 +80,10 @@ std::vector<double> resample_grid(const std::vector<Sample>& samples, const Grid
       }
     }
     if (!c.problem.empty())
-      problems.push_back(Problem{file, std::nullopt, std::nullopt, std::nullopt, r.quantity,
-                                 r.quantity + " curve at " + across_axis + " " + number_text(key) + ": " + c.problem,
-                                 Severity::error, "measured curve cannot be normalised"});
+      problems.push_back(
+          Problem{file, std::nullopt, std::nullopt, std::nullopt, r.quantity,
+                  r.quantity + " curve at " + across_axis + " " + number_text(key) + ": " + c.problem,
+                  Severity::error, "measured curve cannot be normalised"});
     on_grid.push_back(std::move(c));
   }
 
@@ -106,8 +109,8 @@ std::vector<double> resample_grid(const std::vector<Sample>& samples, const Grid
       if (own != on_grid.end() && !own->problem.empty()) continue;  // reported once for the curve
       const ResampledValue v = resample(across, across_nodes[j], r.method, r.max_gap_across_cm);
       if (!v.ok()) {
-        cell_problem(problems, file, r, row, column, "across " + across_axis + ", " + v.reason(r.max_gap_across_cm),
-                     refusal_rule(v));
+        cell_problem(problems, file, r, row, column,
+                     "across " + across_axis + ", " + v.reason(r.max_gap_across_cm), refusal_rule(v));
         continue;
       }
       values[along_rows ? i * r.columns.size() + j : j * r.columns.size() + i] = v.value;
@@ -117,15 +120,16 @@ std::vector<double> resample_grid(const std::vector<Sample>& samples, const Grid
 }
 
 std::vector<double> resample_factor(const std::vector<std::pair<double, double>>& points,
-                                    const std::vector<double>& axis, double normalise_at, ResamplingMethod method,
-                                    double max_gap_cm, const std::string& quantity, const std::string& file,
-                                    std::vector<Problem>& problems) {
+                                    const std::vector<double>& axis, double normalise_at,
+                                    ResamplingMethod method, double max_gap_cm, const std::string& quantity,
+                                    const std::string& file, std::vector<Problem>& problems) {
   const Curve curve(points);
   const ResampledValue norm = resample(curve, normalise_at, method, max_gap_cm);
   if (!norm.ok() || norm.value == 0.0) {
-    problems.push_back(Problem{file, std::nullopt, std::nullopt, std::nullopt, quantity,
-                               "cannot normalise at field_cm " + number_text(normalise_at) + ": " +
-                                   (norm.ok() ? std::string{"the value there is 0"} : norm.reason(max_gap_cm))});
+    problems.push_back(
+        Problem{file, std::nullopt, std::nullopt, std::nullopt, quantity,
+                "cannot normalise at field_cm " + number_text(normalise_at) + ": " +
+                    (norm.ok() ? std::string{"the value there is 0"} : norm.reason(max_gap_cm))});
     return {};
   }
   std::vector<double> values;

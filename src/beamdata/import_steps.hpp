@@ -61,13 +61,14 @@ struct GridRequest {
   double max_gap_along_cm = 1.0;   // within a curve
   double max_gap_across_cm = 5.0;  // between curves
   std::optional<Normalisation> normalisation;
-  bool fold_mirror = false;        // profiles: average the two halves at |x|
+  bool fold_mirror = false;  // profiles: average the two halves at |x|
 };
 
 // Values row-major on the grid; a problem (naming the cell and the reason) for every cell that
 // could not be filled. `file` names the target table in problems.
-[[nodiscard]] std::vector<double> resample_grid(const std::vector<Sample>& samples, const GridRequest& request,
-                                                const std::string& file, std::vector<Problem>& problems);
+[[nodiscard]] std::vector<double> resample_grid(const std::vector<Sample>& samples,
+                                                const GridRequest& request, const std::string& file,
+                                                std::vector<Problem>& problems);
 
 // A one-axis factor: resampled at `axis` and normalised to 1 at `normalise_at`.
 [[nodiscard]] std::vector<double> resample_factor(const std::vector<std::pair<double, double>>& points,

@@ -43,7 +43,8 @@ std::optional<ImportTargets> read_import_targets(const std::filesystem::path& ma
                                                  const std::string& beam_id, std::vector<Problem>& problems) {
   const auto manifest_path = machine_folder / "machine.toml";
   const auto problem = [&](std::string message) {
-    problems.push_back(Problem{manifest_path.string(), std::nullopt, std::nullopt, std::nullopt, "", std::move(message)});
+    problems.push_back(
+        Problem{manifest_path.string(), std::nullopt, std::nullopt, std::nullopt, "", std::move(message)});
     return std::nullopt;
   };
   const auto bytes = read_file(manifest_path);

@@ -45,8 +45,7 @@ std::string table_bytes(const PendingTable& t, const MeasuredData& data) {
   const std::vector<std::string> comments = {
       "Imported by countersign beamdata import from " + data.file.filename().string() + " (SHA-256 " +
           data.sha256_hex + ")",
-      std::to_string(t.measured_points) + " measured points; " + t.method,
-      table_axes_note(t.quantity)};
+      std::to_string(t.measured_points) + " measured points; " + t.method, table_axes_note(t.quantity)};
   std::ostringstream out;
   if (t.column_axis.empty()) {
     write_table(out, Table1D{t.relative, t.quantity, t.row_axis, t.rows, t.values}, comments, 4);
@@ -86,14 +85,15 @@ std::string provenance_text(const ImportOptions& o, const MeasuredData& data, co
       << "extrapolation = \"none: cells outside the measured range are refused\"\n";
   if (o.dmax_cm) out << "dmax_cm_given = " << number_text(*o.dmax_cm) << "\n";
   out << "notes = [";
-  for (std::size_t i = 0; i < result.notes.size(); ++i) out << (i ? ", " : "") << toml_string(result.notes[i]);
+  for (std::size_t i = 0; i < result.notes.size(); ++i)
+    out << (i ? ", " : "") << toml_string(result.notes[i]);
   out << "]\n";
   for (const auto& limit : default_gap_limits()) {
     double used = limit.max_gap_cm;
     for (const auto& given : o.gap_limits)
       if (given.quantity == limit.quantity && given.axis == limit.axis) used = given.max_gap_cm;
-    out << "\n[[gap_limit]]\nquantity = " << toml_string(limit.quantity) << "\naxis = " << toml_string(limit.axis)
-        << "\nmax_gap_cm = " << number_text(used) << "\n";
+    out << "\n[[gap_limit]]\nquantity = " << toml_string(limit.quantity)
+        << "\naxis = " << toml_string(limit.axis) << "\nmax_gap_cm = " << number_text(used) << "\n";
   }
   for (const auto& t : result.tables) {
     out << "\n[[table]]\nfile = " << toml_string(t.file) << "\nquantity = " << toml_string(t.quantity)
@@ -105,15 +105,18 @@ std::string provenance_text(const ImportOptions& o, const MeasuredData& data, co
 
 }  // namespace
 
-PendingTable PendingTable::two_axis(const std::string& relative, const std::string& quantity, const GridRequest& r,
-                                    std::vector<double> values, int decimals, std::size_t points, std::string method) {
-  return PendingTable{relative, quantity, r.row_axis, r.column_axis, r.rows, r.columns, std::move(values),
-                      decimals, points,  std::move(method)};
+PendingTable PendingTable::two_axis(const std::string& relative, const std::string& quantity,
+                                    const GridRequest& r, std::vector<double> values, int decimals,
+                                    std::size_t points, std::string method) {
+  return PendingTable{relative,  quantity,          r.row_axis, r.column_axis, r.rows,
+                      r.columns, std::move(values), decimals,   points,        std::move(method)};
 }
 
-PendingTable PendingTable::one_axis(const std::string& relative, const std::string& quantity, std::vector<double> axis,
-                                    std::vector<double> values, std::string method) {
-  return PendingTable{relative, quantity, "field_cm", "", std::move(axis), {}, std::move(values), 4, 0, std::move(method)};
+PendingTable PendingTable::one_axis(const std::string& relative, const std::string& quantity,
+                                    std::vector<double> axis, std::vector<double> values,
+                                    std::string method) {
+  return PendingTable{relative, quantity,          "field_cm", "", std::move(axis),
+                      {},       std::move(values), 4,          0,  std::move(method)};
 }
 
 void write_import(const ImportOptions& o, const MeasuredData& data, const std::vector<PendingTable>& tables,
@@ -122,8 +125,8 @@ void write_import(const ImportOptions& o, const MeasuredData& data, const std::v
   for (const auto& t : tables) {
     const auto resolved = confined_new_path(o.machine_folder, t.relative);
     if (const auto* why = std::get_if<std::string>(&resolved)) {
-      result.problems.push_back(Problem{(o.machine_folder / "machine.toml").string(), std::nullopt, std::nullopt,
-                                        std::nullopt, t.quantity, "names " + *why});
+      result.problems.push_back(Problem{(o.machine_folder / "machine.toml").string(), std::nullopt,
+                                        std::nullopt, std::nullopt, t.quantity, "names " + *why});
     } else {
       paths.push_back(std::get<fs::path>(resolved));
     }
@@ -132,17 +135,17 @@ void write_import(const ImportOptions& o, const MeasuredData& data, const std::v
   for (std::size_t i = 0; i < tables.size(); ++i) {
     const std::string bytes = table_bytes(tables[i], data);
     if (!write_atomically(paths[i], bytes)) {
-      result.problems.push_back(
-          Problem{paths[i].string(), std::nullopt, std::nullopt, std::nullopt, tables[i].quantity, "cannot write the file"});
+      result.problems.push_back(Problem{paths[i].string(), std::nullopt, std::nullopt, std::nullopt,
+                                        tables[i].quantity, "cannot write the file"});
       return;
     }
-    result.tables.push_back(
-        ImportedTable{tables[i].relative, tables[i].quantity, tables[i].measured_points, tables[i].method, sha256_hex(bytes)});
+    result.tables.push_back(ImportedTable{tables[i].relative, tables[i].quantity, tables[i].measured_points,
+                                          tables[i].method, sha256_hex(bytes)});
   }
   result.provenance_file = paths.front().parent_path() / ("import-provenance-" + o.beam_id + ".toml");
   if (!write_atomically(result.provenance_file, provenance_text(o, data, result)))
-    result.problems.push_back(Problem{result.provenance_file.string(), std::nullopt, std::nullopt, std::nullopt, "",
-                                      "cannot write the provenance note"});
+    result.problems.push_back(Problem{result.provenance_file.string(), std::nullopt, std::nullopt,
+                                      std::nullopt, "", "cannot write the provenance note"});
 }
 
 }  // namespace countersign::beamdata::detail

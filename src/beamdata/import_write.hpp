@@ -25,12 +25,13 @@ struct PendingTable {
   std::string method;
 
   static PendingTable two_axis(const std::string& relative, const std::string& quantity, const GridRequest& r,
-                               std::vector<double> values, int decimals, std::size_t points, std::string method);
-  static PendingTable one_axis(const std::string& relative, const std::string& quantity, std::vector<double> axis,
-                               std::vector<double> values, std::string method);
+                               std::vector<double> values, int decimals, std::size_t points,
+                               std::string method);
+  static PendingTable one_axis(const std::string& relative, const std::string& quantity,
+                               std::vector<double> axis, std::vector<double> values, std::string method);
 };
 
-void write_import(const ImportOptions& options, const MeasuredData& data, const std::vector<PendingTable>& tables,
-                  ImportResult& result);
+void write_import(const ImportOptions& options, const MeasuredData& data,
+                  const std::vector<PendingTable>& tables, ImportResult& result);
 
 }  // namespace countersign::beamdata::detail

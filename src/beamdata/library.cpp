@@ -114,7 +114,8 @@ Expected<Library> load_library(const std::filesystem::path& folder) {
     if (problem.severity == Severity::error) return problem.to_error();
   }
   if (!inspection.complete) {
-    return Error{ErrorKind::bad_beamdata, folder.string(), "", "", "the library could not be read completely"};
+    return Error{ErrorKind::bad_beamdata, folder.string(), "", "",
+                 "the library could not be read completely"};
   }
   detail::PhysicsFindings physics = detail::check_physics(inspection);
   for (const auto& problem : physics.problems) {

@@ -38,7 +38,8 @@ std::string outside_problem(const fs::path& folder, const fs::path& real, const 
   std::error_code ec;
   const fs::path real_folder = fs::canonical(folder, ec);
   if (ec) return "'" + relative + "': cannot resolve " + folder.string() + " (" + ec.message() + ")";
-  const auto [folder_end, file_end] = std::mismatch(real_folder.begin(), real_folder.end(), real.begin(), real.end());
+  const auto [folder_end, file_end] =
+      std::mismatch(real_folder.begin(), real_folder.end(), real.begin(), real.end());
   if (folder_end != real_folder.end())
     return "'" + relative + "' is a symbolic link to " + real.string() + ", outside " + real_folder.string();
   return {};

@@ -17,13 +17,13 @@ namespace countersign::beamdata::detail {
 // Where a manifest's relative table path leads, or why it may not be used: empty, a backslash, an
 // absolute path, a ".." component, a file that does not exist, or (after symbolic links) a file
 // outside `folder`. The string is one sentence naming the path.
-[[nodiscard]] std::variant<std::filesystem::path, std::string> confined_path(const std::filesystem::path& folder,
-                                                                             const std::string& relative);
+[[nodiscard]] std::variant<std::filesystem::path, std::string> confined_path(
+    const std::filesystem::path& folder, const std::string& relative);
 
 // The same rules for a file about to be written (it need not exist yet): its deepest existing
 // ancestor, resolved, must lie inside `folder`.
-[[nodiscard]] std::variant<std::filesystem::path, std::string> confined_new_path(const std::filesystem::path& folder,
-                                                                                 const std::string& relative);
+[[nodiscard]] std::variant<std::filesystem::path, std::string> confined_new_path(
+    const std::filesystem::path& folder, const std::string& relative);
 
 // The library fingerprint: a SHA-256 over "<name>\n<size>\n<bytes>" records in a fixed order.
 class Fingerprint {

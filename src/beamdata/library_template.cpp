@@ -23,10 +23,12 @@ std::string number(double value) {
 }
 
 // A table with its axes and every cell empty.
-std::string empty_table(const std::string& quantity, const std::string& row_axis, const std::vector<double>& rows,
-                        const std::vector<double>& columns, const std::string& one_axis_quantity = {}) {
+std::string empty_table(const std::string& quantity, const std::string& row_axis,
+                        const std::vector<double>& rows, const std::vector<double>& columns,
+                        const std::string& one_axis_quantity = {}) {
   std::ostringstream out;
-  out << "# TEMPLATE written by countersign beamdata new: fill in every empty cell (or use beamdata import).\n"
+  out << "# TEMPLATE written by countersign beamdata new: fill in every empty cell (or use beamdata "
+         "import).\n"
       << "# " << detail::table_axes_note(quantity) << "\n";
   if (!one_axis_quantity.empty()) {
     out << row_axis << ',' << one_axis_quantity << '\n';
@@ -43,7 +45,8 @@ std::string empty_table(const std::string& quantity, const std::string& row_axis
 Expected<fs::path> write_new(const fs::path& path, const std::string& text) {
   std::error_code ec;
   fs::create_directories(path.parent_path(), ec);
-  if (fs::exists(path, ec)) return Error{ErrorKind::io, path.string(), "", "", "exists already; nothing overwritten"};
+  if (fs::exists(path, ec))
+    return Error{ErrorKind::io, path.string(), "", "", "exists already; nothing overwritten"};
   std::ofstream out(path, std::ios::binary);
   out << text;
   out.close();
@@ -78,7 +81,8 @@ Expected<std::vector<fs::path>> write_library_template(const TemplateRequest& re
     return Error{ErrorKind::usage, "", "--energies", "", "give at least one photon energy (MV)"};
   const fs::path machine = request.library_folder / request.machine;
   if (fs::exists(machine))
-    return Error{ErrorKind::io, machine.string(), "", "", "exists already; the template is written only into a new folder"};
+    return Error{ErrorKind::io, machine.string(), "", "",
+                 "exists already; the template is written only into a new folder"};
   const TemplateGrid& g = request.grid;
   std::vector<std::pair<fs::path, std::string>> files;
   files.emplace_back(machine / "machine.toml", detail::template_manifest(request));
@@ -89,11 +93,13 @@ Expected<std::vector<fs::path>> write_library_template(const TemplateRequest& re
     files.emplace_back(machine / id / "tmr.csv", empty_table("tmr", "depth_cm", g.depths_cm, g.fields_cm));
     files.emplace_back(machine / id / "sc.csv", empty_table("sc", "field_cm", g.fields_cm, {}, "sc"));
     files.emplace_back(machine / id / "sp.csv", empty_table("sp", "field_cm", g.fields_cm, {}, "sp"));
-    files.emplace_back(machine / id / "oar.csv", empty_table("oar", "depth_cm", g.oar_depths_cm, g.off_axis_cm));
+    files.emplace_back(machine / id / "oar.csv",
+                       empty_table("oar", "depth_cm", g.oar_depths_cm, g.off_axis_cm));
   }
   const fs::path ct_default = request.library_folder / "ct" / "default.csv";
   if (!fs::exists(ct_default))
-    files.emplace_back(ct_default, empty_table("relative_electron_density", "hu", g.ct_hu, {}, "relative_electron_density"));
+    files.emplace_back(
+        ct_default, empty_table("relative_electron_density", "hu", g.ct_hu, {}, "relative_electron_density"));
   std::vector<fs::path> written;
   for (const auto& [path, text] : files) {
     auto result = write_new(path, text);

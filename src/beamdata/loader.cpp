@@ -32,16 +32,17 @@ Problem folder_problem(const fs::path& file, std::string key, std::string messag
 }
 
 // Names and aliases must identify one machine across the whole library.
-bool names_unique(const MachineDraft& draft, const std::vector<MachineDraft>& earlier, Inspection& inspection) {
+bool names_unique(const MachineDraft& draft, const std::vector<MachineDraft>& earlier,
+                  Inspection& inspection) {
   bool unique = true;
   std::vector<std::string> names = draft.machine.aliases;
   if (!draft.machine.name.empty()) names.insert(names.begin(), draft.machine.name);
   for (const auto& other : earlier) {
     for (const auto& name : names) {
       if (!other.machine.answers_to(name)) continue;
-      const std::string what = name == draft.machine.name ? "machine '" + name + "' is defined twice"
-                                                          : "alias '" + name + "' also names machine '" +
-                                                                other.machine.name + "'";
+      const std::string what = name == draft.machine.name
+                                   ? "machine '" + name + "' is defined twice"
+                                   : "alias '" + name + "' also names machine '" + other.machine.name + "'";
       inspection.problems.push_back(folder_problem(draft.machine.manifest, "machine", what));
       unique = false;
     }
@@ -64,8 +65,8 @@ bool inspect_machine(const fs::path& machine_folder, Inspection& inspection, Fin
   try {
     manifest = toml::parse(*text, manifest_path.string());
   } catch (const toml::parse_error& e) {
-    inspection.problems.push_back(folder_problem(manifest_path, "", "not valid TOML: " + std::string{e.description()},
-                                                 e.source().begin.line));
+    inspection.problems.push_back(folder_problem(
+        manifest_path, "", "not valid TOML: " + std::string{e.description()}, e.source().begin.line));
     return false;
   }
   MachineDraft draft = loader.machine(manifest);
@@ -110,7 +111,8 @@ Inspection inspect_library(const fs::path& folder) {
   }
   Fingerprint fingerprint;
   bool complete = true;
-  for (const auto& machine_folder : folders) complete = inspect_machine(machine_folder, inspection, fingerprint) && complete;
+  for (const auto& machine_folder : folders)
+    complete = inspect_machine(machine_folder, inspection, fingerprint) && complete;
   // A single machine folder has no CT tables of its own: they belong to the library folder.
   if (folders.front() != folder) complete = read_ct_tables(folder, inspection, fingerprint) && complete;
   inspection.sha256_hex = fingerprint.hex_digest();

@@ -49,7 +49,9 @@ void MachineLoader::warn_extrapolated_cells(const fs::path& table, const std::st
     if (const auto* list = parsed.get_as<toml::array>("cell")) {
       for (const auto& cell : *list) {
         const auto* t = cell.as_table();
-        if (t != nullptr && t->get_as<bool>("extrapolated") != nullptr && t->get_as<bool>("extrapolated")->get()) ++cells;
+        if (t != nullptr && t->get_as<bool>("extrapolated") != nullptr &&
+            t->get_as<bool>("extrapolated")->get())
+          ++cells;
       }
     }
   } catch (const toml::parse_error&) {
@@ -59,13 +61,16 @@ void MachineLoader::warn_extrapolated_cells(const fs::path& table, const std::st
   }
   if (cells > 0)
     inspection_.problems.push_back(Problem{table.string(), std::nullopt, std::nullopt, std::nullopt, key,
-                                           std::to_string(cells) + " cell(s) were filled by extrapolation when the "
-                                           "table was derived (listed in " + note.string() + ")",
+                                           std::to_string(cells) +
+                                               " cell(s) were filled by extrapolation when the "
+                                               "table was derived (listed in " +
+                                               note.string() + ")",
                                            Severity::warning});
 }
 
-std::optional<Table2D> MachineLoader::table2d(const toml::table& t, std::string_view key, const std::string& path,
-                                              const TableSpec& spec, Presence presence) {
+std::optional<Table2D> MachineLoader::table2d(const toml::table& t, std::string_view key,
+                                              const std::string& path, const TableSpec& spec,
+                                              Presence presence) {
   const auto relative = reader_.text(t, key, path, presence);
   if (!relative) return std::nullopt;
   const auto text = table_text(*relative, t.get(key), path + std::string{key});
@@ -76,8 +81,9 @@ std::optional<Table2D> MachineLoader::table2d(const toml::table& t, std::string_
   return std::move(read.table);
 }
 
-std::optional<Table1D> MachineLoader::table1d(const toml::table& t, std::string_view key, const std::string& path,
-                                              const TableSpec& spec, Presence presence) {
+std::optional<Table1D> MachineLoader::table1d(const toml::table& t, std::string_view key,
+                                              const std::string& path, const TableSpec& spec,
+                                              Presence presence) {
   const auto relative = reader_.text(t, key, path, presence);
   if (!relative) return std::nullopt;
   const auto text = table_text(*relative, t.get(key), path + std::string{key});
@@ -97,8 +103,8 @@ bool MachineLoader::beam_ids_unique(const MachineDraft& draft, const std::vector
     if (id == nullptr || id->as_string() == nullptr) continue;
     const std::string value = id->as_string()->get();
     if (!seen.insert(value).second) {
-      reader_.problem(id, indexed_path("", "beam", i) + "id", "beam id '" + value + "' appears twice in " +
-                                                                  draft.machine.manifest.string());
+      reader_.problem(id, indexed_path("", "beam", i) + "id",
+                      "beam id '" + value + "' appears twice in " + draft.machine.manifest.string());
       unique = false;
     }
   }
@@ -118,9 +124,9 @@ MachineDraft MachineLoader::machine(const toml::table& manifest) {
   bool complete = name && sad;
   for (std::size_t i = 0; i < draft.machine.aliases.size(); ++i) {
     const std::string& alias = draft.machine.aliases[i];
-    const bool repeated = std::find(draft.machine.aliases.begin(), draft.machine.aliases.begin() +
-                                        static_cast<std::ptrdiff_t>(i), alias) !=
-                          draft.machine.aliases.begin() + static_cast<std::ptrdiff_t>(i);
+    const bool repeated = std::find(draft.machine.aliases.begin(),
+                                    draft.machine.aliases.begin() + static_cast<std::ptrdiff_t>(i),
+                                    alias) != draft.machine.aliases.begin() + static_cast<std::ptrdiff_t>(i);
     if (alias == draft.machine.name || repeated) {
       reader_.problem(manifest.get("aliases"), "aliases", "'" + alias + "' is listed twice");
       complete = false;
@@ -154,8 +160,9 @@ MachineDraft MachineLoader::machine(const toml::table& manifest) {
     beam.complete = beam.complete && radiation.has_value();
     for (const auto& other : draft.beams) {
       if (beam.data.energy_mv > 0.0 && std::abs(other.data.energy_mv - beam.data.energy_mv) < 0.01) {
-        reader_.problem(beams[i], path + "energy_mv",
-                        "beams '" + other.data.id + "' and '" + beam.data.id + "' have the same radiation and energy");
+        reader_.problem(
+            beams[i], path + "energy_mv",
+            "beams '" + other.data.id + "' and '" + beam.data.id + "' have the same radiation and energy");
         complete = false;
       }
     }
@@ -167,7 +174,8 @@ MachineDraft MachineLoader::machine(const toml::table& manifest) {
       const auto& a = draft.electron_beams[j].data;
       const auto& b = draft.electron_beams[i].data;
       if (b.energy_mev > 0.0 && std::abs(a.energy_mev - b.energy_mev) < 0.01) {
-        reader_.problem(&manifest, "beam", "electron beams '" + a.id + "' and '" + b.id + "' have the same energy");
+        reader_.problem(&manifest, "beam",
+                        "electron beams '" + a.id + "' and '" + b.id + "' have the same energy");
         complete = false;
       }
     }

@@ -30,7 +30,8 @@ std::vector<std::string> split(std::string_view line) {
 }
 
 std::string lower(std::string s) {
-  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  std::transform(s.begin(), s.end(), s.begin(),
+                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
   return s;
 }
 
@@ -58,8 +59,10 @@ Header read_header(const std::vector<std::string>& cells, const std::string& fil
       {"depth_cm", {&Header::depth, 1.0}},       {"depth_mm", {&Header::depth, 0.1}},
       {"off_axis_cm", {&Header::off_axis, 1.0}}, {"off_axis_mm", {&Header::off_axis, 0.1}},
       {"ssd_cm", {&Header::ssd, 1.0}},           {"ssd_mm", {&Header::ssd, 0.1}}};
-  const std::map<std::string, std::optional<std::size_t> Header::*> plain = {
-      {"quantity", &Header::quantity}, {"value", &Header::value}, {"beam", &Header::beam}, {"wedge", &Header::wedge}};
+  const std::map<std::string, std::optional<std::size_t> Header::*> plain = {{"quantity", &Header::quantity},
+                                                                             {"value", &Header::value},
+                                                                             {"beam", &Header::beam},
+                                                                             {"wedge", &Header::wedge}};
   for (std::size_t c = 0; c < cells.size(); ++c) {
     const std::string name = lower(cells[c]);
     if (const auto it = plain.find(name); it != plain.end()) {
@@ -93,8 +96,8 @@ std::optional<double> number(const std::string& cell) {
 // One data row into a point; false (with problems) when a cell is unusable.
 bool read_row(const std::vector<std::string>& cells, const Header& h, std::size_t line, MeasuredData& data) {
   const auto problem = [&](std::size_t column, std::string message) {
-    data.problems.push_back(Problem{data.file.string(), std::nullopt, line, column + 1, "measured", std::move(message),
-                                    Severity::error, "unusable measured row"});
+    data.problems.push_back(Problem{data.file.string(), std::nullopt, line, column + 1, "measured",
+                                    std::move(message), Severity::error, "unusable measured row"});
     return false;
   };
   MeasuredPoint p;
@@ -130,7 +133,8 @@ bool read_row(const std::vector<std::string>& cells, const Header& h, std::size_
 }  // namespace
 
 const std::vector<std::string>& measured_quantities() {
-  static const std::vector<std::string> names = {"pdd", "tmr", "oar", "sc", "scp", "sp", "wedge_factor", "wedge_profile"};
+  static const std::vector<std::string> names = {"pdd", "tmr", "oar",          "sc",
+                                                 "scp", "sp",  "wedge_factor", "wedge_profile"};
   return names;
 }
 
@@ -139,7 +143,8 @@ MeasuredData read_measured_data(const std::filesystem::path& file) {
   data.file = file;
   const auto bytes = detail::read_file(file);
   if (!bytes) {
-    data.problems.push_back(Problem{file.string(), std::nullopt, std::nullopt, std::nullopt, "", "cannot read the file"});
+    data.problems.push_back(
+        Problem{file.string(), std::nullopt, std::nullopt, std::nullopt, "", "cannot read the file"});
     return data;
   }
   data.sha256_hex = sha256_hex(*bytes);
@@ -160,16 +165,17 @@ MeasuredData read_measured_data(const std::filesystem::path& file) {
       continue;
     }
     if (cells.size() < header->cell_count) {
-      data.problems.push_back(Problem{file.string(), std::nullopt, line, std::nullopt, "measured",
-                                      std::to_string(cells.size()) + " cells, the header has " +
-                                          std::to_string(header->cell_count),
-                                      Severity::error, "unusable measured row"});
+      data.problems.push_back(Problem{
+          file.string(), std::nullopt, line, std::nullopt, "measured",
+          std::to_string(cells.size()) + " cells, the header has " + std::to_string(header->cell_count),
+          Severity::error, "unusable measured row"});
       continue;
     }
     read_row(cells, *header, line, data);
   }
   if (!header)
-    data.problems.push_back(Problem{file.string(), std::nullopt, std::nullopt, std::nullopt, "", "no header row"});
+    data.problems.push_back(
+        Problem{file.string(), std::nullopt, std::nullopt, std::nullopt, "", "no header row"});
   return data;
 }
 

@@ -24,11 +24,11 @@ bool optional_ok(const toml::table& t, std::string_view key, bool read) {
 BeamDraft MachineLoader::photon_beam(const toml::table& t, const std::string& path, double sad_cm,
                                      bool sad_known) {
   BeamDraft draft;
-  reader_.unknown_keys(t,
-                       {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "mlc_transmission",
-                        "mlc_leaf_end_offset_mm", "head_scatter_field", "ssd_range_cm", "block_transmission",
-                        "calibration", "tables", "wedge", "tray"},
-                       path);
+  reader_.unknown_keys(
+      t,
+      {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "mlc_transmission", "mlc_leaf_end_offset_mm",
+       "head_scatter_field", "ssd_range_cm", "block_transmission", "calibration", "tables", "wedge", "tray"},
+      path);
   bool complete = read_photon_keys(t, path, draft);
   complete = read_calibration(t, path, sad_cm, sad_known, draft) && complete;
   complete = read_photon_tables(t, path, draft.data) && complete;
@@ -46,8 +46,9 @@ void MachineLoader::warn_suspicious(const toml::table& t, const std::string& pat
   const toml::node* cal = t.get("calibration");
   if (draft.calibration_known && std::abs(c.output_cgy_per_mu - 1.0) > 0.2)
     reader_.problem(cal, path + "calibration.output_cgy_per_mu",
-                    number_text(c.output_cgy_per_mu) + " cGy/MU is more than 20 % from the usual 1 cGy/MU at the "
-                    "reference; check the unit and the calibration point",
+                    number_text(c.output_cgy_per_mu) +
+                        " cGy/MU is more than 20 % from the usual 1 cGy/MU at the "
+                        "reference; check the unit and the calibration point",
                     Severity::warning);
   if (draft.calibration_known && c.stated_geometry == CalibrationGeometry::sad && sad_known &&
       std::abs(c.source_to_point_cm() - sad_cm) > 0.01)
@@ -63,7 +64,8 @@ void MachineLoader::warn_suspicious(const toml::table& t, const std::string& pat
                     Severity::warning);
   if (draft.calibration_known && outside(c.ssd_cm))
     reader_.problem(t.get("ssd_range_cm"), path + "ssd_range_cm",
-                    "does not contain the calibration SSD " + number_text(c.ssd_cm) + " cm", Severity::warning);
+                    "does not contain the calibration SSD " + number_text(c.ssd_cm) + " cm",
+                    Severity::warning);
 }
 
 bool MachineLoader::read_photon_keys(const toml::table& t, const std::string& path, BeamDraft& draft) {
@@ -96,8 +98,8 @@ bool MachineLoader::read_photon_keys(const toml::table& t, const std::string& pa
   return complete;
 }
 
-bool MachineLoader::read_calibration(const toml::table& t, const std::string& path, double sad_cm, bool sad_known,
-                                     BeamDraft& draft) {
+bool MachineLoader::read_calibration(const toml::table& t, const std::string& path, double sad_cm,
+                                     bool sad_known, BeamDraft& draft) {
   const auto* cal = reader_.sub_table(t, "calibration", path);
   if (cal == nullptr) return false;
   const std::string cal_path = path + "calibration.";
@@ -113,7 +115,8 @@ bool MachineLoader::read_calibration(const toml::table& t, const std::string& pa
   c.ssd_cm = ssd.value_or(0.0);
   c.depth_cm = depth.value_or(0.0);
   if (geometry) c.stated_geometry = *geometry == "SAD" ? CalibrationGeometry::sad : CalibrationGeometry::ssd;
-  const bool complete = output && field && ssd && depth && optional_ok(*cal, "geometry", geometry.has_value());
+  const bool complete =
+      output && field && ssd && depth && optional_ok(*cal, "geometry", geometry.has_value());
   draft.calibration_known = complete;
   if (c.stated_geometry) {
     c.geometry = *c.stated_geometry;

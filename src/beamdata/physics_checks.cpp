@@ -46,7 +46,8 @@ bool present(const Table1D& t) { return !t.axis().empty(); }
 // no source).
 void check_consistency(TableChecker& checker, const BeamData& beam) {
   PhysicsFindings& findings = checker.findings();
-  const auto comparisons = compare_tmr(beam.tmr, beam.pdd, beam.sp, beam.pdd_ssd_cm, beam.dmax_cm, beam.dmax_cm);
+  const auto comparisons =
+      compare_tmr(beam.tmr, beam.pdd, beam.sp, beam.pdd_ssd_cm, beam.dmax_cm, beam.dmax_cm);
   for (const auto& c : comparisons) {
     if (c.extrapolated) {
       ++findings.consistency_nodes_skipped;
@@ -55,11 +56,11 @@ void check_consistency(TableChecker& checker, const BeamData& beam) {
     ++findings.consistency_nodes_compared;
     if (std::abs(c.difference_percent) > consistency_tolerance_percent) {
       checker.add(beam.tmr.file(), "tmr", checker.row_line(beam.tmr.file(), c.row_index), c.column_index + 2,
-                  "PDD->TMR relation: tmr " + number_text(c.measured_tmr) + " at depth " + number_text(c.depth_cm) +
-                      " cm, field " + number_text(c.field_at_depth_cm) + " cm differs by " +
-                      number_text(c.difference_percent, 2) + " % from " + number_text(c.derived_tmr) +
-                      " derived from " + beam.pdd.file() + " and " + beam.sp.file() + " (tolerance " +
-                      number_text(consistency_tolerance_percent) + " %)",
+                  "PDD->TMR relation: tmr " + number_text(c.measured_tmr) + " at depth " +
+                      number_text(c.depth_cm) + " cm, field " + number_text(c.field_at_depth_cm) +
+                      " cm differs by " + number_text(c.difference_percent, 2) + " % from " +
+                      number_text(c.derived_tmr) + " derived from " + beam.pdd.file() + " and " +
+                      beam.sp.file() + " (tolerance " + number_text(consistency_tolerance_percent) + " %)",
                   Severity::warning,
                   "TMR differs from the TMR derived from PDD and Sp by more than " +
                       number_text(consistency_tolerance_percent) + " %");
@@ -85,13 +86,15 @@ void check_orientation(TableChecker& checker, const Table2D& t, const std::strin
     }
   }
   if (pairs == 0) {
-    checker.add(t.file(), t.quantity(), checker.header_line(t.file()), std::nullopt,
-                "wedge " + wedge_id + ": no pair of columns at -x and +x, so the orientation cannot be confirmed",
-                Severity::warning);
+    checker.add(
+        t.file(), t.quantity(), checker.header_line(t.file()), std::nullopt,
+        "wedge " + wedge_id + ": no pair of columns at -x and +x, so the orientation cannot be confirmed",
+        Severity::warning);
   } else if (2 * reversed > pairs) {
     checker.add(t.file(), t.quantity(), checker.header_line(t.file()), std::nullopt,
-                "wedge " + wedge_id + ": the profile is higher on the positive side in " + std::to_string(reversed) +
-                    " of " + std::to_string(pairs) + " mirrored cells; the thin end must be negative (reversed?)",
+                "wedge " + wedge_id + ": the profile is higher on the positive side in " +
+                    std::to_string(reversed) + " of " + std::to_string(pairs) +
+                    " mirrored cells; the thin end must be negative (reversed?)",
                 Severity::warning);
   }
 }
@@ -136,22 +139,24 @@ void check_electron_beam(TableChecker& checker, const ElectronDraft& draft) {
       const auto& fields = a.pdd.columns();
       if (a.field_cm > 0.0 && (a.field_cm < fields.front() || a.field_cm > fields.back()))
         checker.add(a.pdd.file(), "pdd", checker.header_line(a.pdd.file()), std::nullopt,
-                    "applicator " + a.id + ": the columns do not cover its open field (" + number_text(a.field_cm) +
-                        " cm)",
+                    "applicator " + a.id + ": the columns do not cover its open field (" +
+                        number_text(a.field_cm) + " cm)",
                     Severity::warning);
     }
     if (a.cutout && present(*a.cutout)) {
       checker.check_ranges(*a.cutout, field_range, cutout_range);
       if (a.field_cm > 0.0)
-        checker.check_value_at(*a.cutout, a.field_cm, 1.0,
-                               "cutout factor of the open applicator field (" + number_text(a.field_cm) + " cm)");
+        checker.check_value_at(
+            *a.cutout, a.field_cm, 1.0,
+            "cutout factor of the open applicator field (" + number_text(a.field_cm) + " cm)");
     }
     if (draft.pdd_ssd_known && a.effective_ssd_cm > 0.0) {
       const double off_percent = 100.0 * (a.effective_ssd_cm - beam.pdd_ssd_cm) / beam.pdd_ssd_cm;
       if (std::abs(off_percent) > effective_ssd_tolerance_percent)
         checker.add_manifest("applicator " + a.id + ".effective_ssd_cm",
-                             number_text(a.effective_ssd_cm) + " cm differs by " + number_text(off_percent, 1) +
-                                 " % from the standard SSD " + number_text(beam.pdd_ssd_cm) + " cm (limit " +
+                             number_text(a.effective_ssd_cm) + " cm differs by " +
+                                 number_text(off_percent, 1) + " % from the standard SSD " +
+                                 number_text(beam.pdd_ssd_cm) + " cm (limit " +
                                  number_text(effective_ssd_tolerance_percent) + " %)",
                              Severity::error);
     }
@@ -169,25 +174,27 @@ void check_ct_table(const CtDensityTable& table, const Inspection& inspection, P
   Machine root_machine;
   root_machine.manifest = inspection.root / "machine.toml";
   TableChecker checker(root_machine, inspection.lines, findings);
-  const Table1D as_table{table.file, "relative_electron_density", "hu", table.hu, table.relative_electron_density};
+  const Table1D as_table{table.file, "relative_electron_density", "hu", table.hu,
+                         table.relative_electron_density};
   checker.check_ranges(as_table, hu_range, density_range);
   const DensityLookup water = table.density(0.0);
   if (water.clamped) {
-    findings.problems.push_back(Problem{shown, std::nullopt, std::nullopt, std::nullopt, "relative_electron_density",
+    findings.problems.push_back(Problem{shown, std::nullopt, std::nullopt, std::nullopt,
+                                        "relative_electron_density",
                                         "the table does not cover water (0 HU)"});
   } else if (std::abs(100.0 * (water.relative_electron_density - 1.0)) > water_density_tolerance_percent) {
-    findings.problems.push_back(Problem{shown, std::nullopt, std::nullopt, std::nullopt, "relative_electron_density",
-                                        "water (0 HU) maps to " + number_text(water.relative_electron_density) +
-                                            ", expected 1 within " + number_text(water_density_tolerance_percent) +
-                                            " %"});
+    findings.problems.push_back(
+        Problem{shown, std::nullopt, std::nullopt, std::nullopt, "relative_electron_density",
+                "water (0 HU) maps to " + number_text(water.relative_electron_density) +
+                    ", expected 1 within " + number_text(water_density_tolerance_percent) + " %"});
   }
   for (std::size_t i = 1; i < table.hu.size(); ++i) {
     if (table.relative_electron_density[i] < table.relative_electron_density[i - 1])
-      findings.problems.push_back(Problem{shown, std::nullopt, line(i), 2, "relative_electron_density",
-                                          "density falls from " + number_text(table.relative_electron_density[i - 1]) +
-                                              " to " + number_text(table.relative_electron_density[i]) +
-                                              " as HU rises to " + number_text(table.hu[i]),
-                                          Severity::warning, "density does not rise with HU"});
+      findings.problems.push_back(Problem{
+          shown, std::nullopt, line(i), 2, "relative_electron_density",
+          "density falls from " + number_text(table.relative_electron_density[i - 1]) + " to " +
+              number_text(table.relative_electron_density[i]) + " as HU rises to " + number_text(table.hu[i]),
+          Severity::warning, "density does not rise with HU"});
   }
 }
 

@@ -97,7 +97,8 @@ std::vector<ProblemGroup> group_problems(const std::vector<Problem>& problems) {
   for (const auto& p : problems) {
     auto same = std::find_if(groups.begin(), groups.end(), [&](const ProblemGroup& g) {
       const Problem& f = g.members.front();
-      return !p.rule.empty() && std::tie(f.file, f.key, f.severity, f.rule) == std::tie(p.file, p.key, p.severity, p.rule);
+      return !p.rule.empty() &&
+             std::tie(f.file, f.key, f.severity, f.rule) == std::tie(p.file, p.key, p.severity, p.rule);
     });
     if (same == groups.end()) {
       groups.push_back(ProblemGroup{{p}});

@@ -38,11 +38,13 @@ double hermite(double x, double x0, double x1, double y0, double y1, double m0, 
   const double t = (x - x0) / h;
   const double t2 = t * t;
   const double t3 = t2 * t;
-  return (2 * t3 - 3 * t2 + 1) * y0 + (t3 - 2 * t2 + t) * h * m0 + (-2 * t3 + 3 * t2) * y1 + (t3 - t2) * h * m1;
+  return (2 * t3 - 3 * t2 + 1) * y0 + (t3 - 2 * t2 + t) * h * m0 + (-2 * t3 + 3 * t2) * y1 +
+         (t3 - t2) * h * m1;
 }
 
 // Slopes at both ends of interval i of the monotone cubic.
-std::pair<double, double> interval_slopes(const std::vector<double>& x, const std::vector<double>& y, std::size_t i) {
+std::pair<double, double> interval_slopes(const std::vector<double>& x, const std::vector<double>& y,
+                                          std::size_t i) {
   const std::size_t n = x.size();
   if (n == 2) {
     const double d = (y[1] - y[0]) / (x[1] - x[0]);
@@ -72,12 +74,14 @@ std::string_view to_string(ResamplingMethod method) {
 
 std::string describe(ResamplingMethod method) {
   if (method == ResamplingMethod::linear) return "linear interpolation between measured points";
-  return "monotone piecewise cubic Hermite interpolation (Fritsch & Carlson 1980, slopes of Fritsch & Butland "
+  return "monotone piecewise cubic Hermite interpolation (Fritsch & Carlson 1980, slopes of Fritsch & "
+         "Butland "
          "1984); no overshoot between measured points";
 }
 
 Curve::Curve(std::vector<std::pair<double, double>> points) {
-  std::stable_sort(points.begin(), points.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+  std::stable_sort(points.begin(), points.end(),
+                   [](const auto& a, const auto& b) { return a.first < b.first; });
   for (std::size_t i = 0; i < points.size();) {
     std::size_t j = i;
     double sum = 0.0;
@@ -99,8 +103,8 @@ std::string ResampledValue::reason(double max_gap) const {
       text << "no measurement at or above it (measured up to " << gap_to << ")";
       break;
     case ResampleRefusal::gap_too_wide:
-      text << "the measured points " << gap_from << " and " << gap_to << " around it are " << gap_to - gap_from
-           << " apart (limit " << max_gap << ")";
+      text << "the measured points " << gap_from << " and " << gap_to << " around it are "
+           << gap_to - gap_from << " apart (limit " << max_gap << ")";
       break;
     case ResampleRefusal::none:
       break;

@@ -24,13 +24,15 @@ std::string range_text(const Range& range) {
 std::string slip_text(const Range& range, double value) {
   switch (range.hint) {
     case SlipHint::percent_for_fraction:
-      if (value >= 20.0 && value <= 200.0) return "looks like a percentage (about 100 where about 1 is expected)";
+      if (value >= 20.0 && value <= 200.0)
+        return "looks like a percentage (about 100 where about 1 is expected)";
       break;
     case SlipHint::fraction_for_percent:
       if (value > 0.0 && value <= 1.5) return "looks like a fraction of 1 where a percentage is expected";
       break;
     case SlipHint::mm_for_cm:
-      if (value > range.max_value && value <= 10.0 * range.max_value) return "looks like millimetres, not centimetres";
+      if (value > range.max_value && value <= 10.0 * range.max_value)
+        return "looks like millimetres, not centimetres";
       break;
     case SlipHint::none:
       break;
@@ -54,15 +56,16 @@ std::string number_text(double value, int decimals) {
   return text;
 }
 
-void TableChecker::add(const std::string& table_file, const std::string& quantity, std::optional<std::size_t> row,
-                       std::optional<std::size_t> column, std::string message, Severity severity, std::string rule) {
-  findings_.problems.push_back(Problem{problem_path(machine_, table_file), std::nullopt, row, column, quantity,
-                                       std::move(message), severity, std::move(rule)});
+void TableChecker::add(const std::string& table_file, const std::string& quantity,
+                       std::optional<std::size_t> row, std::optional<std::size_t> column, std::string message,
+                       Severity severity, std::string rule) {
+  findings_.problems.push_back(Problem{problem_path(machine_, table_file), std::nullopt, row, column,
+                                       quantity, std::move(message), severity, std::move(rule)});
 }
 
 void TableChecker::add_manifest(const std::string& key, std::string message, Severity severity) {
-  findings_.problems.push_back(Problem{machine_.manifest.string(), std::nullopt, std::nullopt, std::nullopt, key,
-                                       std::move(message), severity});
+  findings_.problems.push_back(Problem{machine_.manifest.string(), std::nullopt, std::nullopt, std::nullopt,
+                                       key, std::move(message), severity});
 }
 
 std::optional<std::size_t> TableChecker::row_line(const std::string& table_file, std::size_t r) const {
@@ -83,25 +86,28 @@ void TableChecker::range_problem(const std::string& table_file, const std::strin
   const std::string slip = slip_text(range, value);
   const std::string outside = "outside the plausible range " + range_text(range);
   const std::string rule = name + " " + outside + (slip.empty() ? "" : ": " + slip);
-  add(table_file, quantity, row, column, name + " " + number_text(value) + " " + outside + (slip.empty() ? "" : ": " + slip),
-      Severity::error, slip.empty() ? rule : slip);
+  add(table_file, quantity, row, column,
+      name + " " + number_text(value) + " " + outside + (slip.empty() ? "" : ": " + slip), Severity::error,
+      slip.empty() ? rule : slip);
 }
 
 void TableChecker::check_ranges(const Table2D& t, const Range& row_range, const Range& column_range,
                                 const Range& value_range) {
   for (std::size_t r = 0; r < t.rows().size(); ++r) {
     if (!inside(row_range, t.rows()[r]))
-      range_problem(t.file(), t.quantity(), row_line(t.file(), r), 1, t.row_axis_name(), t.rows()[r], row_range);
+      range_problem(t.file(), t.quantity(), row_line(t.file(), r), 1, t.row_axis_name(), t.rows()[r],
+                    row_range);
   }
   for (std::size_t c = 0; c < t.columns().size(); ++c) {
     if (!inside(column_range, t.columns()[c]))
-      range_problem(t.file(), t.quantity(), header_line(t.file()), c + 2, t.column_axis_name(), t.columns()[c],
-                    column_range);
+      range_problem(t.file(), t.quantity(), header_line(t.file()), c + 2, t.column_axis_name(),
+                    t.columns()[c], column_range);
   }
   for (std::size_t r = 0; r < t.rows().size(); ++r) {
     for (std::size_t c = 0; c < t.columns().size(); ++c) {
       if (!inside(value_range, t.cell(r, c)))
-        range_problem(t.file(), t.quantity(), row_line(t.file(), r), c + 2, t.quantity(), t.cell(r, c), value_range);
+        range_problem(t.file(), t.quantity(), row_line(t.file(), r), c + 2, t.quantity(), t.cell(r, c),
+                      value_range);
     }
   }
 }
@@ -111,28 +117,31 @@ void TableChecker::check_ranges(const Table1D& t, const Range& axis_range, const
     if (!inside(axis_range, t.axis()[i]))
       range_problem(t.file(), t.quantity(), row_line(t.file(), i), 1, t.axis_name(), t.axis()[i], axis_range);
     if (!inside(value_range, t.values()[i]))
-      range_problem(t.file(), t.quantity(), row_line(t.file(), i), 2, t.quantity(), t.values()[i], value_range);
+      range_problem(t.file(), t.quantity(), row_line(t.file(), i), 2, t.quantity(), t.values()[i],
+                    value_range);
   }
 }
 
-void TableChecker::check_row_normalisation(const Table2D& t, double at_row, double expected, const std::string& what) {
+void TableChecker::check_row_normalisation(const Table2D& t, double at_row, double expected,
+                                           const std::string& what) {
   for (std::size_t c = 0; c < t.columns().size(); ++c) {
     const Lookup l = t.at(at_row, t.columns()[c]);
     const AxisBracket& rb = l.axes.front();
     const auto row = row_line(t.file(), rb.upper_weight < 0.5 ? rb.lower_index : rb.upper_index);
     if (l.extrapolated()) {
-      add(t.file(), t.quantity(), row, c + 2, what + ": " + t.row_axis_name() + " " + number_text(at_row) +
-                                                  " lies outside the table");
+      add(t.file(), t.quantity(), row, c + 2,
+          what + ": " + t.row_axis_name() + " " + number_text(at_row) + " lies outside the table");
       return;
     }
     const double deviation_percent = 100.0 * (l.value - expected) / expected;
     if (std::abs(deviation_percent) > normalisation_tolerance_percent) {
       const bool at_node = rb.lower_index == rb.upper_index;
       add(t.file(), t.quantity(), row, c + 2,
-          what + ": " + number_text(l.value) + (at_node ? "" : " (interpolated)") + " at " + t.row_axis_name() + " " +
-              number_text(at_row) + ", field " + number_text(t.columns()[c]) + " cm, expected " +
-              number_text(expected) + " within " + normalisation_tolerance_text(),
-          Severity::error, what + " is not " + number_text(expected) + " within " + normalisation_tolerance_text());
+          what + ": " + number_text(l.value) + (at_node ? "" : " (interpolated)") + " at " +
+              t.row_axis_name() + " " + number_text(at_row) + ", field " + number_text(t.columns()[c]) +
+              " cm, expected " + number_text(expected) + " within " + normalisation_tolerance_text(),
+          Severity::error,
+          what + " is not " + number_text(expected) + " within " + normalisation_tolerance_text());
     }
   }
 }
@@ -186,8 +195,8 @@ void TableChecker::warn_not_rising(const Table1D& t, const std::string& what) {
   for (std::size_t i = 1; i < t.values().size(); ++i) {
     if (t.values()[i] < t.values()[i - 1])
       add(t.file(), t.quantity(), row_line(t.file(), i), 2,
-          what + " falls from " + number_text(t.values()[i - 1]) + " to " + number_text(t.values()[i]) + " at " +
-              t.axis_name() + " " + number_text(t.axis()[i]) + "; it should rise with field size",
+          what + " falls from " + number_text(t.values()[i - 1]) + " to " + number_text(t.values()[i]) +
+              " at " + t.axis_name() + " " + number_text(t.axis()[i]) + "; it should rise with field size",
           Severity::warning, what + " does not rise with field size");
   }
 }
@@ -197,9 +206,10 @@ void TableChecker::warn_rising_beyond(const Table2D& t, double from_row, const s
     for (std::size_t r = 1; r < t.rows().size(); ++r) {
       if (t.rows()[r - 1] <= from_row || !(t.cell(r, c) > t.cell(r - 1, c))) continue;
       add(t.file(), t.quantity(), row_line(t.file(), r), c + 2,
-          what + " rises from " + number_text(t.cell(r - 1, c)) + " to " + number_text(t.cell(r, c)) + " at " +
-              t.row_axis_name() + " " + number_text(t.rows()[r]) + ", field " + number_text(t.columns()[c]) +
-              " cm, beyond dmax " + number_text(from_row) + " cm; it should fall",
+          what + " rises from " + number_text(t.cell(r - 1, c)) + " to " + number_text(t.cell(r, c)) +
+              " at " + t.row_axis_name() + " " + number_text(t.rows()[r]) + ", field " +
+              number_text(t.columns()[c]) + " cm, beyond dmax " + number_text(from_row) +
+              " cm; it should fall",
           Severity::warning, what + " does not fall beyond dmax");
     }
   }

@@ -46,7 +46,8 @@ class TableChecker {
   [[nodiscard]] std::optional<std::size_t> row_line(const std::string& table_file, std::size_t r) const;
   [[nodiscard]] std::optional<std::size_t> header_line(const std::string& table_file) const;
 
-  void check_ranges(const Table2D& t, const Range& row_range, const Range& column_range, const Range& value_range);
+  void check_ranges(const Table2D& t, const Range& row_range, const Range& column_range,
+                    const Range& value_range);
   void check_ranges(const Table1D& t, const Range& axis_range, const Range& value_range);
 
   // Every column equals `expected` at row value `at_row` within the normalisation tolerance.
@@ -66,8 +67,9 @@ class TableChecker {
   [[nodiscard]] PhysicsFindings& findings() { return findings_; }
 
  private:
-  void range_problem(const std::string& table_file, const std::string& quantity, std::optional<std::size_t> row,
-                     std::size_t column, const std::string& name, double value, const Range& range);
+  void range_problem(const std::string& table_file, const std::string& quantity,
+                     std::optional<std::size_t> row, std::size_t column, const std::string& name,
+                     double value, const Range& range);
 
   const Machine& machine_;
   const std::map<std::string, TableLines>& lines_;

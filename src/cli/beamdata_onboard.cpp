@@ -35,9 +35,10 @@ void run_new(const NewOptions& o, CommandContext& context) {
     return;
   }
   for (const auto& file : *written) context.io.out << "wrote " << file.string() << '\n';
-  context.io.out << "Next: fill in every nan, \"?\" and empty cell (by hand or with `countersign beamdata import "
-                 << o.folder << " --machine " << o.machine << " --beam ID --measured FILE`), then run "
-                 << "`countersign beamdata validate " << o.folder << "`.\n";
+  context.io.out
+      << "Next: fill in every nan, \"?\" and empty cell (by hand or with `countersign beamdata import "
+      << o.folder << " --machine " << o.machine << " --beam ID --measured FILE`), then run "
+      << "`countersign beamdata validate " << o.folder << "`.\n";
   context.exit_code = ExitCode::all_within_tolerance;
 }
 
@@ -77,11 +78,11 @@ void run_import(const ImportCliOptions& o, CommandContext& context) {
     return;
   }
   for (const auto& t : result.tables)
-    out << "wrote " << t.file << " (" << t.quantity << ", " << t.measured_points << " measured points, SHA-256 "
-        << t.sha256_hex << ")\n";
+    out << "wrote " << t.file << " (" << t.quantity << ", " << t.measured_points
+        << " measured points, SHA-256 " << t.sha256_hex << ")\n";
   out << "resampling: " << bd::describe(options.method) << "; no extrapolation\n";
-  out << "provenance: " << result.provenance_file.string() << " (measured file SHA-256 " << result.measured_sha256_hex
-      << ")\n";
+  out << "provenance: " << result.provenance_file.string() << " (measured file SHA-256 "
+      << result.measured_sha256_hex << ")\n";
   context.exit_code = ExitCode::all_within_tolerance;
 }
 
@@ -93,13 +94,15 @@ void add_new(CLI::App& beamdata, CommandContext& context) {
       "new",
       "Write a template library for one machine: a manifest with every key commented, tables with their axes "
       "and empty cells, a README of what to measure. `validate` reports it incomplete until it is filled in");
-  command->add_option("folder", o->folder, "Library folder (the machine folder FOLDER/NAME must not exist)")->required();
+  command->add_option("folder", o->folder, "Library folder (the machine folder FOLDER/NAME must not exist)")
+      ->required();
   command->add_option("--machine", o->machine, "Treatment Machine Name (300A,00B2), exact")->required();
   command->add_option("--energies", o->energies_mv, "Photon energies in MV, e.g. 6,10")
       ->required()
       ->delimiter(',')
       ->check(CLI::PositiveNumber);
-  command->add_option("--wedges", o->wedges, "Wedge IDs (300A,00D4) on every beam, e.g. W15,W30")->delimiter(',');
+  command->add_option("--wedges", o->wedges, "Wedge IDs (300A,00D4) on every beam, e.g. W15,W30")
+      ->delimiter(',');
   command->callback([o, &context] { run_new(*o, context); });
 }
 

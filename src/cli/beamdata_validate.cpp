@@ -26,7 +26,8 @@ void print_incomplete(const bd::ValidationReport& report, std::ostream& out) {
     if (p.rule == "missing value") ++cells;
   }
   if (values + cells > 0)
-    out << "incomplete: " << values << " manifest value(s) not filled in, " << cells << " table cell(s) empty\n";
+    out << "incomplete: " << values << " manifest value(s) not filled in, " << cells
+        << " table cell(s) empty\n";
 }
 
 void run_validate(const ValidateOptions& options, CommandContext& context) {
@@ -40,9 +41,9 @@ void run_validate(const ValidateOptions& options, CommandContext& context) {
   out << "library SHA-256: " << (report.sha256_hex.empty() ? "not available" : report.sha256_hex) << '\n';
   out << "machines: " << report.readable.machine_listing() << '\n';
   out << report.machine_count << " machine(s), " << report.beam_count
-      << " beam(s); PDD/TMR consistency: " << report.consistency_nodes_compared << " TMR node(s) compared within "
-      << fixed(bd::consistency_tolerance_percent, 1) << " %, " << report.consistency_nodes_skipped
-      << " not compared (would need extrapolation)\n";
+      << " beam(s); PDD/TMR consistency: " << report.consistency_nodes_compared
+      << " TMR node(s) compared within " << fixed(bd::consistency_tolerance_percent, 1) << " %, "
+      << report.consistency_nodes_skipped << " not compared (would need extrapolation)\n";
   print_incomplete(report, out);
   if (report.clean()) {
     out << "clean: no problems found\n";

@@ -43,7 +43,8 @@ std::string table_plot(const bd::Table2D& t, const std::string& name, const std:
   const std::size_t curves = per_column ? t.columns().size() : t.rows().size();
   for (std::size_t k = 0; k < curves; ++k) {
     svg::Series s;
-    s.label = per_column ? curve_label(t.column_axis_name(), t.columns()[k]) : curve_label(t.row_axis_name(), t.rows()[k]);
+    s.label = per_column ? curve_label(t.column_axis_name(), t.columns()[k])
+                         : curve_label(t.row_axis_name(), t.rows()[k]);
     s.x = per_column ? t.rows() : t.columns();
     for (std::size_t i = 0; i < s.x.size(); ++i) s.y.push_back(per_column ? t.cell(i, k) : t.cell(k, i));
     plot.series.push_back(std::move(s));
@@ -59,10 +60,16 @@ std::string table_plot(const bd::Table1D& t, const std::string& name, const std:
 
 std::string ct_plot(const bd::CtDensityTable& table) {
   const std::string which = table.station.empty() ? "default table" : "station " + table.station;
-  svg::Plot plot{"table-plot", table.file, "CT number to relative electron density (" + which + ")",
-                 axis_label("hu"), "relative electron density", {}, {}, std::nullopt};
-  plot.series.push_back(
-      svg::Series{"relative electron density", table.hu, table.relative_electron_density, false, std::nullopt});
+  svg::Plot plot{"table-plot",
+                 table.file,
+                 "CT number to relative electron density (" + which + ")",
+                 axis_label("hu"),
+                 "relative electron density",
+                 {},
+                 {},
+                 std::nullopt};
+  plot.series.push_back(svg::Series{"relative electron density", table.hu, table.relative_electron_density,
+                                    false, std::nullopt});
   return svg::render(plot);
 }
 
@@ -70,7 +77,8 @@ std::string consistency_plots(const bd::BeamData& beam, const std::string& name,
   nodes_outside = 0;
   if (beam.pdd.rows().empty() || beam.tmr.rows().empty() || beam.sp.axis().empty() || !(beam.dmax_cm > 0.0) ||
       !(beam.pdd_ssd_cm > 0.0))
-    return "<p>No PDD&#8596;TMR overlay: the beam's PDD, TMR or Sp table, dmax or PDD SSD could not be read.</p>\n";
+    return "<p>No PDD&#8596;TMR overlay: the beam's PDD, TMR or Sp table, dmax or PDD SSD could not be "
+           "read.</p>\n";
   const auto comparisons =
       bd::compare_tmr(beam.tmr, beam.pdd, beam.sp, beam.pdd_ssd_cm, beam.dmax_cm, beam.dmax_cm);
   // Up to five fields drawn: the smallest, about 5, 10 and 20 cm, and the largest.
@@ -83,11 +91,22 @@ std::string consistency_plots(const bd::BeamData& beam, const std::string& name,
     drawn.insert(static_cast<std::size_t>(std::distance(fields.begin(), closest)));
   }
   const double tolerance = bd::consistency_tolerance_percent;
-  svg::Plot overlay{"consistency-plot", name, beam.id + ": measured TMR (solid) and TMR derived from PDD and Sp (dashed)",
-                    "depth (cm)", "TMR", {}, {}, std::nullopt};
-  svg::Plot difference{"consistency-plot", name,
+  svg::Plot overlay{"consistency-plot",
+                    name,
+                    beam.id + ": measured TMR (solid) and TMR derived from PDD and Sp (dashed)",
+                    "depth (cm)",
+                    "TMR",
+                    {},
+                    {},
+                    std::nullopt};
+  svg::Plot difference{"consistency-plot",
+                       name,
                        beam.id + fmt::format(": measured minus derived TMR (%), band ±{:g} %", tolerance),
-                       "depth (cm)", "difference (%)", {}, {}, std::pair{-tolerance, tolerance}};
+                       "depth (cm)",
+                       "difference (%)",
+                       {},
+                       {},
+                       std::pair{-tolerance, tolerance}};
   std::size_t style = 0;
   for (const std::size_t c : drawn) {
     svg::Series measured{fmt::format("{:g} cm measured", fields[c]), {}, {}, false, style};
@@ -111,8 +130,8 @@ std::string consistency_plots(const bd::BeamData& beam, const std::string& name,
   for (const auto& n : comparisons) {
     if (n.extrapolated || std::abs(n.difference_percent) <= tolerance) continue;
     ++nodes_outside;
-    const std::string label =
-        fmt::format("depth {:g} cm, field {:g} cm: {:+.2f} %", n.depth_cm, n.field_at_depth_cm, n.difference_percent);
+    const std::string label = fmt::format("depth {:g} cm, field {:g} cm: {:+.2f} %", n.depth_cm,
+                                          n.field_at_depth_cm, n.difference_percent);
     overlay.markers.push_back({n.depth_cm, n.measured_tmr, label});
     difference.markers.push_back({n.depth_cm, n.difference_percent, label});
   }

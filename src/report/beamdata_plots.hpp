@@ -9,8 +9,10 @@
 namespace countersign::report::beamdata_plots {
 
 // One "table-plot" SVG per table; `name` is the data-table attribute ("FERN-LINAC-1/6X/pdd.csv").
-[[nodiscard]] std::string table_plot(const beamdata::Table2D& table, const std::string& name, const std::string& title);
-[[nodiscard]] std::string table_plot(const beamdata::Table1D& table, const std::string& name, const std::string& title);
+[[nodiscard]] std::string table_plot(const beamdata::Table2D& table, const std::string& name,
+                                     const std::string& title);
+[[nodiscard]] std::string table_plot(const beamdata::Table1D& table, const std::string& name,
+                                     const std::string& title);
 [[nodiscard]] std::string ct_plot(const beamdata::CtDensityTable& table);
 
 // Measured TMR against TMR derived from the PDD and Sp, with differences beyond the tolerance

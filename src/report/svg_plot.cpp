@@ -67,22 +67,25 @@ class Frame {
 
   [[nodiscard]] std::string axes(const std::string& x_label, const std::string& y_label) const {
     std::string out = fmt::format(
-        "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1\"/>\n",
+        "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#000\" "
+        "stroke-width=\"1\"/>\n",
         left, top, plot_w, plot_h);
     const double xs = tick_step(x_.max - x_.min);
     for (double v = first_tick(x_.min, xs); v <= x_.max + xs * 1e-6; v += xs) {
-      out += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#ddd\"/>"
-                         "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4}</text>\n",
-                         px(v), top, top + plot_h, top + plot_h + 16, number(v));
+      out += fmt::format(
+          "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#ddd\"/>"
+          "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4}</text>\n",
+          px(v), top, top + plot_h, top + plot_h + 16, number(v));
     }
     const double ys = tick_step(y_.max - y_.min);
     for (double v = first_tick(y_.min, ys); v <= y_.max + ys * 1e-6; v += ys) {
-      out += fmt::format("<line x1=\"{1}\" y1=\"{0:.1f}\" x2=\"{2}\" y2=\"{0:.1f}\" stroke=\"#ddd\"/>"
-                         "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5}</text>\n",
-                         py(v), left, left + plot_w, left - 6, py(v) + 4, number(v));
+      out += fmt::format(
+          "<line x1=\"{1}\" y1=\"{0:.1f}\" x2=\"{2}\" y2=\"{0:.1f}\" stroke=\"#ddd\"/>"
+          "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5}</text>\n",
+          py(v), left, left + plot_w, left - 6, py(v) + 4, number(v));
     }
-    out += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", left + plot_w / 2, height - 12,
-                       html_escape(x_label));
+    out += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", left + plot_w / 2,
+                       height - 12, html_escape(x_label));
     out += fmt::format("<text transform=\"translate(16 {}) rotate(-90)\" text-anchor=\"middle\">{}</text>\n",
                        top + plot_h / 2, html_escape(y_label));
     return out;
@@ -113,15 +116,16 @@ std::string legend(const std::vector<Series>& series) {
     const std::size_t style = s.style.value_or(i);
     const double y = top + 6 + 14.0 * static_cast<double>(i);
     const char* dash = s.dashed ? "5 3" : dashes[(style / colours.size()) % dashes.size()];
-    out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.6\"{4}/>"
-                       "<text x=\"{5}\" y=\"{6}\">{7}</text>\n",
-                       width - right + 12, y, width - right + 34, colours[style % colours.size()],
-                       *dash ? fmt::format(" stroke-dasharray=\"{}\"", dash) : std::string{}, width - right + 40,
-                       y + 4, html_escape(s.label));
+    out += fmt::format(
+        "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.6\"{4}/>"
+        "<text x=\"{5}\" y=\"{6}\">{7}</text>\n",
+        width - right + 12, y, width - right + 34, colours[style % colours.size()],
+        *dash ? fmt::format(" stroke-dasharray=\"{}\"", dash) : std::string{}, width - right + 40, y + 4,
+        html_escape(s.label));
   }
   if (series.size() > rows)
-    out += fmt::format("<text x=\"{}\" y=\"{}\">… {} more</text>\n", width - right + 12, top + 10 + 14.0 * rows,
-                       series.size() - rows);
+    out += fmt::format("<text x=\"{}\" y=\"{}\">… {} more</text>\n", width - right + 12,
+                       top + 10 + 14.0 * rows, series.size() - rows);
   return out;
 }
 
@@ -146,18 +150,20 @@ std::string render(const Plot& plot) {
       "<svg class=\"{}\" data-table=\"{}\" xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {} {}\" "
       "width=\"{}\" height=\"{}\" font-family=\"sans-serif\" font-size=\"11\" role=\"img\">\n"
       "<title>{}</title>\n<text x=\"{}\" y=\"20\" font-size=\"13\" font-weight=\"bold\">{}</text>\n",
-      html_escape(plot.css_class), html_escape(plot.data_table), width, height, width, height, html_escape(plot.title),
-      left, html_escape(plot.title));
+      html_escape(plot.css_class), html_escape(plot.data_table), width, height, width, height,
+      html_escape(plot.title), left, html_escape(plot.title));
   if (plot.y_band) {
-    out += fmt::format("<rect x=\"{}\" y=\"{:.1f}\" width=\"{}\" height=\"{:.1f}\" fill=\"#e8f0e8\"/>\n", left,
-                       f.py(plot.y_band->second), plot_w, f.py(plot.y_band->first) - f.py(plot.y_band->second));
+    out +=
+        fmt::format("<rect x=\"{}\" y=\"{:.1f}\" width=\"{}\" height=\"{:.1f}\" fill=\"#e8f0e8\"/>\n", left,
+                    f.py(plot.y_band->second), plot_w, f.py(plot.y_band->first) - f.py(plot.y_band->second));
   }
   out += f.axes(plot.x_label, plot.y_label);
   for (std::size_t i = 0; i < plot.series.size(); ++i) out += series_svg(plot.series[i], i, f);
   for (const auto& m : plot.markers) {
-    out += fmt::format("<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"5\" fill=\"none\" stroke=\"#c00\" stroke-width=\"2\">"
-                       "<title>{}</title></circle>\n",
-                       f.px(m.x), f.py(m.y), html_escape(m.label));
+    out += fmt::format(
+        "<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"5\" fill=\"none\" stroke=\"#c00\" stroke-width=\"2\">"
+        "<title>{}</title></circle>\n",
+        f.px(m.x), f.py(m.y), html_escape(m.label));
   }
   out += legend(plot.series);
   return out + "</svg>\n";

@@ -63,7 +63,8 @@ TEST(Additions, DefaultGeometryRuleIsSadWhenThePointIsAtTheSad) {
 
   const TempDir dir;
   testing::write_hand_library(dir.path());
-  testing::replace_in_file(manifest_of(dir), "ssd_cm = 100.0\ndepth_cm = 1.5", "ssd_cm = 95.0\ndepth_cm = 5.0");
+  testing::replace_in_file(manifest_of(dir), "ssd_cm = 100.0\ndepth_cm = 1.5",
+                           "ssd_cm = 95.0\ndepth_cm = 5.0");
   const auto library = load_library(dir.path());
   ASSERT_TRUE(library) << library.error().message();
   const Calibration& c = library->machines.front().beams.front().calibration;
@@ -74,9 +75,10 @@ TEST(Additions, DefaultGeometryRuleIsSadWhenThePointIsAtTheSad) {
 TEST(Additions, EveryOptionalKeyIsReadIntoTheValueTypes) {
   const TempDir dir;
   testing::write_hand_library(dir.path());
-  insert_after(dir, "pdd_ssd_cm = 100.0",
-               "mlc_transmission = 0.016\nmlc_leaf_end_offset_mm = 0.8\nhead_scatter_field = \"jaws_and_mlc\"\n"
-               "ssd_range_cm = [80.0, 120]\nblock_transmission = 0.03\n");
+  insert_after(
+      dir, "pdd_ssd_cm = 100.0",
+      "mlc_transmission = 0.016\nmlc_leaf_end_offset_mm = 0.8\nhead_scatter_field = \"jaws_and_mlc\"\n"
+      "ssd_range_cm = [80.0, 120]\nblock_transmission = 0.03\n");
   insert_after(dir, "depth_cm = 1.5", "geometry = \"SAD\"");
   insert_after(dir, "sad_cm = 100", "aliases = [\"TLH\", \"Test Linac H\"]");
   const auto library = load_library(dir.path());
@@ -104,12 +106,16 @@ TEST(Additions, EveryOptionalKeyIsReadIntoTheValueTypes) {
 
 TEST(Additions, UnusableOptionalValuesAreErrorsNamingTheKey) {
   const std::vector<std::pair<std::string, std::string>> cases = {
-      {"head_scatter_field = \"mlc\"", "beam[1].head_scatter_field: \"mlc\" is not one of \"jaws\", \"jaws_and_mlc\""},
-      {"ssd_range_cm = [120.0, 80.0]", "beam[1].ssd_range_cm: [120, 80]: the first value must be below the second"},
+      {"head_scatter_field = \"mlc\"",
+       "beam[1].head_scatter_field: \"mlc\" is not one of \"jaws\", \"jaws_and_mlc\""},
+      {"ssd_range_cm = [120.0, 80.0]",
+       "beam[1].ssd_range_cm: [120, 80]: the first value must be below the second"},
       {"ssd_range_cm = [80.0]", "beam[1].ssd_range_cm: not an array of two numbers"},
-      {"ssd_range_cm = [800.0, 1200.0]", "beam[1].ssd_range_cm: 800 is outside the plausible range [50, 200]"},
+      {"ssd_range_cm = [800.0, 1200.0]",
+       "beam[1].ssd_range_cm: 800 is outside the plausible range [50, 200]"},
       {"block_transmission = 3.0", "beam[1].block_transmission: 3 is outside the plausible range [0, 0.2]"},
-      {"mlc_leaf_end_offset_mm = 8", "beam[1].mlc_leaf_end_offset_mm: 8 is outside the plausible range [-5, 5]"},
+      {"mlc_leaf_end_offset_mm = 8",
+       "beam[1].mlc_leaf_end_offset_mm: 8 is outside the plausible range [-5, 5]"},
       {"mlc_transmission = \"1.5%\"", "beam[1].mlc_transmission: not a number"},
   };
   for (const auto& [line, expected] : cases) {
@@ -124,8 +130,9 @@ TEST(Additions, UnusableOptionalValuesAreErrorsNamingTheKey) {
   const TempDir dir;
   testing::write_hand_library(dir.path());
   insert_after(dir, "depth_cm = 1.5", "geometry = \"ISO\"");
-  EXPECT_NE(problems_of(validate_library(dir.path())).find("beam[1].calibration.geometry: \"ISO\" is not one of"),
-            std::string::npos);
+  EXPECT_NE(
+      problems_of(validate_library(dir.path())).find("beam[1].calibration.geometry: \"ISO\" is not one of"),
+      std::string::npos);
 }
 
 TEST(Additions, DemoLibraryCarriesEveryAddition) {
@@ -177,16 +184,18 @@ TEST(Additions, WedgeOrientationTableRules) {
     testing::write_text(machine / "6X/w30_profile.csv", out);
   }
   auto report = validate_library(dir.path());
-  EXPECT_NE(problems_of(report).find("warning: row 4: wedge_oar: wedge W30: the profile is higher on the positive side"),
+  EXPECT_NE(problems_of(report).find(
+                "warning: row 4: wedge_oar: wedge W30: the profile is higher on the positive side"),
             std::string::npos)
       << problems_of(report);
   EXPECT_EQ(report.error_count(), 0u);
   // Not 1 on the central axis: an error.
   const std::size_t row = testing::set_cell(machine / "6X/w30_profile.csv", "10", 17, "1.0300");
   report = validate_library(dir.path());
-  EXPECT_NE(problems_of(report).find("row " + std::to_string(row) +
-                                     ", column 17: wedge_oar: wedged off-axis ratio on the central axis is 1.03"),
-            std::string::npos)
+  EXPECT_NE(
+      problems_of(report).find("row " + std::to_string(row) +
+                               ", column 17: wedge_oar: wedged off-axis ratio on the central axis is 1.03"),
+      std::string::npos)
       << problems_of(report);
 }
 

@@ -52,7 +52,7 @@ TEST(CtDensityTables, ChoosesTheStationTableElseTheDefault) {
   ASSERT_NE(tables.for_station("CT-NORTH"), nullptr);
   EXPECT_EQ(tables.for_station("CT-NORTH")->file, "ct/CT-NORTH.csv");
   EXPECT_EQ(tables.for_station(" CT-NORTH  ")->file, "ct/CT-NORTH.csv");  // DICOM padding is not significant
-  EXPECT_EQ(tables.for_station("ct-north")->file, "ct/default.csv");       // otherwise exact
+  EXPECT_EQ(tables.for_station("ct-north")->file, "ct/default.csv");      // otherwise exact
   EXPECT_EQ(tables.for_station("")->file, "ct/default.csv");
   CtDensityTables stations_only;
   stations_only.tables.push_back(tables.tables.back());
@@ -78,7 +78,8 @@ TEST(CtDensityLibrary, StationTablesAreReadAndBelongToTheFingerprint) {
   testing::copy_demo_library(dir.path());
   const auto before = load_library(dir.path());
   ASSERT_TRUE(before);
-  testing::write_text(dir.path() / "ct/CT-NORTH.csv", "hu,relative_electron_density\r\n-1000,0.0\r\n0,1.01\r\n3000,2.4\r\n");
+  testing::write_text(dir.path() / "ct/CT-NORTH.csv",
+                      "hu,relative_electron_density\r\n-1000,0.0\r\n0,1.01\r\n3000,2.4\r\n");
   const auto after = load_library(dir.path());
   ASSERT_TRUE(after) << after.error().message();
   EXPECT_NE(after->sha256_hex, before->sha256_hex);
@@ -115,16 +116,19 @@ TEST(CtDensityLibrary, EveryRuleOfTheFormatIsChecked) {
   // Density falling as HU rises is valid but suspicious: a warning.
   const TempDir dir;
   testing::copy_demo_library(dir.path());
-  testing::write_text(dir.path() / "ct/default.csv", "hu,relative_electron_density\n-1000,0\n0,1\n500,1.3\n700,1.2\n");
+  testing::write_text(dir.path() / "ct/default.csv",
+                      "hu,relative_electron_density\n-1000,0\n0,1\n500,1.3\n700,1.2\n");
   const auto report = validate_library(dir.path());
   EXPECT_EQ(report.error_count(), 0u) << problems_of(report);
-  EXPECT_NE(problems_of(report).find("warning: row 5, column 2: relative_electron_density: density falls from 1.3 to 1.2"),
+  EXPECT_NE(problems_of(report).find(
+                "warning: row 5, column 2: relative_electron_density: density falls from 1.3 to 1.2"),
             std::string::npos)
       << problems_of(report);
   // Something that is not a table in ct/ is named and ignored.
   testing::write_text(dir.path() / "ct/notes.txt", "calibrated 2026");
-  EXPECT_NE(problems_of(validate_library(dir.path())).find("ct/notes.txt: warning: ct: not a .csv table, ignored"),
-            std::string::npos);
+  EXPECT_NE(
+      problems_of(validate_library(dir.path())).find("ct/notes.txt: warning: ct: not a .csv table, ignored"),
+      std::string::npos);
 }
 
 }  // namespace

@@ -79,21 +79,29 @@ TEST(ElectronBeams, EveryElectronRuleIsChecked) {
   };
   const std::vector<Case> cases = {
       {[](const fs::path& m) { testing::set_cell(m / "9E/pdd_a10.csv", "2", 3, "98.00"); }, "9E/pdd_a10.csv",
-       "pdd: 100 at dmax of each column: the maximum of field 6 cm is 99.24 (at depth_cm 1.5), expected 100 within "
+       "pdd: 100 at dmax of each column: the maximum of field 6 cm is 99.24 (at depth_cm 1.5), expected 100 "
+       "within "
        "0.5 %"},
-      {[](const fs::path& m) { testing::set_cell(m / "9E/cutout_a10.csv", "10", 2, "0.990"); }, "9E/cutout_a10.csv",
+      {[](const fs::path& m) { testing::set_cell(m / "9E/cutout_a10.csv", "10", 2, "0.990"); },
+       "9E/cutout_a10.csv",
        "cutout factor of the open applicator field (10 cm) = 0.99, expected 1 within 0.5 %"},
       {[](const fs::path& m) {
          testing::replace_in_file(m / "machine.toml", "effective_ssd_cm = 92.0", "effective_ssd_cm = 80.0");
        },
-       "machine.toml", "applicator A6.effective_ssd_cm: 80 cm differs by -20 % from the standard SSD 100 cm (limit 15 %)"},
-      {[](const fs::path& m) { testing::replace_in_file(m / "machine.toml", "applicator = \"A10\"", "applicator = \"A12\""); },
-       "machine.toml", "beam[1].calibration.applicator: names applicator 'A12', which this beam does not define"},
+       "machine.toml",
+       "applicator A6.effective_ssd_cm: 80 cm differs by -20 % from the standard SSD 100 cm (limit 15 %)"},
+      {[](const fs::path& m) {
+         testing::replace_in_file(m / "machine.toml", "applicator = \"A10\"", "applicator = \"A12\"");
+       },
+       "machine.toml",
+       "beam[1].calibration.applicator: names applicator 'A12', which this beam does not define"},
       {[](const fs::path& m) { testing::replace_in_file(m / "machine.toml", "id = \"A15\"", "id = \"A6\""); },
        "machine.toml", "applicator id 'A6' appears twice"},
       {[](const fs::path& m) { testing::replace_in_file(m / "machine.toml", "field_cm = 15.0\n", ""); },
        "machine.toml", "beam[1].applicator[3].field_cm: missing"},
-      {[](const fs::path& m) { testing::replace_in_file(m / "machine.toml", "pdd = \"9E/pdd_a6.csv\"\n", ""); },
+      {[](const fs::path& m) {
+         testing::replace_in_file(m / "machine.toml", "pdd = \"9E/pdd_a6.csv\"\n", "");
+       },
        "machine.toml", "beam[1].applicator[1].pdd: missing"},
       {[](const fs::path& m) { testing::set_cell(m / "9E/pdd_a6.csv", "3", 2, "150"); }, "9E/pdd_a6.csv",
        "pdd: pdd 150 outside the plausible range [0, 100.5]"},

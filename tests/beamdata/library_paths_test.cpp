@@ -24,10 +24,12 @@ void expect_refused_path(const std::string& path, const std::string& reason) {
   SCOPED_TRACE(path);
   const TempDir dir;
   testing::write_hand_library(dir.path());
-  testing::replace_in_file(dir.path() / "TEST-LINAC-H/machine.toml", "tmr = \"x6/tmr.csv\"", "tmr = \"" + path + "\"");
+  testing::replace_in_file(dir.path() / "TEST-LINAC-H/machine.toml", "tmr = \"x6/tmr.csv\"",
+                           "tmr = \"" + path + "\"");
   const auto library = load_library(dir.path());
   ASSERT_FALSE(library);
-  EXPECT_NE(library.error().message().find("beam[1].tables.tmr"), std::string::npos) << library.error().message();
+  EXPECT_NE(library.error().message().find("beam[1].tables.tmr"), std::string::npos)
+      << library.error().message();
   EXPECT_NE(library.error().message().find(reason), std::string::npos) << library.error().message();
 }
 
@@ -41,7 +43,8 @@ TEST(LibraryPaths, TablePathsMayNotLeaveTheMachineFolder) {
 
 TEST(LibraryPaths, ASymbolicLinkLeadingOutIsRefusedOneInsideIsAccepted) {
   const TempDir outside;
-  testing::write_text(outside.path() / "tmr.csv", testing::read_text(testing::demo_library() / "FERN-LINAC-1/6X/tmr.csv"));
+  testing::write_text(outside.path() / "tmr.csv",
+                      testing::read_text(testing::demo_library() / "FERN-LINAC-1/6X/tmr.csv"));
   const TempDir dir;
   testing::write_hand_library(dir.path());
   const fs::path machine = dir.path() / "TEST-LINAC-H";
@@ -49,7 +52,8 @@ TEST(LibraryPaths, ASymbolicLinkLeadingOutIsRefusedOneInsideIsAccepted) {
   testing::replace_in_file(machine / "machine.toml", "tmr = \"x6/tmr.csv\"", "tmr = \"x6/linked_tmr.csv\"");
   const auto refused = load_library(dir.path());
   ASSERT_FALSE(refused);
-  EXPECT_NE(refused.error().message().find("is a symbolic link to " + fs::canonical(outside.path() / "tmr.csv").string()),
+  EXPECT_NE(refused.error().message().find("is a symbolic link to " +
+                                           fs::canonical(outside.path() / "tmr.csv").string()),
             std::string::npos)
       << refused.error().message();
   // A link that stays inside the machine folder is fine (the bytes are what is hashed).
@@ -62,7 +66,8 @@ TEST(LibraryPaths, ASymbolicLinkLeadingOutIsRefusedOneInsideIsAccepted) {
   testing::write_text(outside.path() / "ct.csv", "hu,relative_electron_density\n-1000,0\n0,1\n");
   fs::create_symlink(outside.path() / "ct.csv", dir.path() / "ct/default.csv");
   const auto ct = validate_library(dir.path());
-  EXPECT_NE(problems_of(ct).find("ct/default.csv: ct: 'default.csv' is a symbolic link to"), std::string::npos)
+  EXPECT_NE(problems_of(ct).find("ct/default.csv: ct: 'default.csv' is a symbolic link to"),
+            std::string::npos)
       << problems_of(ct);
 }
 
@@ -78,7 +83,8 @@ TEST(LibraryPaths, DuplicateBeamIdsAreRefused) {
   second.replace(second.find("energy_mv = 6"), 13, "energy_mv = 10");
   testing::write_text(manifest, text + "\n" + second);
   const auto report = validate_library(dir.path());
-  EXPECT_NE(problems_of(report).find("beam[2].id: beam id 'X6' appears twice"), std::string::npos) << problems_of(report);
+  EXPECT_NE(problems_of(report).find("beam[2].id: beam id 'X6' appears twice"), std::string::npos)
+      << problems_of(report);
   EXPECT_FALSE(load_library(dir.path()));
 }
 

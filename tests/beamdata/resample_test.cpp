@@ -44,9 +44,9 @@ TEST(Resample, MonotoneCubicDoesNotOvershootAStep) {
 
 TEST(Resample, MonotoneCubicAgreesWithScipyPchip) {
   // Irregular positions and a non-monotone curve (a depth dose with its build-up and fall-off).
-  const std::vector<std::pair<double, double>> points = {{0.0, 35.0}, {0.3, 58.0}, {0.65, 79.0}, {1.1, 94.0},
-                                                         {1.5, 100.0}, {2.2, 97.5}, {3.0, 93.1}, {4.6, 85.0},
-                                                         {5.1, 82.5}, {7.9, 70.2}, {10.0, 62.0}};
+  const std::vector<std::pair<double, double>> points = {{0.0, 35.0},  {0.3, 58.0}, {0.65, 79.0}, {1.1, 94.0},
+                                                         {1.5, 100.0}, {2.2, 97.5}, {3.0, 93.1},  {4.6, 85.0},
+                                                         {5.1, 82.5},  {7.9, 70.2}, {10.0, 62.0}};
   const std::vector<double> queries = {0.1, 0.2, 0.5, 0.9, 1.3, 1.7, 2.0, 2.6, 3.8, 4.9, 6.0, 9.1};
   std::ostringstream script;
   script << "from scipy.interpolate import PchipInterpolator\nx=[";
@@ -57,7 +57,8 @@ TEST(Resample, MonotoneCubicAgreesWithScipyPchip) {
   for (const double q : queries) script << q << ",";
   script << "]: print(repr(float(p(q))))\n";
   const auto result = test::run_command("/usr/bin/python3 -c " + test::quote(script.str()));
-  ASSERT_EQ(result.exit_code, 0) << "python3-scipy is needed (tools/install-deps installs it): " << result.err;
+  ASSERT_EQ(result.exit_code, 0) << "python3-scipy is needed (tools/install-deps installs it): "
+                                 << result.err;
   std::istringstream lines(result.out);
   const Curve curve(points);
   for (const double q : queries) {

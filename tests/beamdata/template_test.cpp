@@ -27,21 +27,23 @@ TEST(LibraryTemplate, WritesEveryFileAndRefusesToOverwrite) {
   const auto written = write_library_template(request_in(dir));
   ASSERT_TRUE(written) << written.error().message();
   const fs::path m = dir.path() / "ALDER-LINAC-2";
-  for (const auto* f : {"machine.toml", "README.md", "6X/pdd.csv", "6X/tmr.csv", "6X/sc.csv", "6X/sp.csv", "6X/oar.csv",
-                        "15X/pdd.csv", "15X/oar.csv"})
+  for (const auto* f : {"machine.toml", "README.md", "6X/pdd.csv", "6X/tmr.csv", "6X/sc.csv", "6X/sp.csv",
+                        "6X/oar.csv", "15X/pdd.csv", "15X/oar.csv"})
     EXPECT_TRUE(fs::is_regular_file(m / f)) << f;
   EXPECT_TRUE(fs::is_regular_file(dir.path() / "ct/default.csv"));
   EXPECT_EQ(written->size(), 13u);
   const std::string manifest = testing::read_text(m / "machine.toml");
   // Every key of the format is there: required ones as placeholders, optional ones commented.
-  for (const auto* key : {"machine = \"ALDER-LINAC-2\"", "# aliases", "sad_cm = nan", "dmax_cm = nan", "pdd_ssd_cm = nan",
-                          "# mlc_transmission", "# mlc_leaf_end_offset_mm", "# head_scatter_field", "# ssd_range_cm",
-                          "# block_transmission", "output_cgy_per_mu = nan", "# geometry", "pdd = \"6X/pdd.csv\"",
-                          "id = \"W30\"", "kind = \"?\"", "# table = \"6X/wf_w30.csv\"",
-                          "# orientation_table = \"6X/w30_profile.csv\"", "# [[beam.tray]]",
-                          "equivalent square of the irradiated field at the isocentre plane"})
+  for (const auto* key :
+       {"machine = \"ALDER-LINAC-2\"", "# aliases", "sad_cm = nan", "dmax_cm = nan", "pdd_ssd_cm = nan",
+        "# mlc_transmission", "# mlc_leaf_end_offset_mm", "# head_scatter_field", "# ssd_range_cm",
+        "# block_transmission", "output_cgy_per_mu = nan", "# geometry", "pdd = \"6X/pdd.csv\"",
+        "id = \"W30\"", "kind = \"?\"", "# table = \"6X/wf_w30.csv\"",
+        "# orientation_table = \"6X/w30_profile.csv\"", "# [[beam.tray]]",
+        "equivalent square of the irradiated field at the isocentre plane"})
     EXPECT_NE(manifest.find(key), std::string::npos) << key;
-  EXPECT_NE(testing::read_text(m / "README.md").find("does not replace, the physicist's review"), std::string::npos);
+  EXPECT_NE(testing::read_text(m / "README.md").find("does not replace, the physicist's review"),
+            std::string::npos);
   const auto again = write_library_template(request_in(dir));
   ASSERT_FALSE(again);
   EXPECT_NE(again.error().message().find("exists already"), std::string::npos);

@@ -100,8 +100,9 @@ TEST(BeamdataDeriveTmrCli, CellsThatNeedExtrapolationAreLeftEmptyAndTheCommandFa
   EXPECT_EQ(refused.exit_code, 3);
   EXPECT_NE(refused.err.find("left empty"), std::string::npos) << refused.err;
   const std::string text = bt::read_text(out);
-  EXPECT_NE(text.find("# EMPTY (would need extrapolation) at depth_cm 10.00, field_cm 3.0: pdd field_cm 2.727"),
-            std::string::npos)
+  EXPECT_NE(
+      text.find("# EMPTY (would need extrapolation) at depth_cm 10.00, field_cm 3.0: pdd field_cm 2.727"),
+      std::string::npos)
       << text.substr(0, 800);
   EXPECT_NE(text.find("\n10,,"), std::string::npos);  // the depth-10 row starts with an empty 3 cm cell
   // The empty cells are what validate reports as missing: the table cannot be used by mistake.
@@ -112,8 +113,9 @@ TEST(BeamdataDeriveTmrCli, CellsThatNeedExtrapolationAreLeftEmptyAndTheCommandFa
   EXPECT_EQ(allowed.exit_code, 0) << allowed.err;
   EXPECT_NE(allowed.err.find("warning:"), std::string::npos);
   const std::string note = bt::read_text(dir.path() / "tmr.csv.provenance.toml");
-  EXPECT_NE(note.find("[[cell]]\ndepth_cm = 10\nfield_cm = 3\nextrapolated = true\nhow = \"pdd field_cm 2.727"),
-            std::string::npos)
+  EXPECT_NE(
+      note.find("[[cell]]\ndepth_cm = 10\nfield_cm = 3\nextrapolated = true\nhow = \"pdd field_cm 2.727"),
+      std::string::npos)
       << note.substr(0, 1200);
   EXPECT_NE(note.find("output_sha256 = "), std::string::npos);
   EXPECT_TRUE(beamdata::read_table2d(out, "tmr", "depth_cm", "field_cm"));

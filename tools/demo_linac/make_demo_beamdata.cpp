@@ -148,13 +148,14 @@ bool write_beam_tables(const fs::path& machine_dir, const demo_linac::BeamModel&
                                        notice("phantom scatter factor vs field side in the phantom (cm)"), 4);
   });
   for (const auto& wedge : profiled_wedges) {
-    const auto profile = tabulate(dir + "/" + lower(wedge) + "_profile.csv", "wedge_oar", "wedge_axis_cm",
-                                  oar_depths_cm(beam), wedge_axis_cm(), 4,
-                                  [&](double d, double x) { return demo_linac::wedge_oar(beam, wedge, d, x); });
+    const auto profile = tabulate(
+        dir + "/" + lower(wedge) + "_profile.csv", "wedge_oar", "wedge_axis_cm", oar_depths_cm(beam),
+        wedge_axis_cm(), 4, [&](double d, double x) { return demo_linac::wedge_oar(beam, wedge, d, x); });
     ok &= write(machine_dir / profile.file(), [&](std::ostream& o) {
       countersign::beamdata::write_table(
           o, profile,
-          notice("wedge " + wedge + " wedged off-axis ratio; columns: signed distance along the wedge gradient at "
+          notice("wedge " + wedge +
+                 " wedged off-axis ratio; columns: signed distance along the wedge gradient at "
                  "the isocentre plane (cm), thin end negative"),
           4);
     });

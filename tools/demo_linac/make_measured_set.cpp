@@ -69,18 +69,17 @@ struct Writer {
   // Empty strings leave a cell empty; PDD rows carry the SSD of the scan.
   void row(const std::string& quantity, const std::string& wedge, const std::string& field_cm,
            const std::string& depth_mm, const std::string& off_axis_mm, double value) {
-    out << quantity << ',' << beam << ',' << wedge << ',' << field_cm << ',' << depth_mm << ',' << off_axis_mm << ','
-        << (quantity == "pdd" ? "100" : "") << ',' << std::fixed << std::setprecision(5) << value << std::defaultfloat
-        << '\n';
+    out << quantity << ',' << beam << ',' << wedge << ',' << field_cm << ',' << depth_mm << ',' << off_axis_mm
+        << ',' << (quantity == "pdd" ? "100" : "") << ',' << std::fixed << std::setprecision(5) << value
+        << std::defaultfloat << '\n';
   }
 };
 
 // Depth-scan positions with a point at dmax itself (the normalisation depth is always measured).
 std::vector<double> depth_positions(Noise& noise, double dmax_cm) {
   std::vector<double> x = scan_positions(noise, 0.0, 30.5, 0.1, 4.0, 0.4);
-  const auto nearest = std::min_element(x.begin(), x.end(), [&](double a, double b) {
-    return std::abs(a - dmax_cm) < std::abs(b - dmax_cm);
-  });
+  const auto nearest = std::min_element(
+      x.begin(), x.end(), [&](double a, double b) { return std::abs(a - dmax_cm) < std::abs(b - dmax_cm); });
   *nearest = dmax_cm;
   return x;
 }
@@ -102,7 +101,8 @@ void profiles(Writer& w, Noise& noise, const demo_linac::BeamModel& m) {
   for (const double d : {0.0, m.dmax_cm, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0}) {
     const double scale = 0.9 + 0.2 * noise.uniform();
     for (const double x : scan_positions(noise, -20.6, 20.6, 0.3, 0.0, 0.3))
-      w.row("profile", "", "40", mm(d), mm(x), scale * demo_linac::oar(m, d, std::abs(x)) * noise.factor(scan_noise));
+      w.row("profile", "", "40", mm(d), mm(x),
+            scale * demo_linac::oar(m, d, std::abs(x)) * noise.factor(scan_noise));
     const double wedge_scale = 0.5 + 0.2 * noise.uniform();
     for (const double x : scan_positions(noise, -15.4, 15.4, 0.3, 0.0, 0.3))
       w.row("wedge_profile", "W30", "30", mm(d), mm(x),
@@ -118,7 +118,8 @@ void point_factors(Writer& w, Noise& noise, const demo_linac::BeamModel& m) {
     w.row("scp", "", f, mm(10.0), "",
           reading_nc * demo_linac::sc(m, field) * demo_linac::sp(m, field) * noise.factor(point_noise));
   }
-  w.row("wedge_factor", "W30", "10", mm(10.0), "", demo_linac::wedge_factor(m, "W30") * noise.factor(point_noise));
+  w.row("wedge_factor", "W30", "10", mm(10.0), "",
+        demo_linac::wedge_factor(m, "W30") * noise.factor(point_noise));
 }
 
 }  // namespace
@@ -131,9 +132,11 @@ int main(int argc, char** argv) {
   const std::filesystem::path file = argv[1];
   std::filesystem::create_directories(file.parent_path());
   std::ofstream out(file, std::ios::binary);
-  out << "# SYNTHETIC measured data of the INVENTED linac FERN-LINAC-1 (fictional Fernhollow Radiotherapy Unit),\n"
+  out << "# SYNTHETIC measured data of the INVENTED linac FERN-LINAC-1 (fictional Fernhollow Radiotherapy "
+         "Unit),\n"
       << "# sampled from tools/demo_linac/model.hpp with noise (+-0.2 % scans, +-0.1 % point factors) on\n"
-      << "# irregular positions by tools/demo_linac/make_measured_set. Not a measurement; not for clinical use.\n"
+      << "# irregular positions by tools/demo_linac/make_measured_set. Not a measurement; not for clinical "
+         "use.\n"
       << "quantity,beam,wedge,field_cm,depth_mm,off_axis_mm,ssd_cm,value\n";
   Noise noise;
   for (const double energy : {6.0, 10.0}) {

@@ -219,8 +219,7 @@ std::vector<Defect> defects() {
            "inconsistent", "control point positions for MLCY, which the beam does not declare",
            [](D& ds) { set(device_position(ds, "MLCX"), DCM_RTBeamLimitingDeviceType, "MLCY"); }),
       attr("leaf_boundaries_count_mismatch.dcm", mlc, DCM_LeafPositionBoundaries, "LeafPositionBoundaries",
-           "inconsistent",
-           fmt::format("{0} leaf boundaries for {0} pairs", demo_linac::mlc_leaf_pairs),
+           "inconsistent", fmt::format("{0} leaf boundaries for {0} pairs", demo_linac::mlc_leaf_pairs),
            [](D& ds) {
              DcmItem& device = item_at(beam(ds), DCM_BeamLimitingDeviceSequence, 2);
              OFString all;

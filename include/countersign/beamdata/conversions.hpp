@@ -57,7 +57,8 @@ struct DerivedTable {
 // at the node times the F factor; cells outside the PDD table are marked extrapolated.
 [[nodiscard]] DerivedTable rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ssd_cm,
                                              double dmax_cm, const std::vector<double>& depths_cm,
-                                             const std::vector<double>& fields_cm, const std::string& output_file);
+                                             const std::vector<double>& fields_cm,
+                                             const std::string& output_file);
 
 // One node of a measured TMR table against the TMR derived from the PDD table.
 struct TmrComparison {

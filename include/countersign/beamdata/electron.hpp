@@ -31,10 +31,10 @@ struct ApplicatorData {
 };
 
 struct ElectronBeamData {
-  std::string id;                   // free text, shown in reports
-  double energy_mev = 0.0;          // manifest key energy_mv; compared with Nominal Beam Energy
-  double dmax_cm = 0.0;             // reference applicator, standard SSD
-  double pdd_ssd_cm = 0.0;          // the standard SSD of the tables
+  std::string id;           // free text, shown in reports
+  double energy_mev = 0.0;  // manifest key energy_mv; compared with Nominal Beam Energy
+  double dmax_cm = 0.0;     // reference applicator, standard SSD
+  double pdd_ssd_cm = 0.0;  // the standard SSD of the tables
   ElectronCalibration calibration;
   std::vector<ApplicatorData> applicators;
 

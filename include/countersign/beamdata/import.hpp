@@ -35,16 +35,16 @@ struct ImportOptions {
   std::filesystem::path machine_folder;  // holds machine.toml, which names the beam's tables
   std::string beam_id;
   ResamplingMethod method = ResamplingMethod::monotone_cubic;
-  std::vector<GapLimit> gap_limits;      // overrides of the defaults
-  std::optional<double> dmax_cm;         // else the manifest's dmax_cm
+  std::vector<GapLimit> gap_limits;  // overrides of the defaults
+  std::optional<double> dmax_cm;     // else the manifest's dmax_cm
 };
 
 struct ImportedTable {
-  std::string file;           // as named in the manifest
-  std::string quantity;       // "pdd", "tmr", "oar", "sc", "sp", "wedge_factor", "wedge_oar"
+  std::string file;      // as named in the manifest
+  std::string quantity;  // "pdd", "tmr", "oar", "sc", "sp", "wedge_factor", "wedge_oar"
   std::size_t measured_points = 0;
-  std::string method;         // resampling and normalisation, one sentence
-  std::string sha256_hex;     // of the written file
+  std::string method;      // resampling and normalisation, one sentence
+  std::string sha256_hex;  // of the written file
 };
 
 struct ImportResult {

@@ -30,7 +30,7 @@ struct Calibration {
   double output_cgy_per_mu = 0.0;  // dose per MU at the calibration point
   double field_cm = 0.0;           // reference square field side
   double ssd_cm = 0.0;
-  double depth_cm = 0.0;           // d0; source-to-calibration-point distance = ssd_cm + depth_cm
+  double depth_cm = 0.0;  // d0; source-to-calibration-point distance = ssd_cm + depth_cm
   // `geometry` as the manifest states it; nullopt when the key is absent.
   std::optional<CalibrationGeometry> stated_geometry{};
   // The geometry in force: the stated one, else default_calibration_geometry() (set by the loader).
@@ -44,19 +44,19 @@ struct Calibration {
 enum class WedgeKind { physical, dynamic };
 
 struct WedgeData {
-  std::string id;                       // compared with Wedge ID (300A,00D4)
+  std::string id;  // compared with Wedge ID (300A,00D4)
   double angle_deg = 0.0;
   WedgeKind kind = WedgeKind::physical;
-  std::optional<double> factor;         // a constant factor, or ...
-  std::optional<Table2D> table;         // ... a table depth_cm x field_cm (equivalent square of the
-                                        // irradiated field at the isocentre plane)
+  std::optional<double> factor;  // a constant factor, or ...
+  std::optional<Table2D> table;  // ... a table depth_cm x field_cm (equivalent square of the
+                                 // irradiated field at the isocentre plane)
   // Optional: the wedged off-axis ratio, depth_cm x signed distance (cm) along the wedge gradient
   // at the isocentre plane, thin end negative (column axis "wedge_axis_cm").
   std::optional<Table2D> orientation_table{};
 };
 
 struct TrayData {
-  std::string id;                       // compared with Block Tray ID (300A,00F5)
+  std::string id;  // compared with Block Tray ID (300A,00F5)
   double factor = 1.0;
 };
 
@@ -75,25 +75,25 @@ struct SsdRange {
 };
 
 struct BeamData {
-  std::string id;                       // free text, shown in reports
-  std::string radiation;                // "PHOTON" (compared with Radiation Type)
-  double energy_mv = 0.0;               // compared with Nominal Beam Energy of control point 0
+  std::string id;          // free text, shown in reports
+  std::string radiation;   // "PHOTON" (compared with Radiation Type)
+  double energy_mv = 0.0;  // compared with Nominal Beam Energy of control point 0
   double dmax_cm = 0.0;
-  double pdd_ssd_cm = 0.0;              // the SSD at which the PDD table was measured
+  double pdd_ssd_cm = 0.0;  // the SSD at which the PDD table was measured
   Calibration calibration;
-  Table2D pdd;                          // percent, depth_cm x field at the surface (cm)
-  Table2D tmr;                          // depth_cm x field at depth (cm)
-  Table1D sc;                           // vs collimator field at the isocentre (cm)
-  Table1D sp;                           // vs field in the phantom (cm)
-  std::optional<Table2D> oar;           // depth_cm x off-axis distance at the isocentre plane (cm)
+  Table2D pdd;                             // percent, depth_cm x field at the surface (cm)
+  Table2D tmr;                             // depth_cm x field at depth (cm)
+  Table1D sc;                              // vs collimator field at the isocentre (cm)
+  Table1D sp;                              // vs field in the phantom (cm)
+  std::optional<Table2D> oar;              // depth_cm x off-axis distance at the isocentre plane (cm)
   std::optional<double> mlc_transmission;  // fraction of open-field dose under closed leaves (optional key)
   std::vector<WedgeData> wedges;
   std::vector<TrayData> trays;
   // Optional keys (FORMAT.md "Optional keys"); nullopt when absent.
-  std::optional<double> mlc_leaf_end_offset_mm{};       // each leaf's effective tip beyond its nominal one
+  std::optional<double> mlc_leaf_end_offset_mm{};        // each leaf's effective tip beyond its nominal one
   std::optional<HeadScatterField> head_scatter_field{};  // as stated; see head_scatter_field_in_force()
   std::optional<SsdRange> ssd_range_cm{};
-  std::optional<double> block_transmission{};           // default for blocks without (300A,0102)
+  std::optional<double> block_transmission{};  // default for blocks without (300A,0102)
 
   [[nodiscard]] const WedgeData* wedge(const std::string& id) const;
   [[nodiscard]] const TrayData* tray(const std::string& id) const;
@@ -104,11 +104,11 @@ struct BeamData {
 };
 
 struct Machine {
-  std::string name;                     // compared with Treatment Machine Name (300A,00B2), exact
-  std::vector<std::string> aliases{};   // other exact, case-sensitive names of the same machine
+  std::string name;                    // compared with Treatment Machine Name (300A,00B2), exact
+  std::vector<std::string> aliases{};  // other exact, case-sensitive names of the same machine
   double sad_cm = 0.0;
-  std::filesystem::path manifest;       // path of machine.toml
-  std::vector<BeamData> beams;          // photon beams
+  std::filesystem::path manifest;  // path of machine.toml
+  std::vector<BeamData> beams;     // photon beams
   std::vector<ElectronBeamData> electron_beams{};
 
   // True when `treatment_machine_name` is the name or one of the aliases (exact, case-sensitive).
@@ -129,9 +129,9 @@ struct BeamMatch {
 struct Library {
   std::filesystem::path root;
   std::vector<Machine> machines;
-  CtDensityTables ct{};                 // <library>/ct/*.csv; empty when the library has none
-  std::string sha256_hex;               // over the manifests and every table they name, fixed order
-  std::vector<Problem> warnings;        // findings that do not stop use (validation.hpp), for reports
+  CtDensityTables ct{};           // <library>/ct/*.csv; empty when the library has none
+  std::string sha256_hex;         // over the manifests and every table they name, fixed order
+  std::vector<Problem> warnings;  // findings that do not stop use (validation.hpp), for reports
 
   // The machine whose name or alias equals `name` (exact, case-sensitive).
   [[nodiscard]] const Machine* machine(const std::string& name) const;

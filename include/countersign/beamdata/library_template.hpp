@@ -30,12 +30,13 @@ struct TemplateRequest {
   std::filesystem::path library_folder;  // the machine folder is library_folder / machine
   std::string machine;                   // Treatment Machine Name (300A,00B2), exact
   std::vector<double> photon_energies_mv;
-  std::vector<std::string> wedges;       // wedge ids, each on every beam
+  std::vector<std::string> wedges;  // wedge ids, each on every beam
   TemplateGrid grid = default_template_grid();
 };
 
 // Writes the template; refuses to overwrite an existing machine folder. Returns the files written.
-[[nodiscard]] Expected<std::vector<std::filesystem::path>> write_library_template(const TemplateRequest& request);
+[[nodiscard]] Expected<std::vector<std::filesystem::path>> write_library_template(
+    const TemplateRequest& request);
 
 // The beam id the template gives a photon energy: "6X", "10X", "6.5X".
 [[nodiscard]] std::string template_beam_id(double energy_mv);

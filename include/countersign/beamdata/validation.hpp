@@ -25,7 +25,7 @@ struct ValidationReport {
   std::vector<Problem> problems;  // errors and warnings, in the order found
   std::string sha256_hex;         // library fingerprint; empty when no manifest was readable
   std::size_t machine_count = 0;
-  std::size_t beam_count = 0;     // every [[beam]] of every manifest, complete or not
+  std::size_t beam_count = 0;                  // every [[beam]] of every manifest, complete or not
   std::size_t consistency_nodes_compared = 0;  // TMR nodes at depth >= dmax compared with PDD + Sp
   std::size_t consistency_nodes_skipped = 0;   // nodes whose derivation would need extrapolation
   // Everything that could be read, complete or not (tables that could not be read are empty);

@@ -24,9 +24,8 @@ struct BeamdataReportOptions {
                                                const BeamdataReportOptions& options = {});
 
 // Writes the page (temporary file, then rename); errors name the file.
-[[nodiscard]] Expected<std::filesystem::path> write_beamdata_report(const beamdata::ValidationReport& report,
-                                                                    const std::filesystem::path& library_folder,
-                                                                    const std::filesystem::path& html_file,
-                                                                    const BeamdataReportOptions& options = {});
+[[nodiscard]] Expected<std::filesystem::path> write_beamdata_report(
+    const beamdata::ValidationReport& report, const std::filesystem::path& library_folder,
+    const std::filesystem::path& html_file, const BeamdataReportOptions& options = {});
 
 }  // namespace countersign::report
