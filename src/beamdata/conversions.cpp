@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <sstream>
 #include <stdexcept>
 
 namespace countersign::beamdata {
@@ -29,6 +30,7 @@ double inverse_square_to_dmax(double depth_cm, double ssd_cm, double dmax_cm) {
 struct DerivedTmrCell {
   double tmr = 0.0;
   bool extrapolated = false;
+  std::string how;
 };
 
 // TMR at (depth, field at depth) from the PDD and Sp tables: the surface field that diverges to
@@ -40,8 +42,9 @@ DerivedTmrCell derive_tmr_cell(const Table2D& pdd, const Table1D& sp, double pdd
   const Lookup p = pdd.at(depth_cm, surface_field_cm);
   const Lookup sp_d = sp.at(field_at_depth);
   const Lookup sp_dm = sp.at(field_at_dmax);
-  return {tmr_from_pdd(p.value, depth_cm, pdd_ssd_cm, dmax_cm, sp_d.value, sp_dm.value),
-          p.extrapolated() || sp_d.extrapolated() || sp_dm.extrapolated()};
+  const bool extrapolated = p.extrapolated() || sp_d.extrapolated() || sp_dm.extrapolated();
+  return {tmr_from_pdd(p.value, depth_cm, pdd_ssd_cm, dmax_cm, sp_d.value, sp_dm.value), extrapolated,
+          extrapolated ? extrapolation_text({p, sp_d, sp_dm}) : std::string{}};
 }
 }  // namespace
 
@@ -65,16 +68,18 @@ DerivedTable derive_tmr_table(const Table2D& pdd, const Table1D& sp, double pdd_
                               const std::vector<double>& fields_at_depth_cm, const std::string& output_file) {
   std::vector<double> values;
   std::vector<bool> extrapolated;
+  std::vector<std::string> how;
   for (const double depth : pdd.rows()) {
     for (const double field : fields_at_depth_cm) {
-      const DerivedTmrCell cell = derive_tmr_cell(pdd, sp, pdd_ssd_cm, dmax_cm, depth, field);
+      DerivedTmrCell cell = derive_tmr_cell(pdd, sp, pdd_ssd_cm, dmax_cm, depth, field);
       values.push_back(cell.tmr);
       extrapolated.push_back(cell.extrapolated);
+      how.push_back(std::move(cell.how));
     }
   }
   return DerivedTable{Table2D{output_file, "tmr", pdd.row_axis_name(), pdd.rows(), "field_cm",
                               fields_at_depth_cm, std::move(values)},
-                      std::move(extrapolated)};
+                      std::move(extrapolated), std::move(how)};
 }
 
 Table2D rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ssd_cm, double dmax_cm,
@@ -87,6 +92,40 @@ Table2D rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ss
   return Table2D{
       output_file,      "pdd", pdd.row_axis_name(), pdd.rows(), pdd.column_axis_name(), pdd.columns(),
       std::move(values)};
+}
+
+DerivedTable rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ssd_cm, double dmax_cm,
+                               const std::vector<double>& depths_cm, const std::vector<double>& fields_cm,
+                               const std::string& output_file) {
+  std::vector<double> values;
+  std::vector<bool> extrapolated;
+  std::vector<std::string> how;
+  for (const double depth : depths_cm) {
+    const double f = mayneord_f_factor(new_ssd_cm, table_ssd_cm, dmax_cm, depth);
+    for (const double field : fields_cm) {
+      const Lookup p = pdd.at(depth, field);
+      values.push_back(f * p.value);
+      extrapolated.push_back(p.extrapolated());
+      how.push_back(p.extrapolated() ? extrapolation_text({p}) : std::string{});
+    }
+  }
+  return DerivedTable{Table2D{output_file, "pdd", pdd.row_axis_name(), depths_cm, pdd.column_axis_name(),
+                              fields_cm, std::move(values)},
+                      std::move(extrapolated), std::move(how)};
+}
+
+std::string extrapolation_text(const std::vector<Lookup>& lookups) {
+  std::string text;
+  for (const Lookup& l : lookups) {
+    for (const AxisBracket& a : l.axes) {
+      if (!a.extrapolated) continue;
+      const double end = a.query < a.lower_node ? a.lower_node : a.upper_node;
+      std::ostringstream part;
+      part << l.quantity << ' ' << a.axis << ' ' << a.query << " beyond the table's end node " << end;
+      text += (text.empty() ? "" : "; ") + part.str();
+    }
+  }
+  return text;
 }
 
 std::vector<TmrComparison> compare_tmr(const Table2D& measured_tmr, const Table2D& pdd, const Table1D& sp,

@@ -2,6 +2,7 @@
 
 #include "csv_reader.hpp"
 
+#include <cmath>
 #include <fstream>
 #include <iomanip>
 #include <ostream>
@@ -61,7 +62,10 @@ void write_table(std::ostream& out, const Table2D& table, const std::vector<std:
   for (std::size_t r = 0; r < table.rows().size(); ++r) {
     out << axis_text(table.rows()[r]);
     for (std::size_t c = 0; c < table.columns().size(); ++c) {
-      out << ',' << std::fixed << std::setprecision(decimals) << table.cell(r, c) << std::defaultfloat;
+      out << ',';
+      // A cell without a value (NaN) is written empty, so that no reader takes it for data.
+      if (std::isfinite(table.cell(r, c)))
+        out << std::fixed << std::setprecision(decimals) << table.cell(r, c) << std::defaultfloat;
     }
     out << '\n';
   }
@@ -72,8 +76,10 @@ void write_table(std::ostream& out, const Table1D& table, const std::vector<std:
   write_comments(out, comments);
   out << table.axis_name() << ',' << table.quantity() << '\n';
   for (std::size_t i = 0; i < table.axis().size(); ++i) {
-    out << axis_text(table.axis()[i]) << ',' << std::fixed << std::setprecision(decimals) << table.values()[i]
-        << std::defaultfloat << '\n';
+    out << axis_text(table.axis()[i]) << ',';
+    if (std::isfinite(table.values()[i]))
+      out << std::fixed << std::setprecision(decimals) << table.values()[i] << std::defaultfloat;
+    out << '\n';
   }
 }
 

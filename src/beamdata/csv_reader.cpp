@@ -1,8 +1,10 @@
 #include "csv_reader.hpp"
 
+#include <algorithm>
 #include <array>
 #include <charconv>
 #include <cmath>
+#include <functional>
 
 namespace countersign::beamdata::detail {
 
@@ -54,19 +56,19 @@ std::vector<Line> split_lines(std::string_view text) {
 // Parses a whole cell as a finite decimal number, or records a problem and returns nothing.
 std::optional<double> number(const std::string& cell, const TableSource& source, std::size_t line,
                              std::size_t column, std::vector<Problem>& problems) {
-  const auto problem = [&](std::string message) {
-    problems.push_back(
-        Problem{source.problem_file, std::nullopt, line, column, source.quantity, std::move(message)});
+  const auto problem = [&](std::string message, std::string rule) {
+    problems.push_back(Problem{source.problem_file, std::nullopt, line, column, source.quantity,
+                               std::move(message), Severity::error, std::move(rule)});
     return std::optional<double>{};
   };
-  if (cell.empty()) return problem("missing value");
+  if (cell.empty()) return problem("missing value", "missing value");
   double value = 0.0;
   const char* begin = cell.data();
   const char* end = cell.data() + cell.size();
   if (*begin == '+') ++begin;
   const auto [ptr, ec] = std::from_chars(begin, end, value);
-  if (ec != std::errc{} || ptr != end) return problem("'" + cell + "' is not a number");
-  if (!std::isfinite(value)) return problem("'" + cell + "' is not a finite number");
+  if (ec != std::errc{} || ptr != end) return problem("'" + cell + "' is not a number", "not a number");
+  if (!std::isfinite(value)) return problem("'" + cell + "' is not a finite number", "not a finite number");
   return value;
 }
 
@@ -153,7 +155,8 @@ Read2D parse_table2d(std::string_view text, const TableSource& source, const std
   return result;
 }
 
-Read1D parse_table1d(std::string_view text, const TableSource& source, std::vector<Problem>& problems) {
+Read1D parse_table1d(std::string_view text, const TableSource& source, std::vector<Problem>& problems,
+                     const std::string& axis_name) {
   Read1D result;
   const std::size_t problems_before = problems.size();
   const std::vector<Line> lines = split_lines(text);
@@ -164,9 +167,10 @@ Read1D parse_table1d(std::string_view text, const TableSource& source, std::vect
   }
   const Line& header = lines.front();
   result.header_line = header.number;
-  if (header.cells.size() != 2 || header.cells[0] != "field_cm" || header.cells[1] != source.quantity) {
+  if (header.cells.size() != 2 || header.cells[0] != axis_name || header.cells[1] != source.quantity) {
     problems.push_back(Problem{source.problem_file, std::nullopt, header.number, std::nullopt,
-                               source.quantity, "header must be 'field_cm," + source.quantity + "'"});
+                               source.quantity,
+                               "header must be '" + axis_name + "," + source.quantity + "'"});
   }
   if (lines.size() < 2) {
     problems.push_back(Problem{source.problem_file, std::nullopt, std::nullopt, std::nullopt, source.quantity,
@@ -185,13 +189,42 @@ Read1D parse_table1d(std::string_view text, const TableSource& source, std::vect
     values.push_back(number(line.cells[1], source, line.number, 2, problems).value_or(std::nan("")));
     result.row_lines.push_back(line.number);
   }
-  check_increasing(axis, result.row_lines, std::vector<std::size_t>(axis.size(), 1), "field_cm", source,
+  check_increasing(axis, result.row_lines, std::vector<std::size_t>(axis.size(), 1), axis_name, source,
                    problems);
   if (problems.size() == problems_before && !axis.empty()) {
-    result.table =
-        Table1D{source.table_file, source.quantity, "field_cm", std::move(axis), std::move(values)};
+    result.table = Table1D{source.table_file, source.quantity, axis_name, std::move(axis), std::move(values)};
   }
   return result;
+}
+
+std::optional<Grid> parse_grid(std::string_view text, const std::string& row_axis_name) {
+  const std::vector<Line> lines = split_lines(text);
+  if (lines.empty() || lines.front().cells.front() != row_axis_name) return std::nullopt;
+  Grid grid;
+  const auto as_number = [](const std::string& cell) -> std::optional<double> {
+    double value = 0.0;
+    const char* begin = cell.data();
+    const char* end = cell.data() + cell.size();
+    if (begin != end && *begin == '+') ++begin;
+    const auto [ptr, ec] = std::from_chars(begin, end, value);
+    if (cell.empty() || ec != std::errc{} || ptr != end || !std::isfinite(value)) return std::nullopt;
+    return value;
+  };
+  for (std::size_t c = 1; c < lines.front().cells.size(); ++c) {
+    const auto v = as_number(lines.front().cells[c]);
+    if (!v) return std::nullopt;
+    grid.columns.push_back(*v);
+  }
+  for (std::size_t i = 1; i < lines.size(); ++i) {
+    const auto v = as_number(lines[i].cells.front());
+    if (!v) return std::nullopt;
+    grid.rows.push_back(*v);
+  }
+  const auto increasing = [](const std::vector<double>& axis) {
+    return std::adjacent_find(axis.begin(), axis.end(), std::greater_equal<>()) == axis.end();
+  };
+  if (grid.rows.empty() || !increasing(grid.rows) || !increasing(grid.columns)) return std::nullopt;
+  return grid;
 }
 
 }  // namespace countersign::beamdata::detail

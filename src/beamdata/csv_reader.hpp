@@ -36,7 +36,17 @@ struct Read1D {
                                    const std::string& row_axis_name, const std::string& column_axis_name,
                                    std::vector<Problem>& problems);
 
+// A one-axis table: header "<axis_name>,<quantity>", then one pair per row.
 [[nodiscard]] Read1D parse_table1d(std::string_view text, const TableSource& source,
-                                   std::vector<Problem>& problems);
+                                   std::vector<Problem>& problems, const std::string& axis_name = "field_cm");
+
+// The axes of a table whose cells may still be empty (a template): the header's column values
+// and every row's first cell. nullopt when the header does not start with row_axis_name or an
+// axis value is not a number or not strictly increasing. One-axis tables have no columns.
+struct Grid {
+  std::vector<double> rows;
+  std::vector<double> columns;
+};
+[[nodiscard]] std::optional<Grid> parse_grid(std::string_view text, const std::string& row_axis_name);
 
 }  // namespace countersign::beamdata::detail

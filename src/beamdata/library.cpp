@@ -3,10 +3,23 @@
 
 #include "inspection.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 
 namespace countersign::beamdata {
+
+CalibrationGeometry default_calibration_geometry(double ssd_cm, double depth_cm, double sad_cm) {
+  return std::abs(ssd_cm + depth_cm - sad_cm) > 0.01 ? CalibrationGeometry::ssd : CalibrationGeometry::sad;
+}
+
+std::string_view to_string(CalibrationGeometry geometry) {
+  return geometry == CalibrationGeometry::sad ? "SAD" : "SSD";
+}
+
+std::string_view to_string(HeadScatterField field) {
+  return field == HeadScatterField::jaws_and_mlc ? "jaws_and_mlc" : "jaws";
+}
 
 const WedgeData* BeamData::wedge(const std::string& wedge_id) const {
   for (const auto& w : wedges) {
@@ -22,11 +35,44 @@ const TrayData* BeamData::tray(const std::string& tray_id) const {
   return nullptr;
 }
 
-const Machine* Library::machine(const std::string& name) const {
-  for (const auto& m : machines) {
-    if (m.name == name) return &m;
+const ApplicatorData* ElectronBeamData::applicator(const std::string& applicator_id) const {
+  for (const auto& a : applicators) {
+    if (a.id == applicator_id) return &a;
   }
   return nullptr;
+}
+
+bool Machine::answers_to(std::string_view treatment_machine_name) const {
+  return name == treatment_machine_name ||
+         std::find(aliases.begin(), aliases.end(), treatment_machine_name) != aliases.end();
+}
+
+const ElectronBeamData* Machine::electron_beam(double energy_mev) const {
+  for (const auto& e : electron_beams) {
+    if (std::abs(e.energy_mev - energy_mev) < 0.01) return &e;
+  }
+  return nullptr;
+}
+
+const Machine* Library::machine(const std::string& name) const {
+  for (const auto& m : machines) {
+    if (m.answers_to(name)) return &m;
+  }
+  return nullptr;
+}
+
+std::string Library::machine_listing() const {
+  std::string out;
+  for (const auto& m : machines) {
+    if (!out.empty()) out += ", ";
+    out += "'" + m.name + "'";
+    if (!m.aliases.empty()) {
+      out += " (also";
+      for (std::size_t i = 0; i < m.aliases.size(); ++i) out += (i == 0 ? " '" : ", '") + m.aliases[i] + "'";
+      out += ")";
+    }
+  }
+  return out.empty() ? "none" : out;
 }
 
 BeamMatch Library::match(const std::string& machine_name, const std::string& radiation_type,
@@ -35,7 +81,8 @@ BeamMatch Library::match(const std::string& machine_name, const std::string& rad
   result.machine = machine(machine_name);
   if (result.machine == nullptr) {
     result.failure = MatchFailure::unknown_machine;
-    result.explanation = "The beam-data library has no machine named '" + machine_name + "'.";
+    result.explanation = "The beam-data library has no machine named '" + machine_name +
+                         "' (names are exact and case-sensitive; the library has " + machine_listing() + ").";
     return result;
   }
   bool radiation_found = false;
@@ -50,12 +97,12 @@ BeamMatch Library::match(const std::string& machine_name, const std::string& rad
   std::ostringstream sentence;
   if (!radiation_found) {
     result.failure = MatchFailure::unknown_radiation;
-    sentence << "Machine '" << machine_name << "' has no beam data for radiation type '" << radiation_type
-             << "'.";
+    sentence << "Machine '" << result.machine->name << "' has no beam data for radiation type '"
+             << radiation_type << "'.";
   } else {
     result.failure = MatchFailure::unknown_energy;
-    sentence << "Machine '" << machine_name << "' has no " << radiation_type << " beam data at " << energy_mv
-             << " MV.";
+    sentence << "Machine '" << result.machine->name << "' has no " << radiation_type << " beam data at "
+             << energy_mv << " MV.";
   }
   result.explanation = sentence.str();
   return result;
@@ -70,11 +117,11 @@ Expected<Library> load_library(const std::filesystem::path& folder) {
     return Error{ErrorKind::bad_beamdata, folder.string(), "", "",
                  "the library could not be read completely"};
   }
-  Library library = std::move(inspection.library);
-  detail::PhysicsFindings physics = detail::check_physics(library, inspection.lines);
+  detail::PhysicsFindings physics = detail::check_physics(inspection);
   for (const auto& problem : physics.problems) {
     if (problem.severity == Severity::error) return problem.to_error();
   }
+  Library library = inspection.readable_library();
   library.warnings = std::move(inspection.problems);
   library.warnings.insert(library.warnings.end(), physics.problems.begin(), physics.problems.end());
   return library;

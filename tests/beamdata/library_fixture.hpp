@@ -55,10 +55,12 @@ class TempDir {
 
 inline std::filesystem::path demo_library() { return countersign::test::source_dir() / "beamdata"; }
 
-// Copies the demo library into `dir`; returns the copy's FERN-LINAC-1 folder.
+// Copies the demo library (its machine and its CT tables) into `dir`; returns the copy's
+// FERN-LINAC-1 folder.
 inline std::filesystem::path copy_demo_library(const std::filesystem::path& dir) {
   std::filesystem::copy(demo_library() / "FERN-LINAC-1", dir / "FERN-LINAC-1",
                         std::filesystem::copy_options::recursive);
+  std::filesystem::copy(demo_library() / "ct", dir / "ct", std::filesystem::copy_options::recursive);
   return dir / "FERN-LINAC-1";
 }
 

@@ -75,7 +75,7 @@ TEST(LoadLibrary, MachineFolderGivesTheSameLibraryAndFingerprint) {
 }
 
 TEST(LoadLibrary, FingerprintIsTheDocumentedStreamHashedBySha256sum) {
-  // beamdata/FORMAT-EXTENSIONS.md: manifest, then pdd, tmr, sc, sp, then wedge tables, each as
+  // beamdata/FORMAT.md "Library fingerprint": manifest, then pdd, tmr, sc, sp, then wedge tables, each as
   // "<machine>/<path>\n<size>\n<bytes>". GNU coreutils sha256sum is the independent hasher.
   const TempDir dir;
   testing::write_hand_library(dir.path());
@@ -157,18 +157,30 @@ TEST(LoadLibrary, DemoLibraryLoads) {
   EXPECT_NE(library->match("FERN-LINAC-1", "PHOTON", 10.0).beam, nullptr);
 }
 
-TEST(LoadLibrary, NonPhotonBeamIsLeftOutWithAWarning) {
+TEST(LoadLibrary, UnsupportedRadiationIsLeftOutWithAWarning) {
+  // Protons (or any type the format does not describe) are left out: plans using them are not checked.
+  const TempDir dir;
+  testing::write_hand_library(dir.path());
+  testing::write_text(dir.path() / "TEST-LINAC-H/machine.toml",
+                      testing::read_text(dir.path() / "TEST-LINAC-H/machine.toml") +
+                          "\n[[beam]]\nid = \"P150\"\nradiation = \"PROTON\"\nenergy_mv = 150\n");
+  const auto library = load_library(dir.path());
+  ASSERT_TRUE(library) << library.error().message();
+  EXPECT_EQ(library->machines.front().beams.size(), 1u);
+  ASSERT_EQ(library->warnings.size(), 1u);
+  EXPECT_NE(library->warnings.front().text().find("PROTON"), std::string::npos);
+  EXPECT_EQ(library->match("TEST-LINAC-H", "PROTON", 150.0).failure, MatchFailure::unknown_radiation);
+}
+
+TEST(LoadLibrary, AnIncompleteElectronBeamIsAnErrorNotSilentlyDropped) {
   const TempDir dir;
   testing::write_hand_library(dir.path());
   testing::write_text(dir.path() / "TEST-LINAC-H/machine.toml",
                       testing::read_text(dir.path() / "TEST-LINAC-H/machine.toml") +
                           "\n[[beam]]\nid = \"E9\"\nradiation = \"ELECTRON\"\nenergy_mv = 9\n");
   const auto library = load_library(dir.path());
-  ASSERT_TRUE(library) << library.error().message();
-  EXPECT_EQ(library->machines.front().beams.size(), 1u);
-  ASSERT_EQ(library->warnings.size(), 1u);
-  EXPECT_NE(library->warnings.front().text().find("ELECTRON"), std::string::npos);
-  EXPECT_EQ(library->match("TEST-LINAC-H", "ELECTRON", 9.0).failure, MatchFailure::unknown_radiation);
+  ASSERT_FALSE(library);
+  EXPECT_NE(library.error().message().find("beam[2]."), std::string::npos) << library.error().message();
 }
 
 TEST(LoadLibrary, MissingFolderOrManifestIsAnError) {

@@ -177,7 +177,8 @@ TEST_F(DamagedDemo, WedgeIncomplete) {
 
 TEST_F(DamagedDemo, WedgeKindUnknown) {
   testing::replace_in_file(file("machine.toml"), "kind = \"PHYSICAL\"", "kind = \"MOTORISED\"");
-  expect_problem(validate(), "machine.toml", {"beam[1].wedge[1].kind", "neither PHYSICAL nor DYNAMIC"});
+  expect_problem(validate(), "machine.toml",
+                 {"beam[1].wedge[1].kind", "\"MOTORISED\" is not one of \"PHYSICAL\", \"DYNAMIC\""});
 }
 
 TEST_F(DamagedDemo, WedgeIdTwice) {

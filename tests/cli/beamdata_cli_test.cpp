@@ -87,12 +87,38 @@ TEST(BeamdataDeriveTmrCli, ReproducesTheDemoTmrFromItsPdd) {
   }
   // 5 cm fields at depth come from smaller surface fields: inside the 3 cm column here, no warning.
   EXPECT_EQ(result.err, "");
-  // Without --fields-cm the PDD columns are used; the 3 cm column needs extrapolation and says so.
-  const auto all = beamdata("derive-tmr --pdd " + quote((demo_6x() / "pdd.csv").string()) + " --sp " +
-                            quote((demo_6x() / "sp.csv").string()) + " --ssd-cm 100 --dmax-cm 1.5");
-  EXPECT_EQ(all.exit_code, 0);
-  EXPECT_NE(all.out.find("# EXTRAPOLATED input at depth 10.00 cm, field 3.0 cm"), std::string::npos);
-  EXPECT_NE(all.err.find("warning:"), std::string::npos);
+}
+
+TEST(BeamdataDeriveTmrCli, CellsThatNeedExtrapolationAreLeftEmptyAndTheCommandFails) {
+  // Without --fields-cm the PDD columns are used: the 3 cm field at depth comes from a surface field
+  // below the PDD table's 3 cm column, so those cells would need extrapolation.
+  const std::string inputs = "derive-tmr --pdd " + quote((demo_6x() / "pdd.csv").string()) + " --sp " +
+                             quote((demo_6x() / "sp.csv").string()) + " --ssd-cm 100 --dmax-cm 1.5";
+  const bt::TempDir dir;
+  const fs::path out = dir.path() / "tmr.csv";
+  const auto refused = beamdata(inputs + " -o " + quote(out.string()));
+  EXPECT_EQ(refused.exit_code, 3);
+  EXPECT_NE(refused.err.find("left empty"), std::string::npos) << refused.err;
+  const std::string text = bt::read_text(out);
+  EXPECT_NE(
+      text.find("# EMPTY (would need extrapolation) at depth_cm 10.00, field_cm 3.0: pdd field_cm 2.727"),
+      std::string::npos)
+      << text.substr(0, 800);
+  EXPECT_NE(text.find("\n10,,"), std::string::npos);  // the depth-10 row starts with an empty 3 cm cell
+  // The empty cells are what validate reports as missing: the table cannot be used by mistake.
+  EXPECT_FALSE(beamdata::read_table2d(out, "tmr", "depth_cm", "field_cm"));
+
+  // With --allow-extrapolation the cells are filled and the provenance note lists each one.
+  const auto allowed = beamdata(inputs + " --allow-extrapolation -o " + quote(out.string()));
+  EXPECT_EQ(allowed.exit_code, 0) << allowed.err;
+  EXPECT_NE(allowed.err.find("warning:"), std::string::npos);
+  const std::string note = bt::read_text(dir.path() / "tmr.csv.provenance.toml");
+  EXPECT_NE(
+      note.find("[[cell]]\ndepth_cm = 10\nfield_cm = 3\nextrapolated = true\nhow = \"pdd field_cm 2.727"),
+      std::string::npos)
+      << note.substr(0, 1200);
+  EXPECT_NE(note.find("output_sha256 = "), std::string::npos);
+  EXPECT_TRUE(beamdata::read_table2d(out, "tmr", "depth_cm", "field_cm"));
 }
 
 TEST(BeamdataRescalePddCli, AppliesTheMayneordFactor) {

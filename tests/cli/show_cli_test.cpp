@@ -95,7 +95,7 @@ TEST(ShowCli, JsonOfSeveralPlansIsAnArray) {
   const auto json = nlohmann::json::parse(result.out);
   ASSERT_TRUE(json.is_array());
   ASSERT_EQ(json.size(), 2u);
-  EXPECT_EQ(json.at(1).at("beams").at(0).at("mlc_leaf_pairs"), 60);
+  EXPECT_EQ(json.at(1).at("beams").at(0).at("mlc_leaf_pairs"), 72);
   EXPECT_EQ(json.at(1).at("beams").at(0).at("control_points"), 18);
   EXPECT_EQ(json.at(0).at("beams").at(0).at("jaws_mm").at("x1"), 0.0);
 }

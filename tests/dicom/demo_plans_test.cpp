@@ -106,12 +106,13 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
     if (has_mlc) {
       const auto& mlc = *std::find_if(beam->beam_limiting_devices.begin(), beam->beam_limiting_devices.end(),
                                       [](const plan::BeamLimitingDevice& d) { return d.type == "MLCX"; });
-      EXPECT_EQ(mlc.pair_count, 60);
-      ASSERT_EQ(mlc.leaf_boundaries_mm.size(), 61u);
-      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm.front(), -200.0);
-      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm[10], -100.0);  // ten outer 10 mm pairs
-      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm[11], -95.0);   // then 5 mm pairs
-      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm.back(), 200.0);
+      // The invented MLC of FERN-LINAC-1: 72 pairs, all 5 mm wide (tools/demo_linac/model.hpp).
+      EXPECT_EQ(mlc.pair_count, 72);
+      ASSERT_EQ(mlc.leaf_boundaries_mm.size(), 73u);
+      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm.front(), -180.0);
+      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm[1], -175.0);
+      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm[36], 0.0);
+      EXPECT_DOUBLE_EQ(mlc.leaf_boundaries_mm.back(), 180.0);
     }
     if (row.at("wedge_id") == "-") {
       EXPECT_TRUE(beam->wedges.empty());
@@ -202,7 +203,7 @@ TEST(ReadPlanDemo, ArcControlPointsCarryForwardWhatTheyOmit) {
     ASSERT_NE(cp.device("ASYMX"), nullptr);
     EXPECT_EQ(cp.device("ASYMX")->positions_mm, first.device("ASYMX")->positions_mm);
     ASSERT_NE(cp.device("MLCX"), nullptr);
-    EXPECT_EQ(cp.device("MLCX")->positions_mm.size(), 120u);
+    EXPECT_EQ(cp.device("MLCX")->positions_mm.size(), 144u);
   }
   // The gantry moves clockwise 190 -> 170 through 0 in 20 degree steps; the MLC changes.
   EXPECT_DOUBLE_EQ(arc.control_points[0].gantry_deg.value(), 190.0);

@@ -7,6 +7,8 @@
 #include <countersign/beamdata/csv.hpp>
 #include <countersign/beamdata/table.hpp>
 
+#include <algorithm>
+#include <cctype>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -46,6 +48,28 @@ std::vector<double> off_axis_cm() {
   for (int i = 0; i <= 20; ++i) r.push_back(i);
   return r;
 }
+
+// Signed distances along the wedge gradient (thin end negative) of the wedged off-axis ratio.
+std::vector<double> wedge_axis_cm() {
+  std::vector<double> x;
+  for (int i = -15; i <= 15; ++i) x.push_back(i);
+  return x;
+}
+
+// The wedges that get an orientation table (the format makes it optional; one is enough for the demo).
+const std::vector<std::string> profiled_wedges = {"W30"};
+
+std::string lower(std::string s) {
+  for (auto& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  return s;
+}
+
+// CT number to relative electron density of the demo library. INVENTED: the shape of a typical
+// scanner calibration as recalled from memory (air, lung, adipose, water, muscle, spongy and cortical
+// bone, dense bone), not a measurement of any scanner.
+const std::vector<std::pair<double, double>> ct_density = {
+    {-1000, 0.001}, {-800, 0.200}, {-500, 0.500}, {-100, 0.950}, {0, 1.000},
+    {40, 1.040},    {200, 1.110},  {1000, 1.500}, {1500, 1.780}, {3000, 2.500}};
 
 // Rows and columns are stored rounded as they will be written, so the table is what a reader sees.
 double rounded(double value, int decimals) {
@@ -123,6 +147,19 @@ bool write_beam_tables(const fs::path& machine_dir, const demo_linac::BeamModel&
     countersign::beamdata::write_table(o, sp,
                                        notice("phantom scatter factor vs field side in the phantom (cm)"), 4);
   });
+  for (const auto& wedge : profiled_wedges) {
+    const auto profile = tabulate(
+        dir + "/" + lower(wedge) + "_profile.csv", "wedge_oar", "wedge_axis_cm", oar_depths_cm(beam),
+        wedge_axis_cm(), 4, [&](double d, double x) { return demo_linac::wedge_oar(beam, wedge, d, x); });
+    ok &= write(machine_dir / profile.file(), [&](std::ostream& o) {
+      countersign::beamdata::write_table(
+          o, profile,
+          notice("wedge " + wedge +
+                 " wedged off-axis ratio; columns: signed distance along the wedge gradient at "
+                 "the isocentre plane (cm), thin end negative"),
+          4);
+    });
+  }
   return ok;
 }
 
@@ -135,12 +172,18 @@ void write_beam_manifest(std::ostream& out, const demo_linac::BeamModel& beam) {
       << "energy_mv = " << std::setprecision(1) << beam.energy_mv << "\n"
       << "dmax_cm = " << std::setprecision(1) << demo_linac::dmax_cm(beam) << "\n"
       << "pdd_ssd_cm = 100.0\n"
-      << "mlc_transmission = " << std::setprecision(3) << demo_linac::mlc_transmission(beam)
-      << "   # extension key, see beamdata/FORMAT-EXTENSIONS.md\n"
+      << "# optional keys (beamdata/FORMAT.md \"Optional keys\"), invented values\n"
+      << "mlc_transmission = " << std::setprecision(3) << demo_linac::mlc_transmission(beam) << "\n"
+      << "mlc_leaf_end_offset_mm = " << std::setprecision(1) << demo_linac::mlc_leaf_end_offset_mm << "\n"
+      << "head_scatter_field = \"jaws\"\n"
+      << "ssd_range_cm = [" << std::setprecision(1) << demo_linac::trusted_ssd_min_cm << ", "
+      << demo_linac::trusted_ssd_max_cm << "]\n"
+      << "block_transmission = " << std::setprecision(3) << beam.block_transmission << "\n"
       << "\n[beam.calibration]\n"
       << "output_cgy_per_mu = " << std::setprecision(3) << demo_linac::output_cgy_per_mu(beam) << "\n"
       << "field_cm = 10.0\nssd_cm = 100.0\n"
       << "depth_cm = " << std::setprecision(1) << demo_linac::dmax_cm(beam) << "\n"
+      << "geometry = \"SSD\"\n"
       << "\n[beam.tables]\n"
       << "pdd = \"" << id << "/pdd.csv\"\n"
       << "tmr = \"" << id << "/tmr.csv\"\n"
@@ -153,6 +196,8 @@ void write_beam_manifest(std::ostream& out, const demo_linac::BeamModel& beam) {
         << "angle_deg = " << std::setprecision(1) << demo_linac::wedge_angle_deg(wedge) << "\n"
         << "kind = \"PHYSICAL\"\n"
         << "factor = " << std::setprecision(3) << demo_linac::wedge_factor(beam, wedge) << "\n";
+    if (std::find(profiled_wedges.begin(), profiled_wedges.end(), wedge) != profiled_wedges.end())
+      out << "orientation_table = \"" << id << "/" << lower(wedge) << "_profile.csv\"\n";
   }
   out << "\n[[beam.tray]]\n"
       << "id = \"TRAY-A\"\n"
@@ -170,6 +215,20 @@ int main(int argc, char** argv) {
   bool ok = true;
   for (const double energy_mv : {6.0, 10.0})
     ok &= write_beam_tables(machine_dir, demo_linac::beam_model(energy_mv));
+  ok &= write(fs::path{argv[1]} / "ct" / "default.csv", [&](std::ostream& out) {
+    std::vector<double> hu, density;
+    for (const auto& [h, rho] : ct_density) {
+      hu.push_back(h);
+      density.push_back(rho);
+    }
+    countersign::beamdata::write_table(
+        out, Table1D{"ct/default.csv", "relative_electron_density", "hu", hu, density},
+        {invented_notice.front(),
+         "CT number to relative electron density: the shape of a typical scanner calibration recalled from "
+         "memory, not measured on any scanner.",
+         "Generated by tools/demo_linac/make_demo_beamdata; do not edit by hand."},
+        3);
+  });
   ok &= write(machine_dir / "machine.toml", [&](std::ostream& out) {
     for (const auto& line : invented_notice) out << "# " << line << "\n";
     out << "# The fictional machine's physical model is tools/demo_linac/model.hpp.\n\n"

@@ -25,12 +25,24 @@
 #include <numbers>
 #include <stdexcept>
 #include <string>
+#include <vector>
 
 namespace demo_linac {
 
 // The invented machine's identity, as the demo plans and the demo library spell it.
 inline constexpr const char* machine_name = "FERN-LINAC-1";
 inline constexpr double sad_cm = 100.0;
+
+// The invented MLC: 72 leaf pairs of one width, 5 mm at the isocentre, spanning -180 to +180 mm in
+// IEC Y (a layout of this project's own, not that of any commercial collimator).
+inline constexpr int mlc_leaf_pairs = 72;
+inline constexpr double mlc_leaf_width_mm = 5.0;
+// Rounded leaf ends: each leaf's radiological tip lies this far beyond its nominal position (invented).
+inline constexpr double mlc_leaf_end_offset_mm = 0.6;
+
+// SSDs at which the demo beam data is meant to be trusted (invented).
+inline constexpr double trusted_ssd_min_cm = 80.0;
+inline constexpr double trusted_ssd_max_cm = 130.0;
 
 struct BeamModel {
   const char* beam_id;       // "6X", "10X"
@@ -61,6 +73,7 @@ struct BeamModel {
   double wedge_factor_w60;
   double tray_factor_tray_a;
   double mlc_transmission;
+  double block_transmission;  // default for blocks whose plan states none (invented)
 };
 
 // The two invented photon beams. 6 MV: dmax 1.5 cm; 10 MV: dmax 2.4 cm (typical, from memory).
@@ -85,7 +98,8 @@ inline constexpr BeamModel beam_6x{.beam_id = "6X",
                                    .wedge_factor_w45 = 0.52,
                                    .wedge_factor_w60 = 0.42,
                                    .tray_factor_tray_a = 0.970,
-                                   .mlc_transmission = 0.015};
+                                   .mlc_transmission = 0.015,
+                                   .block_transmission = 0.035};
 inline constexpr BeamModel beam_10x{.beam_id = "10X",
                                     .energy_mv = 10.0,
                                     .dmax_cm = 2.4,
@@ -107,7 +121,8 @@ inline constexpr BeamModel beam_10x{.beam_id = "10X",
                                     .wedge_factor_w45 = 0.56,
                                     .wedge_factor_w60 = 0.46,
                                     .tray_factor_tray_a = 0.975,
-                                    .mlc_transmission = 0.017};
+                                    .mlc_transmission = 0.017,
+                                    .block_transmission = 0.040};
 
 // The model of a nominal energy; only 6 and 10 MV exist on this machine.
 inline const BeamModel& beam_model(double energy_mv) {
@@ -208,5 +223,22 @@ inline double tray_factor(const BeamModel& m, const std::string& tray_id) {
 
 // Fraction of the open-field dose transmitted under closed MLC leaves.
 inline double mlc_transmission(const BeamModel& m) { return m.mlc_transmission; }
+
+// Leaf boundaries of the invented MLC in IEC Y at the isocentre (mm), mlc_leaf_pairs + 1 values.
+inline std::vector<double> mlc_leaf_boundaries_mm() {
+  std::vector<double> boundaries;
+  const double first = -0.5 * mlc_leaf_pairs * mlc_leaf_width_mm;
+  for (int i = 0; i <= mlc_leaf_pairs; ++i) boundaries.push_back(first + i * mlc_leaf_width_mm);
+  return boundaries;
+}
+
+// Wedged off-axis ratio of a physical wedge at a depth and a signed distance x (cm) along the
+// wedge gradient at the isocentre plane, thin end negative: the open beam's OAR times the wedge's
+// transmission relative to the central axis, exp(-k x). k = mu tan(angle), so that an isodose tilts
+// by the nominal wedge angle where the depth dose falls as exp(-mu d) (an invented model).
+inline double wedge_oar(const BeamModel& m, const std::string& wedge_id, double depth_cm, double x_cm) {
+  const double k_per_cm = m.mu_per_cm * std::tan(wedge_angle_deg(wedge_id) * std::numbers::pi / 180.0);
+  return oar(m, depth_cm, std::abs(x_cm)) * std::exp(-k_per_cm * x_cm);
+}
 
 }  // namespace demo_linac

@@ -13,7 +13,7 @@ namespace make_demo_plans {
 
 namespace {
 
-constexpr int leaf_pairs = 60;
+constexpr int leaf_pairs = demo_linac::mlc_leaf_pairs;
 
 // Two static control points.
 std::vector<ControlPointSpec> static_points(double gantry_deg, const std::vector<double>& mlc_mm = {}) {

@@ -2,6 +2,8 @@
 
 #include "write_plan.hpp"
 
+#include <demo_linac/model.hpp>
+
 #include <dcmtk/dcmdata/dcdeftag.h>
 #include <dcmtk/dcmdata/dcistrmb.h>
 #include <dcmtk/dcmdata/dcostrmb.h>
@@ -187,7 +189,8 @@ std::vector<Defect> defects() {
            "first control point without jaw/MLC positions",
            [](D& ds) { remove(cp(ds, 0), DCM_BeamLimitingDevicePositionSequence); }),
       attr("leaf_jaw_count_mismatch.dcm", mlc, DCM_LeafJawPositions, "LeafJawPositions", "bad_value",
-           "MLCX with 118 leaf positions for 60 pairs",
+           fmt::format("MLCX with {} leaf positions for {} pairs", 2 * demo_linac::mlc_leaf_pairs - 2,
+                       demo_linac::mlc_leaf_pairs),
            [](D& ds) {
              DcmItem& item = device_position(ds, "MLCX");
              OFString all;
@@ -202,11 +205,12 @@ std::vector<Defect> defects() {
            [](D& ds) {
              DcmItem& item = device_position(ds, "MLCX");
              std::string text;
-             for (int i = 0; i < 120; ++i) {
+             const int pairs = demo_linac::mlc_leaf_pairs;
+             for (int i = 0; i < 2 * pairs; ++i) {
                OFString value;
                item.findAndGetOFString(DCM_LeafJawPositions, value, i);
                if (i == 30) value = "25";
-               if (i == 90) value = "-25";
+               if (i == pairs + 30) value = "-25";
                text += (i ? "\\" : "") + std::string(value.c_str());
              }
              set(item, DCM_LeafJawPositions, text);
@@ -215,7 +219,7 @@ std::vector<Defect> defects() {
            "inconsistent", "control point positions for MLCY, which the beam does not declare",
            [](D& ds) { set(device_position(ds, "MLCX"), DCM_RTBeamLimitingDeviceType, "MLCY"); }),
       attr("leaf_boundaries_count_mismatch.dcm", mlc, DCM_LeafPositionBoundaries, "LeafPositionBoundaries",
-           "inconsistent", "60 leaf boundaries for 60 pairs",
+           "inconsistent", fmt::format("{0} leaf boundaries for {0} pairs", demo_linac::mlc_leaf_pairs),
            [](D& ds) {
              DcmItem& device = item_at(beam(ds), DCM_BeamLimitingDeviceSequence, 2);
              OFString all;

@@ -108,15 +108,7 @@ void plan_beam(BeamSpec& beam) {
 
 }  // namespace
 
-std::vector<double> leaf_boundaries_mm() {
-  std::vector<double> boundaries;
-  double y = -200.0;
-  boundaries.push_back(y);
-  for (int i = 0; i < 10; ++i) boundaries.push_back(y += 10.0);
-  for (int i = 0; i < 40; ++i) boundaries.push_back(y += 5.0);
-  for (int i = 0; i < 10; ++i) boundaries.push_back(y += 10.0);
-  return boundaries;
-}
+std::vector<double> leaf_boundaries_mm() { return demo_linac::mlc_leaf_boundaries_mm(); }
 
 double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm,
                                      const std::vector<double>& mlc_mm) {

@@ -15,7 +15,7 @@
 
 namespace make_demo_plans {
 
-// FERN-LINAC-1's 60 leaf pairs: 10 x 10 mm, 40 x 5 mm, 10 x 10 mm, from -200 to 200 mm (61 boundaries).
+// FERN-LINAC-1's invented MLC: 72 leaf pairs of 5 mm, from -180 to 180 mm (73 boundaries).
 [[nodiscard]] std::vector<double> leaf_boundaries_mm();
 
 // Equivalent square (cm) of the aperture at the isocentre plane: jaws, and the MLC if given.

@@ -35,8 +35,13 @@ namespace countersign::beamdata {
 struct DerivedTable {
   Table2D table;
   std::vector<bool> extrapolated;  // row-major like the table; true where an input lookup extrapolated
+  std::vector<std::string> how;    // row-major: for extrapolated cells, which lookup went outside which
+                                   // table ("pdd field_cm 2.91 beyond the table's end node 3"); else empty
   [[nodiscard]] std::size_t extrapolated_count() const;
 };
+
+// One sentence per extrapolated axis of the lookups ("sp field_cm 45 beyond the table's end node 40").
+[[nodiscard]] std::string extrapolation_text(const std::vector<Lookup>& lookups);
 
 // A TMR table (depth x field at depth) from a PDD table (depth x field at the surface, measured at
 // pdd_ssd_cm) and Sp. Output rows are the PDD depths; output columns are fields_at_depth_cm.
@@ -47,6 +52,13 @@ struct DerivedTable {
 // A PDD table at another SSD by the Mayneord F factor (same depths and surface fields).
 [[nodiscard]] Table2D rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ssd_cm,
                                         double dmax_cm, const std::string& output_file);
+
+// The same on another grid of depths and surface fields: each cell is the PDD looked up (bilinear)
+// at the node times the F factor; cells outside the PDD table are marked extrapolated.
+[[nodiscard]] DerivedTable rescale_pdd_table(const Table2D& pdd, double table_ssd_cm, double new_ssd_cm,
+                                             double dmax_cm, const std::vector<double>& depths_cm,
+                                             const std::vector<double>& fields_cm,
+                                             const std::string& output_file);
 
 // One node of a measured TMR table against the TMR derived from the PDD table.
 struct TmrComparison {

@@ -22,7 +22,8 @@ namespace countersign::beamdata {
 // A one-axis table: header "field_cm,<quantity>", then one pair per row.
 [[nodiscard]] Expected<Table1D> read_table1d(const std::filesystem::path& file, const std::string& quantity);
 
-// Writes a table in the same format; each comment line is prefixed with "# ".
+// Writes a table in the same format; each comment line is prefixed with "# ". A cell that is not a
+// finite number is written empty.
 void write_table(std::ostream& out, const Table2D& table, const std::vector<std::string>& comments,
                  int decimals);
 void write_table(std::ostream& out, const Table1D& table, const std::vector<std::string>& comments,
