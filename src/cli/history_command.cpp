@@ -3,6 +3,7 @@
 // outside tolerance), from which AAPM TG-114 (2011) asks a clinic to set its own action levels.
 
 #include <countersign/cli/commands.hpp>
+#include <countersign/report/json_text.hpp>
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/history.hpp>
 #include <countersign/service/trend.hpp>
@@ -183,7 +184,7 @@ ExitCode run_history(const HistoryCommandOptions& options, Io& io) {
     for (const auto& group : groups) trends.push_back(to_json(group));
     document["checks"] = checks;
     document["trends"] = trends;
-    io.out << document.dump(2) << "\n";
+    io.out << report::json_text(document);
     return ExitCode::all_within_tolerance;
   }
   io.out << "History " << db.string() << ": " << all->size() << " check(s) match\n";

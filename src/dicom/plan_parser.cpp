@@ -159,6 +159,7 @@ Expected<plan::Plan> read_plan_dataset(DcmItem& dataset, std::string display_nam
   plan.geometry = top.text(DCM_RTPlanGeometry, Need::optional);
   plan.approval_status = top.text(DCM_ApprovalStatus, Need::optional);
   plan.manufacturer = top.text(DCM_Manufacturer, Need::optional);
+  plan.specific_character_set = top.character_set();
   if (sink.failed()) return sink.error();
 
   plan.patient_setups = detail::parse_patient_setups(top);
@@ -171,6 +172,7 @@ Expected<plan::Plan> read_plan_dataset(DcmItem& dataset, std::string display_nam
   if (sink.failed()) return sink.error();
   detail::check_references(top, plan);
   if (sink.failed()) return sink.error();
+  plan.warnings = sink.warnings();
   return plan;
 }
 

@@ -176,6 +176,12 @@ struct Plan {
   std::string geometry;                    // RT Plan Geometry (300A,000C): PATIENT, TREATMENT_DEVICE
   std::string approval_status;             // Approval Status (300E,0002): APPROVED, UNAPPROVED, REJECTED
   std::string manufacturer;                // (0008,0070)
+  // Specific Character Set (0008,0005) as declared; empty: the default repertoire (ASCII). Every
+  // text above is UTF-8, converted from it.
+  std::string specific_character_set;
+  // What the reader could not read faithfully without refusing the plan, one sentence each naming
+  // the attribute and tag (e.g. bytes that could not be decoded and are shown as U+FFFD).
+  std::vector<std::string> warnings;
   std::vector<PatientSetup> patient_setups;
   std::vector<DoseReference> dose_references;
   std::vector<FractionGroup> fraction_groups;
