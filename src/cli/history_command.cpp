@@ -7,6 +7,7 @@
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/history.hpp>
 #include <countersign/service/trend.hpp>
+#include <countersign/util/text.hpp>
 
 #include <nlohmann/json.hpp>
 
@@ -50,7 +51,9 @@ std::string fixed(const std::optional<double>& value, int decimals, bool sign = 
 }
 
 // Left-aligned in `width` columns, and always followed by at least one space.
-std::string padded(std::string text, std::size_t width) {
+// A column of the terminal table; values from plans have their control characters escaped.
+std::string padded(std::string_view value, std::size_t width) {
+  std::string text = escape_control_characters(value);
   text.append(text.size() < width ? width - text.size() : 1, ' ');
   return text;
 }

@@ -7,6 +7,7 @@
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/dcmtk_log.hpp>
 #include <countersign/service/stop_signals.hpp>
+#include <countersign/util/text.hpp>
 
 #include <countersign/service/storage_receiver.hpp>
 #include "service_startup.hpp"
@@ -49,7 +50,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     settings.intake = intake_options_from(options.intake);
     auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
-      io.err << "countersign receive: " << opened.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(opened.error().message()) << "\n";
       return ExitCode::bad_input;
     }
 
@@ -61,7 +62,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     receiver_settings.max_associations = static_cast<std::uint16_t>(options.max_associations);
     auto receiver = service::StorageReceiver::start(receiver_settings, log);
     if (!receiver) {
-      io.err << "countersign receive: " << receiver.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(receiver.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line("beam data " + opened->beamdata_dir.string() + "; stop with SIGTERM or SIGINT");
@@ -71,13 +72,13 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     // Plans received from here on wait in the inbox and are checked at the next start.
     receiver.value()->stop();
     if (!summary) {
-      io.err << "countersign receive: " << summary.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(summary.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
-    io.err << "countersign receive: " << e.what() << "\n";
+    io.err << "countersign receive: " << escape_control_characters(e.what()) << "\n";
     return ExitCode::bad_input;
   }
 }

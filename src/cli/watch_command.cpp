@@ -6,6 +6,7 @@
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/dcmtk_log.hpp>
 #include <countersign/service/stop_signals.hpp>
+#include <countersign/util/text.hpp>
 
 #include "service_startup.hpp"
 #include "shared_options.hpp"
@@ -47,7 +48,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     settings.watch.subfolders = options.recursive ? dicom::Subfolders::include : dicom::Subfolders::ignore;
     auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
-      io.err << "countersign watch: " << opened.error().message() << "\n";
+      io.err << "countersign watch: " << escape_control_characters(opened.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line("beam data " + opened->beamdata_dir.string() + "; " +
@@ -57,7 +58,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     const auto summary = opened->service->run(
         options.once ? service::RunUntil::one_pass : service::RunUntil::stopped, stop_fds);
     if (!summary) {
-      io.err << "countersign watch: " << summary.error().message() << "\n";
+      io.err << "countersign watch: " << escape_control_characters(summary.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     for (const std::string& file : summary->not_taken) log.line("not taken: " + file);
@@ -66,7 +67,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     if (options.once && (!summary->not_taken.empty() || summary->quarantined > 0)) return ExitCode::bad_input;
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
-    io.err << "countersign watch: " << e.what() << "\n";
+    io.err << "countersign watch: " << escape_control_characters(e.what()) << "\n";
     return ExitCode::bad_input;
   }
 }

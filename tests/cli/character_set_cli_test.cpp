@@ -67,6 +67,19 @@ TEST_F(CharacterSetCli, ALatin1NameIsPrintedAsUtf8ByShowAndCheck) {
   EXPECT_NE(text.out.find(utf8_name), std::string::npos) << text.out;
 }
 
+TEST_F(CharacterSetCli, AFolderRunPrintsEveryPlanAlongsideALatin1One) {
+  // Before, the one Latin-1 plan made the whole folder's JSON abort: nothing was printed for any plan.
+  const fs::path folder = dir_ / "export";
+  fs::create_directories(folder);
+  plan_with_name(folder, "RP.latin1", "ISO_IR 100", "M\xFCller^J\xF6rg");
+  fs::copy_file(test::source_dir() / "testdata/plans/fern_setup_beam.dcm", folder / "RP.setup");
+  const auto checked = test::run_command(program() + " check --json " + test::quote(folder.string()));
+  ASSERT_EQ(checked.exit_code, 1) << checked.err;
+  const auto result = nlohmann::json::parse(checked.out);
+  ASSERT_EQ(result.at("plans").size(), 2U);
+  EXPECT_EQ(result.at("plans").at(0).at("patient_name"), "M\xC3\xBCller^J\xC3\xB6rg");
+}
+
 TEST_F(CharacterSetCli, UndecodableBytesAreReplacedAndEveryOutputSaysSo) {
   const fs::path file = plan_with_name(dir_, "bad.dcm", "ISO_IR 192", "M\xFFller^Test");
   const auto checked = test::run_command(program() + " check --json " + test::quote(file.string()));

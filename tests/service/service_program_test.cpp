@@ -362,6 +362,35 @@ TEST_F(ServiceProgramTest, AValidPlanWithALatin1NameIsCheckedNotQuarantined) {
   EXPECT_NE(slurp(results / (uid + ".html")).find("M\xC3\xBCller"), std::string::npos);
 }
 
+TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
+  // Issue 10: the sender got Success, then the receiver quarantined the valid plan as an
+  // "internal error". DCMTK's storescu is the real peer; the test fails without it.
+  ASSERT_EQ(test::run_command("command -v storescu").exit_code, 0)
+      << "DCMTK's storescu is needed (bash tools/install-deps)";
+  const auto plans = demo_plans();
+  const std::string uid =
+      copy_with_name(plans.front(), dir_ / "latin1.dcm", "ISO_IR 100", "M\xFCller^J\xF6rg");
+  ASSERT_FALSE(uid.empty());
+  const fs::path results = dir_ / "results";
+  const std::uint16_t port = free_port();
+  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
+                    "FERN-TPS", "--out", results.string()},
+                   dir_ / "receive.log"};
+  ASSERT_TRUE(receiver.running());
+  ASSERT_TRUE(wait_until(
+      [&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; }, 20s))
+      << slurp(dir_ / "receive.log");
+  const auto sent =
+      test::run_command("storescu -to 10 -aec FERN-CHECK -aet FERN-TPS 127.0.0.1 " + std::to_string(port) +
+                        " " + test::quote((dir_ / "latin1.dcm").string()));
+  EXPECT_EQ(sent.exit_code, 0) << sent.err;
+  ASSERT_TRUE(wait_until([&] { return recorded(results) == 1; }, 20s)) << slurp(dir_ / "receive.log");
+  receiver.signal(SIGTERM);
+  EXPECT_TRUE(WIFEXITED(receiver.wait()));
+  EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U) << slurp(dir_ / "receive.log");
+  EXPECT_NE(slurp(results / (uid + ".json")).find("M\xC3\xBCller^J\xC3\xB6rg"), std::string::npos);
+}
+
 TEST_F(ServiceProgramTest, CheckFolderAndWatchTakeTheSameFilesByContentWhateverTheirNames) {
   // Issue 10, item 6: `check FOLDER` took only *.dcm, while `watch` took every name.
   const auto plans = demo_plans();
