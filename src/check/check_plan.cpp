@@ -364,6 +364,7 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.patient_name = plan.patient_name;
   check.plan_label = plan.label;
   check.approval_status = plan.approval_status;
+  check.warnings = plan.warnings;
   check.beamdata_root = library.root.string();
   check.beamdata_sha256 = library.sha256_hex;
   check.options = options;

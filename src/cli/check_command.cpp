@@ -11,6 +11,8 @@
 #include <countersign/report/check_text.hpp>
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/report/json_text.hpp>
+#include <countersign/util/text.hpp>
 
 #include "shared_options.hpp"
 
@@ -74,24 +76,38 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
   ExitCode exit_code = ExitCode::all_within_tolerance;
   std::vector<check::PlanCheck> checks;
   std::vector<std::string> errors;
-  const std::vector<fs::path> files = plan_files(options.paths);
-  if (files.empty()) {
-    io.err << "countersign check: no .dcm file found in the folders given\n";
+  std::vector<std::string> skipped;
+  const PlanFileCandidates candidates = plan_file_candidates(options.paths);
+  for (const fs::path& folder : candidates.ignored_subfolders) {
+    io.err << "countersign check: subfolder " << escape_control_characters(folder.string())
+           << " not entered (only the files of the folders named are checked)\n";
+  }
+  if (candidates.files.empty()) {
+    io.err << "countersign check: no file found in the folders given\n";
     return ExitCode::bad_input;
   }
+  const std::size_t file_count = candidates.files.size();
   // A progress line only when a person is watching: both streams on a terminal, several plans.
   const bool show_progress =
-      io.out_is_terminal && io.err_is_terminal && files.size() > 1 && options.json == false;
+      io.out_is_terminal && io.err_is_terminal && file_count > 1 && options.json == false;
   std::size_t done = 0;
-  for (const fs::path& file : files) {
+  for (const PlanFileCandidate& candidate : candidates.files) {
+    const fs::path& file = candidate.file;
     if (show_progress)
-      io.err << "\r\x1b[K[" << ++done << "/" << files.size() << "] " << file.filename().string()
-             << std::flush;
+      io.err << "\r\x1b[K[" << ++done << "/" << file_count << "] "
+             << escape_control_characters(file.filename().string()) << std::flush;
     auto plan = dicom::read_plan_file(file);
+    if (!plan && is_skipped_non_plan(candidate, plan.error())) {
+      // Not a plan file (the rule the watcher uses): listed, not an error.
+      const std::string message = plan.error().message();
+      if (!options.json) io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
+      skipped.push_back(message);
+      continue;
+    }
     if (!plan) {
       // One bad file does not stop the others.
       const std::string message = plan.error().message();
-      io.err << message << "\n";
+      io.err << escape_control_characters(message) << "\n";
       errors.push_back(message);
       exit_code = worst(exit_code, ExitCode::bad_input);
       continue;
@@ -101,8 +117,7 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     report::HtmlOptions record_options;
     record_options.plan = &plan.value();
     if (!options.html.empty()) {
-      auto written =
-          report::write_html(result, record_file(options.html, file, files.size()), record_options);
+      auto written = report::write_html(result, record_file(options.html, file, file_count), record_options);
       if (!written) {
         io.err << "countersign check: " << written.error().message() << "\n";
         exit_code = worst(exit_code, ExitCode::record_not_written);
@@ -110,7 +125,7 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     if (chromium) {
       auto written =
-          report::write_pdf(result, record_file(options.pdf, file, files.size()), *chromium, record_options);
+          report::write_pdf(result, record_file(options.pdf, file, file_count), *chromium, record_options);
       if (!written) {
         io.err << "countersign check: " << written.error().message() << "\n";
         exit_code = worst(exit_code, ExitCode::record_not_written);
@@ -123,14 +138,21 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     checks.push_back(std::move(result));
   }
   if (show_progress) io.err << "\r\x1b[K" << std::flush;
-  if (!options.json && files.size() > 1) {
-    io.out << "Summary of " << files.size() << " plan file(s):\n";
+  if (checks.empty() && errors.empty()) {
+    io.err << "countersign check: no RT Plan file found in the folders given\n";
+    exit_code = ExitCode::bad_input;
+  }
+  if (!options.json && checks.size() + errors.size() > 1) {
+    io.out << "Summary of " << checks.size() + errors.size() << " plan file(s):\n";
     for (const check::PlanCheck& c : checks) report::write_plan_summary_line(io.out, c);
-    for (const std::string& e : errors) io.out << "bad input           " << e << "\n";
+    for (const std::string& e : errors)
+      io.out << "bad input           " << escape_control_characters(e) << "\n";
+    if (!skipped.empty()) io.out << skipped.size() << " other file(s) skipped: no RT Plan in them\n";
     io.out << "\n";
   }
   if (options.json) {
-    io.out << report::check_run_to_json(checks, errors, static_cast<int>(exit_code)).dump(2) << "\n";
+    io.out << report::json_text(
+        report::check_run_to_json(checks, errors, static_cast<int>(exit_code), skipped));
   } else {
     io.out << report::caution_text() << "\n";
   }
@@ -148,7 +170,11 @@ void add_check_command(CLI::App& app, CommandContext& context) {
       "planned dose. Exit 0: all within tolerance; 1: a beam outside tolerance; 2: a beam or plan not "
       "checked; "
       "3: bad input or usage; 4: a record asked for with --html or --pdf could not be written.");
-  command->add_option("plans", options->paths, "RT Plan files, or folders of .dcm files")->required();
+  command
+      ->add_option("plans", options->paths,
+                   "RT Plan files, or folders: every file in a folder that holds an RT Plan is checked, "
+                   "whatever its name (hidden and temporary files are passed over, as by `watch`)")
+      ->required();
   add_beamdata_option(*command, options->beamdata);
   add_policy_option(*command, options->policy);
   add_method_option(*command, options->method,

@@ -7,6 +7,7 @@
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/explain_report.hpp>
+#include <countersign/report/json_text.hpp>
 
 #include "shared_options.hpp"
 
@@ -75,7 +76,7 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
   }
   const report::BeamExplanation explanation = report::explain_beam(*beam, options.limits);
   if (options.json) {
-    io.out << report::explanation_to_json(result, *beam, explanation).dump(2) << "\n";
+    io.out << report::json_text(report::explanation_to_json(result, *beam, explanation));
   } else {
     io.out << report::explanation_text(result, *beam, explanation);
   }

@@ -3,9 +3,11 @@
 // outside tolerance), from which AAPM TG-114 (2011) asks a clinic to set its own action levels.
 
 #include <countersign/cli/commands.hpp>
+#include <countersign/report/json_text.hpp>
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/history.hpp>
 #include <countersign/service/trend.hpp>
+#include <countersign/util/text.hpp>
 
 #include <nlohmann/json.hpp>
 
@@ -49,7 +51,9 @@ std::string fixed(const std::optional<double>& value, int decimals, bool sign = 
 }
 
 // Left-aligned in `width` columns, and always followed by at least one space.
-std::string padded(std::string text, std::size_t width) {
+// A column of the terminal table; values from plans have their control characters escaped.
+std::string padded(std::string_view value, std::size_t width) {
+  std::string text = escape_control_characters(value);
   text.append(text.size() < width ? width - text.size() : 1, ' ');
   return text;
 }
@@ -183,7 +187,7 @@ ExitCode run_history(const HistoryCommandOptions& options, Io& io) {
     for (const auto& group : groups) trends.push_back(to_json(group));
     document["checks"] = checks;
     document["trends"] = trends;
-    io.out << document.dump(2) << "\n";
+    io.out << report::json_text(document);
     return ExitCode::all_within_tolerance;
   }
   io.out << "History " << db.string() << ": " << all->size() << " check(s) match\n";

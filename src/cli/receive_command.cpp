@@ -5,7 +5,9 @@
 #include <countersign/cli/commands.hpp>
 #include <countersign/service/check_processor.hpp>
 #include <countersign/service/checking_service.hpp>
+#include <countersign/service/dcmtk_log.hpp>
 #include <countersign/service/stop_signals.hpp>
+#include <countersign/util/text.hpp>
 
 #include <countersign/service/storage_receiver.hpp>
 #include "service_startup.hpp"
@@ -32,7 +34,7 @@ struct ReceiveCommandOptions {
   std::string beamdata;
   std::string policy;
   int max_associations = 4;
-  double settle_s = 10.0;
+  IntakeFlags intake;
 };
 
 ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
@@ -40,13 +42,15 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     // Before any other thread exists, so that every thread (DCMTK's included) inherits the mask.
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
+    const service::DcmtkLogRoute dcmtk_log{log};  // DCMTK's network messages in the same log
 
     service::ServiceSettings settings;
     settings.results = options.results;
     settings.inbox = options.inbox.empty() ? settings.results / "incoming" : fs::path{options.inbox};
-    auto opened = open_checking_service(settings, options.settle_s, options.beamdata, options.policy, log);
+    settings.intake = intake_options_from(options.intake);
+    auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
-      io.err << "countersign receive: " << opened.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(opened.error().message()) << "\n";
       return ExitCode::bad_input;
     }
 
@@ -58,7 +62,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     receiver_settings.max_associations = static_cast<std::uint16_t>(options.max_associations);
     auto receiver = service::StorageReceiver::start(receiver_settings, log);
     if (!receiver) {
-      io.err << "countersign receive: " << receiver.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(receiver.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line("beam data " + opened->beamdata_dir.string() + "; stop with SIGTERM or SIGINT");
@@ -68,13 +72,13 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     // Plans received from here on wait in the inbox and are checked at the next start.
     receiver.value()->stop();
     if (!summary) {
-      io.err << "countersign receive: " << summary.error().message() << "\n";
+      io.err << "countersign receive: " << escape_control_characters(summary.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
-    io.err << "countersign receive: " << e.what() << "\n";
+    io.err << "countersign receive: " << escape_control_characters(e.what()) << "\n";
     return ExitCode::bad_input;
   }
 }
@@ -106,11 +110,7 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
   command
       ->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
       ->check(CLI::Range(1, 64));
-  command
-      ->add_option(
-          "--settle-seconds", options->settle_s,
-          "how long an unreadable file in the inbox must be unchanged before it is quarantined (default 10)")
-      ->check(CLI::Range(0.1, 3600.0));
+  add_intake_options(*command, options->intake);
   command->callback([options, &context] { context.exit_code = run_receive(*options, context.io); });
 }
 

@@ -71,9 +71,11 @@ void run_selftest(const SelfTestOptions& options, CommandContext& context) {
     return;
   }
   std::vector<plan::Plan> plans;
-  for (const fs::path& file : plan_files(
-           options.paths.empty() ? std::vector<std::string>{bundled_demo_plans().string()} : options.paths)) {
-    auto plan = dicom::read_plan_file(file);
+  const PlanFileCandidates candidates = plan_file_candidates(
+      options.paths.empty() ? std::vector<std::string>{bundled_demo_plans().string()} : options.paths);
+  for (const PlanFileCandidate& candidate : candidates.files) {
+    auto plan = dicom::read_plan_file(candidate.file);
+    if (!plan && is_skipped_non_plan(candidate, plan.error())) continue;  // the rule of `check FOLDER`
     if (!plan) {
       context.io.err << plan.error().message() << '\n';
       context.exit_code = ExitCode::bad_input;
@@ -82,7 +84,7 @@ void run_selftest(const SelfTestOptions& options, CommandContext& context) {
     plans.push_back(std::move(plan).value());
   }
   if (plans.empty()) {
-    context.io.err << "selftest: no .dcm plan files found\n";
+    context.io.err << "selftest: no RT Plan file found\n";
     context.exit_code = ExitCode::bad_input;
     return;
   }
@@ -104,7 +106,7 @@ void add_selftest_command(CLI::App& app, CommandContext& context) {
       "%);\n"
       "each error that takes a beam beyond its tolerance must be flagged. Exit 0 when every case behaves.");
   command->add_option("plans", options->paths,
-                      "RT Plan files or folders of .dcm files (default: the bundled demo plans, " +
+                      "RT Plan files or folders holding them (default: the bundled demo plans, " +
                           bundled_demo_plans().string() + ")");
   add_beamdata_option(*command, options->beamdata);
   command->callback([options, &context] { run_selftest(*options, context); });

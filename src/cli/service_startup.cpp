@@ -10,7 +10,27 @@ namespace countersign::cli {
 
 namespace fs = std::filesystem;
 
-Expected<OpenedService> open_checking_service(service::ServiceSettings settings, double settle_s,
+void add_intake_options(CLI::App& command, IntakeFlags& flags) {
+  command
+      .add_option("--quiet-seconds,--settle-seconds", flags.quiet_s,
+                  "a file written in the inbox in place (not moved in whole) is read only after it has been "
+                  "unchanged this long (default 2; --settle-seconds is the older name)")
+      ->check(CLI::Range(0.0, 3600.0));
+  command
+      .add_option("--retry-limit", flags.retry_limit,
+                  "a file that cannot be read is retried with growing waits (1 s, 2 s, 4 s ...) and moved to "
+                  "quarantine with the reason at this attempt (default 5)")
+      ->check(CLI::Range(1, 1000));
+}
+
+service::IntakeOptions intake_options_from(const IntakeFlags& flags) {
+  service::IntakeOptions options;
+  options.quiet_period = std::chrono::milliseconds{static_cast<long long>(flags.quiet_s * 1000.0)};
+  options.read_attempts = flags.retry_limit;
+  return options;
+}
+
+Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
                                               const std::string& beamdata_option,
                                               const std::string& policy_option, service::ServiceLog& log) {
   OpenedService opened;
@@ -18,7 +38,6 @@ Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
   auto processor = service::load_check_processor(
       opened.beamdata_dir, policy_option.empty() ? std::nullopt : std::optional<fs::path>{policy_option});
   if (!processor) return processor.error();
-  settings.intake.settle_time = std::chrono::milliseconds{static_cast<long long>(settle_s * 1000.0)};
   auto service = service::CheckingService::open(settings, std::move(processor.value()), log);
   if (!service) return service.error();
   opened.service = std::move(service.value());

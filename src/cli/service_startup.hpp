@@ -1,13 +1,14 @@
 #pragma once
 
-// What `watch` and `receive` share: load the beam data and policy once, open the checking service,
-// and the log line written when a service stops.
+// What `watch` and `receive` share: the options of the intake, loading the beam data and policy
+// once, opening the checking service, and the log line written when a service stops.
 
 #include <countersign/service/checking_service.hpp>
 #include <countersign/service/folder_watcher.hpp>
 #include <countersign/service/service_log.hpp>
 #include <countersign/util/error.hpp>
 
+#include <CLI/CLI.hpp>
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -15,14 +16,20 @@
 
 namespace countersign::cli {
 
+// The command-line options of the intake both services share.
+struct IntakeFlags {
+  double quiet_s = 2.0;  // --quiet-seconds (older name: --settle-seconds)
+  int retry_limit = 5;   // --retry-limit
+};
+void add_intake_options(CLI::App& command, IntakeFlags& flags);
+[[nodiscard]] service::IntakeOptions intake_options_from(const IntakeFlags& flags);
+
 struct OpenedService {
   std::filesystem::path beamdata_dir;  // the library in use, for the log
   std::unique_ptr<service::CheckingService> service;
 };
 
-// settle_s: how long an unreadable inbox file must stay unchanged before it is quarantined.
 [[nodiscard]] Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
-                                                            double settle_s,
                                                             const std::string& beamdata_option,
                                                             const std::string& policy_option,
                                                             service::ServiceLog& log);

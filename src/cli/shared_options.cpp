@@ -1,5 +1,7 @@
 #include "shared_options.hpp"
 
+#include <countersign/dicom/plan_files.hpp>
+
 #include <algorithm>
 #include <map>
 
@@ -11,22 +13,25 @@ namespace countersign::cli {
 
 namespace fs = std::filesystem;
 
-std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
-  std::vector<fs::path> files;
+PlanFileCandidates plan_file_candidates(const std::vector<std::string>& paths) {
+  PlanFileCandidates candidates;
   for (const std::string& path : paths) {
     std::error_code ec;
     if (!fs::is_directory(path, ec)) {
-      files.emplace_back(path);
+      candidates.files.push_back(PlanFileCandidate{path, false});
       continue;
     }
-    std::vector<fs::path> found;
-    for (const auto& entry : fs::directory_iterator(path, ec)) {
-      if (entry.is_regular_file() && entry.path().extension() == ".dcm") found.push_back(entry.path());
-    }
-    std::sort(found.begin(), found.end());
-    files.insert(files.end(), found.begin(), found.end());
+    dicom::FolderListing listing = dicom::list_candidates(path, dicom::Subfolders::ignore);
+    for (fs::path& file : listing.files) candidates.files.push_back(PlanFileCandidate{std::move(file), true});
+    for (fs::path& folder : listing.subfolders) candidates.ignored_subfolders.push_back(std::move(folder));
   }
-  return files;
+  return candidates;
+}
+
+bool is_skipped_non_plan(const PlanFileCandidate& candidate, const Error& read_error) {
+  if (!candidate.from_folder) return false;
+  const dicom::FileContent content = dicom::content_of(read_error);
+  return content == dicom::FileContent::other_object || content == dicom::FileContent::not_dicom;
 }
 
 fs::path beamdata_folder(const std::string& option_value) {

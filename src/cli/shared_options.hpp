@@ -13,8 +13,23 @@
 
 namespace countersign::cli {
 
-// The files named, folders expanded to their .dcm files (sorted, so output order is stable).
-[[nodiscard]] std::vector<std::filesystem::path> plan_files(const std::vector<std::string>& paths);
+struct PlanFileCandidate {
+  std::filesystem::path file;
+  bool from_folder = false;  // found in a folder (a non-plan is skipped), not named (a non-plan is an error)
+};
+
+struct PlanFileCandidates {
+  std::vector<PlanFileCandidate> files;                   // in the order named; a folder's sorted
+  std::vector<std::filesystem::path> ignored_subfolders;  // subfolders of the folders named
+};
+
+// The files named, and each folder's candidate files by the rule the folder watcher uses
+// (dicom::list_candidates: any name but hidden and temporary ones; subfolders are not entered).
+[[nodiscard]] PlanFileCandidates plan_file_candidates(const std::vector<std::string>& paths);
+
+// Whether a file found in a folder that did not read as a plan is passed over: it holds no RT Plan
+// (another DICOM object, or no DICOM at all). A file named on the command line is never passed over.
+[[nodiscard]] bool is_skipped_non_plan(const PlanFileCandidate& candidate, const Error& read_error);
 
 // The library folder to use: the option's value, else the bundled beamdata/ of the source tree.
 [[nodiscard]] std::filesystem::path beamdata_folder(const std::string& option_value);

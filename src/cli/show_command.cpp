@@ -2,7 +2,9 @@
 
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/report/json_text.hpp>
 #include <countersign/report/plan_json.hpp>
+#include <countersign/util/text.hpp>
 
 #include <fmt/format.h>
 
@@ -20,7 +22,8 @@ struct ShowOptions {
   bool json = false;
 };
 
-std::string or_dash(const std::string& text) { return text.empty() ? "-" : text; }
+// A value from the plan on one terminal line: "-" when absent, control characters escaped.
+std::string or_dash(const std::string& text) { return text.empty() ? "-" : escape_control_characters(text); }
 
 std::string number_or_dash(const std::optional<double>& value, int decimals) {
   return value ? fmt::format("{:.{}f}", *value, decimals) : "-";
@@ -52,10 +55,14 @@ const plan::ReferencedBeam* find_reference(const plan::Plan& plan, int beam_numb
 }
 
 void print_summary(const plan::Plan& plan, std::ostream& out) {
-  out << fmt::format("{}\n", plan.source_file);
+  out << fmt::format("{}\n", escape_control_characters(plan.source_file));
   out << fmt::format("  Plan {} ({}), approval {}, SOP Instance UID {}\n", or_dash(plan.label),
                      or_dash(plan.name), or_dash(plan.approval_status), or_dash(plan.sop_instance_uid));
   out << fmt::format("  Patient {} ({})\n", or_dash(plan.patient_id), or_dash(plan.patient_name));
+  if (!plan.specific_character_set.empty())
+    out << fmt::format("  Specific Character Set {}\n", or_dash(plan.specific_character_set));
+  for (const auto& warning : plan.warnings)
+    out << "  Warning: " << escape_control_characters(warning) << "\n";
   for (const auto& group : plan.fraction_groups) {
     out << fmt::format("  Fraction group {}: {} fractions, {} beams\n", group.number,
                        group.fractions_planned ? std::to_string(*group.fractions_planned) : "-",
@@ -110,7 +117,7 @@ void run_show(const ShowOptions& options, CommandContext& context) {
   for (const auto& path : options.paths) {
     auto plan = dicom::read_plan_file(path);
     if (!plan) {
-      context.io.err << "countersign show: " << plan.error().message() << "\n";
+      context.io.err << "countersign show: " << escape_control_characters(plan.error().message()) << "\n";
       context.exit_code = ExitCode::bad_input;
       continue;
     }
@@ -118,11 +125,11 @@ void run_show(const ShowOptions& options, CommandContext& context) {
   }
   if (options.json) {
     if (options.paths.size() == 1) {
-      if (!plans.empty()) context.io.out << report::plan_to_json(plans.front()).dump(2) << "\n";
+      if (!plans.empty()) context.io.out << report::json_text(report::plan_to_json(plans.front()));
     } else {
       nlohmann::json all = nlohmann::json::array();
       for (const auto& plan : plans) all.push_back(report::plan_to_json(plan));
-      context.io.out << all.dump(2) << "\n";
+      context.io.out << report::json_text(all);
     }
     return;
   }

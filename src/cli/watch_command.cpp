@@ -1,10 +1,12 @@
 // `countersign watch INBOX --out RESULTS ...`: checks every RT Plan file that arrives in a folder,
-// exactly once, until SIGTERM or SIGINT (or, with --once, until the folder is empty).
+// exactly once, until SIGTERM or SIGINT (or, with --once, after one pass over what is there).
 
 #include <countersign/cli/commands.hpp>
 #include <countersign/service/check_processor.hpp>
 #include <countersign/service/checking_service.hpp>
+#include <countersign/service/dcmtk_log.hpp>
 #include <countersign/service/stop_signals.hpp>
+#include <countersign/util/text.hpp>
 
 #include "service_startup.hpp"
 #include "shared_options.hpp"
@@ -26,8 +28,9 @@ struct WatchCommandOptions {
   std::string quarantine;
   std::string beamdata;
   std::string policy;
-  double settle_s = 10.0;
+  IntakeFlags intake;
   bool once = false;
+  bool recursive = false;
 };
 
 ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
@@ -35,30 +38,36 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     // Before any other thread exists, so that every thread inherits the blocked signals.
     const service::TerminationSignals signals;
     service::ServiceLog log{io.out};
+    const service::DcmtkLogRoute dcmtk_log{log};  // DCMTK's own messages in the same log
 
     service::ServiceSettings settings;
     settings.inbox = options.inbox;
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
-    auto opened = open_checking_service(settings, options.settle_s, options.beamdata, options.policy, log);
+    settings.intake = intake_options_from(options.intake);
+    settings.watch.subfolders = options.recursive ? dicom::Subfolders::include : dicom::Subfolders::ignore;
+    auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
-      io.err << "countersign watch: " << opened.error().message() << "\n";
+      io.err << "countersign watch: " << escape_control_characters(opened.error().message()) << "\n";
       return ExitCode::bad_input;
     }
     log.line("beam data " + opened->beamdata_dir.string() + "; " +
              (options.once ? "checking what is there, then stopping" : "stop with SIGTERM or SIGINT"));
 
     const int stop_fds[] = {signals.fd()};
-    const auto summary =
-        opened->service->run(options.once ? service::RunUntil::idle : service::RunUntil::stopped, stop_fds);
+    const auto summary = opened->service->run(
+        options.once ? service::RunUntil::one_pass : service::RunUntil::stopped, stop_fds);
     if (!summary) {
-      io.err << "countersign watch: " << summary.error().message() << "\n";
+      io.err << "countersign watch: " << escape_control_characters(summary.error().message()) << "\n";
       return ExitCode::bad_input;
     }
+    for (const std::string& file : summary->not_taken) log.line("not taken: " + file);
     log.line(stopped_line(*summary, signals.take()));
+    // One pass: a file left in the inbox or moved to quarantine needs a person.
+    if (options.once && (!summary->not_taken.empty() || summary->quarantined > 0)) return ExitCode::bad_input;
     return ExitCode::all_within_tolerance;
   } catch (const std::system_error& e) {
-    io.err << "countersign watch: " << e.what() << "\n";
+    io.err << "countersign watch: " << escape_control_characters(e.what()) << "\n";
     return ExitCode::bad_input;
   }
 }
@@ -73,20 +82,25 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
       "Results: RESULTS/<SOPInstanceUID>.json and .html, written atomically; history: "
       "RESULTS/history.sqlite; "
       "checked plan files are kept in RESULTS/plans; files that are not usable plans go to the quarantine "
-      "folder with a .reason.txt. Files already waiting are checked first. SIGTERM or SIGINT finishes the "
-      "current plan and stops. The check supports, and does not replace, the physicist's review.");
+      "folder with a .reason.txt. Files already waiting are checked first. A file moved into INBOX is read "
+      "at "
+      "once; one written in place only when unchanged for --quiet-seconds (exporters should write elsewhere "
+      "and rename). SIGTERM or SIGINT finishes the plans in hand and stops. The check supports, and does "
+      "not replace, the physicist's review.");
   command->add_option("inbox", options->inbox, "folder the planning system exports to")->required();
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
   command->add_option("--quarantine", options->quarantine,
                       "folder for bad files (default: RESULTS/quarantine)");
   add_beamdata_option(*command, options->beamdata);
   add_policy_option(*command, options->policy);
-  command
-      ->add_option("--settle-seconds", options->settle_s,
-                   "a file that does not read as a plan is retried until it has been unchanged this long, "
-                   "then quarantined (default 10)")
-      ->check(CLI::Range(0.1, 3600.0));
-  command->add_flag("--once", options->once, "check what is in INBOX now, then stop");
+  add_intake_options(*command, options->intake);
+  command->add_flag(
+      "--recursive", options->recursive,
+      "watch the subfolders of INBOX too (without it, a subfolder is named in the log once and its "
+      "files are left alone)");
+  command->add_flag("--once", options->once,
+                    "one pass over what is in INBOX now, then stop; exit 3 when a file was quarantined or "
+                    "could not be taken (each named in the log)");
   command->callback([options, &context] { context.exit_code = run_watch(*options, context.io); });
 }
 

@@ -5,8 +5,11 @@
 #include <dcmtk/dcmdata/dcsequen.h>
 #include <dcmtk/dcmdata/dctag.h>
 
+#include <countersign/util/text.hpp>
+
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <limits>
@@ -69,13 +72,14 @@ std::string keyword(const DcmTagKey& tag) {
 }
 
 std::string printable(const std::string& text) {
-  std::string out;
-  for (const char c : text.substr(0, 64)) {
-    const auto u = static_cast<unsigned char>(c);
-    out += (u < 0x20 || u == 0x7F) ? '?' : c;
-  }
+  std::string out = escape_control_characters(std::string_view{text}.substr(0, 64));
   if (text.size() > 64) out += "...";
   return out;
+}
+
+void ErrorSink::warn(std::string warning) {
+  if (std::find(warnings_.begin(), warnings_.end(), warning) == warnings_.end())
+    warnings_.push_back(std::move(warning));
 }
 
 std::optional<double> parse_decimal(const std::string& text) {
@@ -105,7 +109,24 @@ std::optional<long long> parse_integer(const std::string& text) {
 }
 
 ItemReader::ItemReader(DcmItem& item, const std::string& file, std::string where, ErrorSink& sink)
-    : item_(&item), file_(&file), where_(std::move(where)), sink_(&sink) {}
+    : ItemReader(item, file, std::move(where), sink, TextDecoder::for_item(item, nullptr)) {}
+
+ItemReader::ItemReader(DcmItem& item, const std::string& file, std::string where, ErrorSink& sink,
+                       std::shared_ptr<TextDecoder> decoder)
+    : item_(&item), file_(&file), where_(std::move(where)), sink_(&sink), decoder_(std::move(decoder)) {}
+
+void ItemReader::warn_replaced(const DcmTagKey& tag, std::size_t replaced_bytes) const {
+  const std::string& declared = decoder_->declared();
+  // Both are UTF-8 already; what they may hold of control characters is escaped where shown.
+  const std::string set = declared.empty() ? "the default character repertoire (no SpecificCharacterSet)"
+                                           : "SpecificCharacterSet \"" + declared + "\"";
+  const std::string why = decoder_->unusable_reason().empty()
+                              ? std::string{}
+                              : " (" + valid_utf8(decoder_->unusable_reason()) + ")";
+  const std::string located = where_.empty() ? std::string{} : " in " + where_;
+  sink_->warn(fmt::format("{} {}{}: {} byte(s) could not be decoded as {}{} and are shown as U+FFFD",
+                          keyword(tag), tag_text(tag), located, replaced_bytes, set, why));
+}
 
 DcmElement* ItemReader::element(const DcmTagKey& tag) const {
   DcmElement* found = nullptr;
@@ -145,7 +166,10 @@ std::string ItemReader::text(const DcmTagKey& tag, Need need) const {
     fail(ErrorKind::bad_value, tag, "value cannot be read");
     return {};
   }
-  return trim(std::string(value.c_str(), value.length()));
+  const DecodedText decoded =
+      decoder_->decode(std::string_view{value.c_str(), value.length()}, found->ident());
+  if (decoded.replaced_bytes > 0) warn_replaced(tag, decoded.replaced_bytes);
+  return trim(decoded.utf8);
 }
 
 std::optional<std::vector<double>> ItemReader::all_numbers(const DcmTagKey& tag, Need need) const {
@@ -269,7 +293,7 @@ std::optional<int> ItemReader::integer(const DcmTagKey& tag, Need need) const {
 }
 
 ItemReader ItemReader::described(const std::string& suffix) const {
-  return ItemReader(*item_, *file_, where_ + suffix, *sink_);
+  return ItemReader(*item_, *file_, where_ + suffix, *sink_, decoder_);
 }
 
 std::vector<ItemReader> ItemReader::sequence(const DcmTagKey& tag, Need need) const {
@@ -294,7 +318,8 @@ std::vector<ItemReader> ItemReader::sequence(const DcmTagKey& tag, Need need) co
   for (unsigned long i = 0; i < count; ++i) {
     DcmItem* child = sequence->getItem(i);
     if (child == nullptr) continue;
-    items.emplace_back(*child, *file_, fmt::format("{}{} item {}", prefix, keyword(tag), i + 1), *sink_);
+    items.push_back(ItemReader(*child, *file_, fmt::format("{}{} item {}", prefix, keyword(tag), i + 1),
+                               *sink_, TextDecoder::for_item(*child, decoder_)));
   }
   return items;
 }

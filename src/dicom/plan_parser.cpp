@@ -164,6 +164,7 @@ Expected<plan::Plan> read_plan_dataset(DcmItem& dataset, std::string display_nam
   for (const auto& item : top.sequence(DCM_ReferencedStructureSetSequence, Need::optional)) {
     plan.referenced_structure_set_uids.push_back(item.text(DCM_ReferencedSOPInstanceUID, Need::optional));
   }
+  plan.specific_character_set = top.character_set();
   if (sink.failed()) return sink.error();
 
   plan.patient_setups = detail::parse_patient_setups(top);
@@ -176,6 +177,7 @@ Expected<plan::Plan> read_plan_dataset(DcmItem& dataset, std::string display_nam
   if (sink.failed()) return sink.error();
   detail::check_references(top, plan);
   if (sink.failed()) return sink.error();
+  plan.warnings = sink.warnings();
   return plan;
 }
 

@@ -27,10 +27,11 @@ namespace {
 
 constexpr std::uintmax_t max_file_bytes = 256u * 1024u * 1024u;  // an RT Plan is far smaller
 
-// DCMTK logs its own parse errors to stderr; ours are reported as one line by the caller.
+// DCMTK logs its own parse errors (dcmdata); ours are reported as one line by the caller. Other
+// DCMTK loggers (the network library) keep their level; the services route them to their log.
 void quiet_dcmtk_logging() {
   static std::once_flag once;
-  std::call_once(once, [] { OFLog::getLogger("dcmtk").setLogLevel(OFLogger::FATAL_LOG_LEVEL); });
+  std::call_once(once, [] { OFLog::getLogger("dcmtk.dcmdata").setLogLevel(OFLogger::FATAL_LOG_LEVEL); });
 }
 
 bool has_part10_preamble(std::span<const std::byte> bytes) {

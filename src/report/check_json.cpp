@@ -243,6 +243,7 @@ json check_to_json(const check::PlanCheck& c) {
               {"patient_name", c.patient_name},
               {"plan_label", c.plan_label},
               {"approval_status", c.approval_status},
+              {"warnings", c.warnings},
               {"status", std::string(check::to_code(c.status))},
               {"reason", std::string(engine::reason_code(c.reason.reason))},
               {"explanation", c.reason.sentence},
@@ -257,11 +258,12 @@ json check_to_json(const check::PlanCheck& c) {
 }
 
 json check_run_to_json(const std::vector<check::PlanCheck>& checks, const std::vector<std::string>& errors,
-                       int exit_code) {
+                       int exit_code, const std::vector<std::string>& skipped_files) {
   json plans = json::array();
   for (const check::PlanCheck& c : checks) plans.push_back(check_to_json(c));
   return json{{"plans", std::move(plans)},
               {"errors", errors},
+              {"skipped_files", skipped_files},
               {"exit_code", exit_code},
               {"caution", std::string(caution_text())}};
 }

@@ -1,5 +1,7 @@
 #include <countersign/report/check_text.hpp>
 
+#include <countersign/util/text.hpp>
+
 #include <fmt/format.h>
 
 #include <cmath>
@@ -22,24 +24,30 @@ std::string depth_label(const check::BeamCheck& b) {
   return fmt::format("{:.1f} {}", d.depth_mm / 10.0, tag);
 }
 
+// A value from the plan file, on one line of a terminal: control characters escaped.
+std::string shown(std::string_view text) { return escape_control_characters(text); }
+
 }  // namespace
 
 void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   out << fmt::format("Plan {} ({}), patient {}, SOP Instance UID {}\n",
-                     c.plan_label.empty() ? "-" : c.plan_label, c.source_file,
-                     c.patient_id.empty() ? "-" : c.patient_id, c.sop_instance_uid);
+                     c.plan_label.empty() ? "-" : shown(c.plan_label), shown(c.source_file),
+                     c.patient_id.empty() ? "-" : shown(c.patient_id), shown(c.sop_instance_uid));
   out << fmt::format("Beam data: {} (SHA-256 {})\n", c.beamdata_root, c.beamdata_sha256);
-  out << fmt::format("Tolerance policy: {}\n\n", c.options.policy.source);
+  out << fmt::format("Tolerance policy: {}\n", c.options.policy.source);
+  for (const std::string& warning : c.warnings)
+    out << "Warning: " << escape_control_characters(warning) << "\n";
+  out << "\n";
   out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG",
                      "Beam", "Name", "MU", "Plan Gy", "Calc Gy", "Dev %", "Tol %", "Indep MU", "Method",
                      "Depth cm", "Status");
   for (const check::BeamCheck& b : c.beams) {
     const bool computed = b.calculation && b.calculation->dose_computed;
     out << fmt::format("{:>2} {:>4} {:<12.12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n",
-                       b.fraction_group_number, b.beam_number, b.beam_name, number(b.meterset_mu, "{:.1f}"),
-                       number(b.planned_dose_gy, "{:.4f}"), number(b.computed_dose_gy, "{:.4f}"),
-                       number(b.deviation_percent, "{:+.2f}"), number(b.tolerance_percent, "{:.1f}"),
-                       number(b.independent_mu, "{:.1f}"),
+                       b.fraction_group_number, b.beam_number, shown(b.beam_name),
+                       number(b.meterset_mu, "{:.1f}"), number(b.planned_dose_gy, "{:.4f}"),
+                       number(b.computed_dose_gy, "{:.4f}"), number(b.deviation_percent, "{:+.2f}"),
+                       number(b.tolerance_percent, "{:.1f}"), number(b.independent_mu, "{:.1f}"),
                        computed ? std::string(engine::to_code(b.calculation->method)) : std::string("-"),
                        depth_label(b), check::to_code(b.status));
   }
@@ -51,14 +59,14 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
     }
     if (!header) out << "\n";
     header = true;
-    out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, b.beam_name, check::to_code(b.status),
-                       engine::reason_code(b.reason.reason), b.reason.sentence);
+    out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, shown(b.beam_name),
+                       check::to_code(b.status), engine::reason_code(b.reason.reason), b.reason.sentence);
   }
   if (!c.dose_references.empty()) {
     out << "\nDose references (sum of contributions):\n";
     for (const check::DoseReferenceCheck& r : c.dose_references) {
       out << fmt::format("  FG {} reference {} {}: planned {:.4f} Gy, computed {} Gy, deviation {} %{}\n",
-                         r.fraction_group_number, r.number, r.description, r.planned_dose_gy,
+                         r.fraction_group_number, r.number, shown(r.description), r.planned_dose_gy,
                          number(r.computed_dose_gy, "{:.4f}"), number(r.deviation_percent, "{:+.2f}"),
                          r.note.empty() ? "" : " (" + r.note + ")");
     }
@@ -80,7 +88,7 @@ void write_plan_summary_line(std::ostream& out, const check::PlanCheck& c) {
       "{:<18} {:>3} within {:>3} outside {:>3} not checked {:>3} skipped  largest {:>8}  {} ({})\n",
       check::to_code(c.status), within, outside, not_checked, skipped,
       largest_deviation_percent ? fmt::format("{:+.2f} %", *largest_deviation_percent) : std::string{"-"},
-      c.plan_label, c.source_file);
+      shown(c.plan_label), shown(c.source_file));
 }
 
 }  // namespace countersign::report

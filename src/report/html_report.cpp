@@ -178,6 +178,7 @@ std::string html_report(const check::PlanCheck& check, const HtmlOptions& option
   page += identity_row("Approval status", or_dash(check.approval_status));
   page += identity_row("SOP Instance UID", or_dash(check.sop_instance_uid), "mono");
   page += identity_row("Plan file", or_dash(check.source_file), "mono");
+  for (const std::string& warning : check.warnings) page += identity_row("Reading warning", warning);
   page += "</table>\n<h2>Calculation</h2>\n<table class=\"identity\">\n";
   page += identity_row("Machine", machines_of(check));
   page += identity_row("Beam-data library", or_dash(check.beamdata_root), "mono");

@@ -5,6 +5,7 @@
 #include <countersign/engine/reason.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/report/json_text.hpp>
 
 #include <string>
 #include <utility>
@@ -85,7 +86,7 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
     const check::PlanCheck check = check::check_plan(plan.value(), *library, options);
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
-        report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())).dump(2) + "\n";
+        report::json_text(report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())));
     report::HtmlOptions html;
     html.plan = &plan.value();
     outcome.html_text = report::html_report(check, html);

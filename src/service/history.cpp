@@ -286,25 +286,26 @@ Expected<std::optional<CheckRecord>> History::find_by_content(const std::string&
   return std::optional<CheckRecord>{std::move(record)};
 }
 
-Expected<CheckRecord> History::record(const NewCheck& check, const std::string& checked_at_utc) {
-  sqlite3* db = db_.get();
-  Transaction transaction{db};
-  if (!transaction.began()) return db_error(file_, db, "cannot start a transaction");
+namespace {
 
+// Inserts one check (and its beams, and the mark on the check it replaces) inside the caller's
+// transaction.
+Expected<CheckRecord> insert_check(const fs::path& file, sqlite3* db, const NewCheck& check,
+                                   const std::string& checked_at_utc) {
   // The current check of the same plan with other content, which this one replaces.
   std::optional<std::int64_t> replaces;
   {
     Statement query{db,
                     "SELECT id FROM checks WHERE sop_instance_uid = ?1 AND content_sha256 <> ?2 "
                     "AND superseded_by_check_id IS NULL ORDER BY id DESC LIMIT 1"};
-    if (!query.ok()) return db_error(file_, db, "cannot look up earlier checks");
+    if (!query.ok()) return db_error(file, db, "cannot look up earlier checks");
     query.bind(1, check.outcome.sop_instance_uid);
     query.bind(2, check.content_sha256);
     const int status = query.step();
     if (status == SQLITE_ROW) {
       replaces = query.integer(0);
     } else if (status != SQLITE_DONE) {
-      return db_error(file_, db, "cannot look up earlier checks");
+      return db_error(file, db, "cannot look up earlier checks");
     }
   }
 
@@ -314,7 +315,7 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
       "INSERT INTO checks (sop_instance_uid, content_sha256, patient_id, plan_label, verdict, "
       "beamdata_sha256, software_version, checked_at_utc, source_name, result_file, replaces_check_id) "
       "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
-  if (!insert.ok()) return db_error(file_, db, "cannot prepare insert");
+  if (!insert.ok()) return db_error(file, db, "cannot prepare insert");
   insert.bind(1, outcome.sop_instance_uid);
   insert.bind(2, check.content_sha256);
   insert.bind(3, outcome.patient_id);
@@ -326,7 +327,7 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
   insert.bind(9, check.source_name);
   insert.bind(10, check.result_file);
   insert.bind(11, replaces);
-  if (insert.step() != SQLITE_DONE) return db_error(file_, db, "cannot record check");
+  if (insert.step() != SQLITE_DONE) return db_error(file, db, "cannot record check");
   const std::int64_t id = sqlite3_last_insert_rowid(db);
 
   Statement beam_insert{
@@ -334,7 +335,7 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
       "INSERT INTO beams (check_id, position, beam_number, beam_name, machine, energy_mv, technique, "
       "verdict, deviation_percent, tolerance_percent, reason) "
       "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)"};
-  if (!beam_insert.ok()) return db_error(file_, db, "cannot prepare beam insert");
+  if (!beam_insert.ok()) return db_error(file, db, "cannot prepare beam insert");
   int position = 0;
   for (const auto& beam : outcome.beams) {
     Statement& one = beam_insert;
@@ -350,17 +351,16 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
     one.bind(9, beam.deviation_percent);
     one.bind(10, beam.tolerance_percent);
     one.bind(11, beam.reason);
-    if (one.step() != SQLITE_DONE) return db_error(file_, db, "cannot record beam");
+    if (one.step() != SQLITE_DONE) return db_error(file, db, "cannot record beam");
   }
 
   if (replaces) {
     Statement update{db, "UPDATE checks SET superseded_by_check_id = ?1 WHERE id = ?2"};
-    if (!update.ok()) return db_error(file_, db, "cannot prepare update");
+    if (!update.ok()) return db_error(file, db, "cannot prepare update");
     update.bind(1, id);
     update.bind(2, *replaces);
-    if (update.step() != SQLITE_DONE) return db_error(file_, db, "cannot mark the replaced check");
+    if (update.step() != SQLITE_DONE) return db_error(file, db, "cannot mark the replaced check");
   }
-  if (!transaction.commit()) return db_error(file_, db, "cannot commit");
 
   CheckRecord stored;
   stored.id = id;
@@ -376,6 +376,31 @@ Expected<CheckRecord> History::record(const NewCheck& check, const std::string& 
   stored.result_file = check.result_file;
   stored.replaces_check_id = replaces;
   stored.beams = outcome.beams;
+  return stored;
+}
+
+}  // namespace
+
+Expected<CheckRecord> History::record(const NewCheck& check, const std::string& checked_at_utc) {
+  auto stored = record_batch({check}, checked_at_utc);
+  if (!stored) return stored.error();
+  return std::move(stored.value().front());
+}
+
+Expected<std::vector<CheckRecord>> History::record_batch(const std::vector<NewCheck>& checks,
+                                                         const std::string& checked_at_utc) {
+  sqlite3* db = db_.get();
+  Transaction transaction{db};
+  if (!transaction.began()) return db_error(file_, db, "cannot start a transaction");
+  std::vector<CheckRecord> stored;
+  stored.reserve(checks.size());
+  for (const NewCheck& check : checks) {
+    auto one = insert_check(file_, db, check, checked_at_utc);
+    if (!one) return one.error();  // the transaction rolls back: none is recorded
+    stored.push_back(std::move(one.value()));
+  }
+  // The commit point of every check of the batch (synchronous=FULL: durable when it returns).
+  if (!transaction.commit()) return db_error(file_, db, "cannot commit");
   return stored;
 }
 

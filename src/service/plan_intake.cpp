@@ -2,6 +2,8 @@
 #include <countersign/service/private_files.hpp>
 
 #include <countersign/beamdata/sha256.hpp>
+#include <countersign/dicom/plan_files.hpp>
+#include <countersign/util/text.hpp>
 #include <countersign/util/version.hpp>
 
 #include <countersign/service/unique_fd.hpp>
@@ -10,9 +12,11 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
 #include <exception>
+#include <set>
 #include <sstream>
 #include <vector>
 
@@ -25,6 +29,8 @@ namespace {
 
 // A plan is at most a few megabytes; anything far larger is not one (and must not exhaust memory).
 constexpr std::size_t max_plan_bytes = std::size_t{256} << 20;
+// A modification time this far ahead of our clock is not trusted for the quiet period.
+constexpr auto future_tolerance = std::chrono::seconds{1};
 
 enum class ReadState { ok, vanished, not_regular, busy, changed_while_reading, too_large, io_error };
 
@@ -32,7 +38,8 @@ struct FileRead {
   ReadState state = ReadState::io_error;
   std::vector<std::byte> bytes;
   Clock::time_point modified{};
-  std::string detail;  // for io_error
+  std::string signature;  // size, modification and change times, inode: any write changes it
+  std::string detail;     // for io_error
 };
 
 Clock::time_point to_time_point(const struct timespec& ts) {
@@ -40,14 +47,15 @@ Clock::time_point to_time_point(const struct timespec& ts) {
                                                                        std::chrono::nanoseconds{ts.tv_nsec})};
 }
 
-bool same_version(const struct stat& a, const struct stat& b) {
-  return a.st_size == b.st_size && a.st_mtim.tv_sec == b.st_mtim.tv_sec &&
-         a.st_mtim.tv_nsec == b.st_mtim.tv_nsec && a.st_ino == b.st_ino;
+std::string signature_of(const struct stat& s) {
+  return std::to_string(s.st_size) + ":" + std::to_string(s.st_mtim.tv_sec) + "." +
+         std::to_string(s.st_mtim.tv_nsec) + ":" + std::to_string(s.st_ctim.tv_sec) + "." +
+         std::to_string(s.st_ctim.tv_nsec) + ":" + std::to_string(s.st_ino);
 }
 
 // True when some process holds the file open for writing. A read lease cannot be granted then; where
-// leases are not permitted (another owner, no CAP_LEASE) the answer is "not known" and the settle time
-// and the parse decide.
+// leases are not permitted (another owner, no CAP_LEASE) the answer is "not known" and the quiet
+// period and the before/after comparison decide.
 bool open_for_writing_elsewhere(int fd) {
   if (::fcntl(fd, F_SETLEASE, F_RDLCK) == 0) {
     ::fcntl(fd, F_SETLEASE, F_UNLCK);
@@ -56,12 +64,41 @@ bool open_for_writing_elsewhere(int fd) {
   return errno == EAGAIN;
 }
 
+// Reads into `result.bytes` until end of file; false (with detail) on a read error or when the file
+// outgrows the limit.
+bool read_to_end(int fd, FileRead& result) {
+  std::size_t filled = 0;
+  for (;;) {
+    if (filled == result.bytes.size()) {
+      if (result.bytes.size() > max_plan_bytes) {
+        result.state = ReadState::too_large;
+        return false;
+      }
+      result.bytes.resize(result.bytes.size() * 2);
+    }
+    const ssize_t got = ::read(fd, result.bytes.data() + filled, result.bytes.size() - filled);
+    if (got < 0 && errno == EINTR) continue;
+    if (got < 0) {
+      result.detail = std::strerror(errno);
+      return false;
+    }
+    if (got == 0) break;
+    filled += static_cast<std::size_t>(got);
+  }
+  result.bytes.resize(filled);
+  return true;
+}
+
+// The whole file, with the guarantee that nothing changed it while it was read: the size, times
+// and inode are compared before and after.
 FileRead read_whole_file(const fs::path& file) {
   FileRead result;
   const UniqueFd fd{::open(file.c_str(), O_RDONLY | O_NOFOLLOW | O_NONBLOCK | O_CLOEXEC)};
   if (!fd.valid()) {
-    result.state = (errno == ENOENT) ? ReadState::vanished
-                                     : (errno == ELOOP ? ReadState::not_regular : ReadState::io_error);
+    result.state = (errno == ENOENT)        ? ReadState::vanished
+                   : (errno == ELOOP)       ? ReadState::not_regular
+                   : (errno == EWOULDBLOCK) ? ReadState::busy  // a writer holds a lease
+                                            : ReadState::io_error;
     result.detail = std::strerror(errno);
     return result;
   }
@@ -75,6 +112,7 @@ FileRead read_whole_file(const fs::path& file) {
     return result;
   }
   result.modified = to_time_point(before.st_mtim);
+  result.signature = signature_of(before);
   if (open_for_writing_elsewhere(fd.get())) {
     result.state = ReadState::busy;
     return result;
@@ -84,28 +122,10 @@ FileRead read_whole_file(const fs::path& file) {
     return result;
   }
   result.bytes.resize(static_cast<std::size_t>(before.st_size) + 1);  // one more: notices growth
-  std::size_t filled = 0;
-  for (;;) {
-    if (filled == result.bytes.size()) {
-      if (result.bytes.size() > max_plan_bytes) {
-        result.state = ReadState::too_large;
-        return result;
-      }
-      result.bytes.resize(result.bytes.size() * 2);
-    }
-    const ssize_t got = ::read(fd.get(), result.bytes.data() + filled, result.bytes.size() - filled);
-    if (got < 0 && errno == EINTR) continue;
-    if (got < 0) {
-      result.detail = std::strerror(errno);
-      return result;
-    }
-    if (got == 0) break;
-    filled += static_cast<std::size_t>(got);
-  }
-  result.bytes.resize(filled);
+  if (!read_to_end(fd.get(), result)) return result;
   struct stat after {};
-  if (::fstat(fd.get(), &after) != 0 || !same_version(before, after) ||
-      filled != static_cast<std::size_t>(after.st_size)) {
+  if (::fstat(fd.get(), &after) != 0 || signature_of(after) != result.signature ||
+      result.bytes.size() != static_cast<std::size_t>(after.st_size)) {
     result.state = ReadState::changed_while_reading;
     return result;
   }
@@ -117,19 +137,28 @@ std::string format_milliseconds(Clock::duration elapsed) {
   return std::to_string(std::chrono::duration_cast<std::chrono::milliseconds>(elapsed).count()) + " ms";
 }
 
-bool ends_with(std::string_view text, std::string_view suffix) {
-  return text.size() >= suffix.size() && text.substr(text.size() - suffix.size()) == suffix;
+std::string format_seconds(std::chrono::milliseconds wait) {
+  const auto tenths = (wait.count() + 50) / 100;
+  return std::to_string(tenths / 10) + (tenths % 10 != 0 ? "." + std::to_string(tenths % 10) : "") + " s";
+}
+
+// The name as logged: relative to the inbox (a subfolder shows), never with the folder's own path.
+std::string shown_name(const fs::path& inbox, const fs::path& file) {
+  const fs::path relative = file.lexically_relative(inbox);
+  return relative.empty() || *relative.begin() == ".." ? file.filename().string() : relative.string();
 }
 
 }  // namespace
 
-bool is_candidate_name(std::string_view file_name) {
-  if (file_name.empty() || file_name.front() == '.') return false;
-  for (const std::string_view suffix : {".part", ".partial", ".tmp", ".reason.txt"}) {
-    if (ends_with(file_name, suffix)) return false;
-  }
-  return true;
-}
+// A plan checked in this batch, waiting for the commit.
+struct PlanIntake::Pending {
+  IntakeCandidate candidate;
+  std::string name;
+  std::string content_sha256;
+  PlanOutcome outcome;
+  Clock::time_point started;
+  std::size_t index = 0;  // of the candidate in the batch
+};
 
 bool is_safe_uid(std::string_view uid) {
   if (uid.empty() || uid.size() > 64 || uid.front() == '.' || uid.back() == '.') return false;
@@ -172,28 +201,38 @@ PlanIntake::PlanIntake(ServiceFolders folders, History history, PlanProcessor pr
       log_(log),
       options_(options) {}
 
-IntakeResult PlanIntake::fail(const fs::path& file, const std::string& reason) {
+std::chrono::milliseconds PlanIntake::back_off(int attempt) const {
+  auto wait = options_.first_retry;
+  for (int i = 1; i < attempt && wait < options_.max_retry; ++i) wait *= 2;
+  return std::min(wait, options_.max_retry);
+}
+
+IntakeResult PlanIntake::fail(const fs::path& file, const std::string& reason, int attempt) {
   IntakeResult result;
   result.status = IntakeStatus::failed;
-  result.retry_at = Clock::now() + options_.failure_retry;
-  result.message =
-      "error " + file.filename().string() + ": " + reason + "; the file stays in the inbox, retry in " +
-      std::to_string(std::chrono::duration_cast<std::chrono::seconds>(options_.failure_retry).count()) + " s";
+  const auto wait = back_off(attempt);
+  result.retry_at = Clock::now() + wait;
+  result.message = "error " + shown_name(folders_.inbox, file) + ": " + reason +
+                   "; the file stays in the inbox (attempt " + std::to_string(attempt) + ", next in " +
+                   format_seconds(wait) + ")";
   log_.line(result.message);
   return result;
 }
 
 IntakeResult PlanIntake::quarantine(const fs::path& file, std::string_view content_sha256,
                                     const std::string& reason) {
+  const std::string name = shown_name(folders_.inbox, file);
   const fs::path wanted = folders_.quarantine / file.filename();
   auto moved = move_file_durably(file, wanted, OnExisting::pick_free_name);
-  if (!moved) return fail(file, "cannot quarantine: " + moved.error().message());
+  if (!moved) return fail(file, "cannot quarantine: " + moved.error().message(), 1);
 
+  // The note is read by people: one value per line, none able to add a line of its own.
   std::ostringstream text;
   text << "countersign did not check this file. It was moved here at " << utc_timestamp_now() << ".\n"
-       << "file: " << file.filename().string() << " (arrived in " << folders_.inbox.string() << ")\n";
+       << "file: " << escape_control_characters(name) << " (arrived in "
+       << escape_control_characters(folders_.inbox.string()) << ")\n";
   if (!content_sha256.empty()) text << "content_sha256: " << content_sha256 << "\n";
-  text << "reason: " << reason << "\n";
+  text << "reason: " << escape_control_characters(reason) << "\n";
   fs::path reason_file = moved.value();
   reason_file += ".reason.txt";
   // The file is already safe in quarantine; a missing reason note is logged, not retried.
@@ -201,8 +240,7 @@ IntakeResult PlanIntake::quarantine(const fs::path& file, std::string_view conte
 
   IntakeResult result;
   result.status = IntakeStatus::quarantined;
-  result.message =
-      "quarantined " + file.filename().string() + " as " + moved.value().string() + ": " + reason;
+  result.message = "quarantined " + name + " as " + moved.value().string() + ": " + reason;
   if (!written) result.message += " (reason note not written: " + written.error().message() + ")";
   log_.line(result.message);
   return result;
@@ -222,60 +260,90 @@ Expected<fs::path> PlanIntake::move_to_checked(const fs::path& file, const std::
   return move_file_durably(file, destination, OnExisting::replace, DirectorySync::deferred);
 }
 
-IntakeResult PlanIntake::take(const fs::path& file) {
-  const auto started = Clock::now();
-  const std::string name = file.filename().string();
+IntakeResult PlanIntake::finish_duplicate(const fs::path& file, const CheckRecord& record,
+                                          const std::string& content_sha256) {
+  auto moved = move_to_checked(file, record.sop_instance_uid, content_sha256);
+  if (!moved) return fail(file, moved.error().message(), 1);
   IntakeResult result;
-  if (!is_candidate_name(name)) return result;
+  result.status = IntakeStatus::duplicate;
+  result.message = "already checked " + shown_name(folders_.inbox, file) + ": same content as check #" +
+                   std::to_string(record.id) + " of " + record.sop_instance_uid + " (" +
+                   std::string{to_string(record.verdict)} + "), not checked again";
+  result.record = record;
+  log_.line(result.message);
+  return result;
+}
+
+std::optional<IntakeResult> PlanIntake::wait_for_quiet(const IntakeCandidate& candidate,
+                                                       const std::string& signature,
+                                                       Clock::time_point modified) {
+  if (candidate.arrival == Arrival::complete) return std::nullopt;
+  const auto now = Clock::now();
+  Clock::time_point changed = modified;
+  if (modified > now + future_tolerance) {
+    auto& seen = observed_[candidate.file];
+    if (seen.signature != signature) seen = Observed{signature, now};
+    changed = seen.since;
+  }
+  if (now - changed >= options_.quiet_period) return std::nullopt;
+  IntakeResult result;
+  result.status = IntakeStatus::not_ready;
+  result.retry_at = changed + options_.quiet_period + std::chrono::milliseconds{20};
+  result.message =
+      "still being written (changed less than " + format_seconds(options_.quiet_period) + " ago)";
+  return result;
+}
+
+// Everything up to the commit: a final result for this file, or nullopt when it is settled at the
+// commit (checked and added to `pending`, or a copy of a file checked earlier in the batch).
+std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate, std::size_t index,
+                                                std::vector<Pending>& pending) {
+  const auto started = Clock::now();
+  const fs::path& file = candidate.file;
+  if (!dicom::is_candidate_name(file.filename().string())) return IntakeResult{};
 
   FileRead read = read_whole_file(file);
   switch (read.state) {
     case ReadState::vanished:
     case ReadState::not_regular:
-      return result;
+      return IntakeResult{};
     case ReadState::busy:
-    case ReadState::changed_while_reading:
+    case ReadState::changed_while_reading: {
+      IntakeResult result;
       result.status = IntakeStatus::not_ready;
       result.retry_at = started + options_.busy_retry;
+      result.message = read.state == ReadState::busy ? "held open for writing by another program"
+                                                     : "changed while it was read";
       return result;
+    }
     case ReadState::too_large:
       return quarantine(file, "",
                         "larger than " + std::to_string(max_plan_bytes >> 20) + " MiB: not an RT Plan");
     case ReadState::io_error:
-      return fail(file, "cannot read: " + read.detail);
+      if (candidate.attempt >= options_.read_attempts) {
+        return quarantine(
+            file, "",
+            "could not be read in " + std::to_string(candidate.attempt) + " attempts: " + read.detail);
+      }
+      return fail(file, "cannot read (" + read.detail + ")", candidate.attempt);
     case ReadState::ok:
       break;
   }
-  const bool may_be_growing = started - read.modified < options_.settle_time;
+  if (auto waiting = wait_for_quiet(candidate, read.signature, read.modified)) return waiting;
 
   const std::string content_sha256 = beamdata::sha256_hex(
       std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
-
+  // The same bytes earlier in this batch: settled once the batch is committed.
+  for (const Pending& earlier : pending) {
+    if (earlier.content_sha256 == content_sha256) return std::nullopt;
+  }
   // Exactly once: these bytes were checked before (a second copy, or a restart after a crash that
   // came between the record and the move).
   auto earlier = history_.find_by_content(content_sha256);
-  if (!earlier) return fail(file, earlier.error().message());
-  if (earlier.value()) {
-    const CheckRecord& record = *earlier.value();
-    auto moved = move_to_checked(file, record.sop_instance_uid, content_sha256);
-    if (!moved) return fail(file, moved.error().message());
-    result.status = IntakeStatus::duplicate;
-    result.message = "already checked " + name + ": same content as check #" + std::to_string(record.id) +
-                     " of " + record.sop_instance_uid + " (" + std::string{to_string(record.verdict)} +
-                     "), not checked again";
-    result.record = record;
-    log_.line(result.message);
-    return result;
-  }
+  if (!earlier) return fail(file, earlier.error().message(), candidate.attempt);
+  if (earlier.value()) return finish_duplicate(file, *earlier.value(), content_sha256);
 
-  if (read.bytes.empty()) {
-    if (may_be_growing) {
-      result.status = IntakeStatus::not_ready;
-      result.retry_at = read.modified + options_.settle_time;
-      return result;
-    }
-    return quarantine(file, content_sha256, "empty file: not an RT Plan");
-  }
+  if (read.bytes.empty()) return quarantine(file, content_sha256, "empty file: not an RT Plan");
 
   std::optional<Expected<PlanOutcome>> processed;
   try {
@@ -285,73 +353,119 @@ IntakeResult PlanIntake::take(const fs::path& file) {
     processed.emplace(Error{ErrorKind::inconsistent, file.string(), "", "",
                             std::string{"internal error while checking: "} + e.what()});
   }
-  if (!processed->has_value()) {
-    if (may_be_growing) {
-      result.status = IntakeStatus::not_ready;
-      result.retry_at = read.modified + options_.settle_time + std::chrono::milliseconds{50};
-      return result;
-    }
-    return quarantine(file, content_sha256, processed->error().message());
-  }
-  const PlanOutcome& outcome = processed->value();
+  if (!processed->has_value()) return quarantine(file, content_sha256, processed->error().message());
+  PlanOutcome& outcome = processed->value();
   if (!is_safe_uid(outcome.sop_instance_uid)) {
     return quarantine(file, content_sha256,
                       file.string() + ": SOPInstanceUID (0008,0018): \"" + outcome.sop_instance_uid +
                           "\" is not a UID of digits and dots (at most 64 characters)");
   }
+  Pending checked;
+  checked.candidate = candidate;
+  checked.name = shown_name(folders_.inbox, file);
+  checked.content_sha256 = content_sha256;
+  checked.outcome = std::move(outcome);
+  checked.started = started;
+  checked.index = index;
+  pending.push_back(std::move(checked));
+  return std::nullopt;
+}
 
-  // 1. Results, atomically. A crash after this and before the record redoes the check, which
-  //    writes the same results again and records once.
-  const fs::path json_file = folders_.results / (outcome.sop_instance_uid + ".json");
-  if (auto written = write_file_atomically(json_file, outcome.json_text, DirectorySync::deferred); !written) {
-    return fail(file, written.error().message());
-  }
-  if (outcome.html_text) {
-    if (auto written = write_file_atomically(folders_.results / (outcome.sop_instance_uid + ".html"),
-                                             *outcome.html_text, DirectorySync::deferred);
-        !written) {
-      return fail(file, written.error().message());
+std::vector<IntakeResult> PlanIntake::take_batch(std::span<const IntakeCandidate> candidates,
+                                                 const std::function<bool()>& stop_requested) {
+  const auto batch_started = Clock::now();
+  std::vector<IntakeResult> results(candidates.size());
+  std::vector<Pending> pending;
+  std::vector<std::size_t> copies;  // candidates with the bytes of a plan checked earlier in the batch
+  for (std::size_t i = 0; i < candidates.size(); ++i) {
+    const bool out_of_time = i > 0 && Clock::now() - batch_started > options_.batch_time_budget;
+    if (out_of_time || (stop_requested && stop_requested())) {
+      for (std::size_t j = i; j < candidates.size(); ++j) results[j].status = IntakeStatus::deferred;
+      break;
     }
+    const std::size_t pending_before = pending.size();
+    auto result = examine(candidates[i], i, pending);
+    if (result) {
+      results[i] = std::move(*result);
+    } else if (pending.size() == pending_before) {
+      copies.push_back(i);
+    }
+    if (results[i].status != IntakeStatus::not_ready) observed_.erase(candidates[i].file);
   }
-  // Both names durable before the record says they exist.
-  if (auto synced = sync_directory(folders_.results); !synced) return fail(file, synced.error().message());
+  if (!pending.empty()) commit(pending, results);
+  // Copies: their plan is now recorded (or not, if the commit failed), so each is decided as any
+  // other file is, normally as already checked.
+  for (const std::size_t i : copies)
+    results[i] = take(candidates[i].file, Arrival::complete, candidates[i].attempt);
+  return results;
+}
 
-  // 2. The record: the commit point of the check.
-  NewCheck check;
-  check.content_sha256 = content_sha256;
-  check.source_name = name;
-  check.result_file = json_file.string();
-  check.software_version = version_string;
-  check.outcome = outcome;
-  check.outcome.json_text.clear();
-  check.outcome.html_text.reset();
-  auto recorded = history_.record(check, utc_timestamp_now());
-  if (!recorded) return fail(file, recorded.error().message());
-
-  // 3. Out of the inbox. A crash before this finds the record on restart and only moves the file.
-  auto moved = move_to_checked(file, outcome.sop_instance_uid, content_sha256);
-
-  result.status = IntakeStatus::checked;
-  result.record = std::move(recorded.value());
-  std::size_t outside = 0;
-  std::size_t not_checked = 0;
-  for (const auto& beam : outcome.beams) {
-    outside += beam.verdict == BeamVerdict::outside_tolerance ? 1 : 0;
-    not_checked += beam.verdict == BeamVerdict::not_checked ? 1 : 0;
+// Results of every pending plan flushed together, then one transaction records them all: the commit
+// point. Only then do the files leave the inbox.
+void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results) {
+  const auto fail_all = [&](const std::string& reason) {
+    for (const Pending& p : pending) results[p.index] = fail(p.candidate.file, reason, p.candidate.attempt);
+  };
+  AtomicFileGroup files;
+  std::vector<NewCheck> checks;
+  checks.reserve(pending.size());
+  for (const Pending& p : pending) {
+    const fs::path json_file = folders_.results / (p.outcome.sop_instance_uid + ".json");
+    if (auto added = files.add(json_file, p.outcome.json_text); !added)
+      return fail_all(added.error().message());
+    if (p.outcome.html_text) {
+      auto added = files.add(folders_.results / (p.outcome.sop_instance_uid + ".html"), *p.outcome.html_text);
+      if (!added) return fail_all(added.error().message());
+    }
+    NewCheck check;
+    check.content_sha256 = p.content_sha256;
+    check.source_name = p.name;
+    check.result_file = json_file.string();
+    check.software_version = version_string;
+    check.outcome = p.outcome;
+    check.outcome.json_text.clear();
+    check.outcome.html_text.reset();
+    checks.push_back(std::move(check));
   }
-  result.message = "checked " + name + ": " + outcome.sop_instance_uid + " patient " + outcome.patient_id +
-                   " verdict " + std::string{to_string(outcome.verdict)} + " (" +
-                   std::to_string(outcome.beams.size()) + " beams, " + std::to_string(outside) +
-                   " outside, " + std::to_string(not_checked) + " not checked) check #" +
-                   std::to_string(result.record->id);
-  if (result.record->replaces_check_id) {
-    result.message += " replaces #" + std::to_string(*result.record->replaces_check_id);
+  // 1. Results, atomically and on disk. A crash after this and before the record redoes the
+  //    checks, which write the same results again and record once.
+  if (auto written = files.commit(); !written) return fail_all(written.error().message());
+  // 2. The records: the commit point of the batch.
+  auto recorded = history_.record_batch(checks, utc_timestamp_now());
+  if (!recorded) return fail_all(recorded.error().message());
+  // 3. Out of the inbox. A crash before this finds the records on restart and only moves the files.
+  for (std::size_t k = 0; k < pending.size(); ++k) {
+    const Pending& p = pending[k];
+    auto moved = move_to_checked(p.candidate.file, p.outcome.sop_instance_uid, p.content_sha256);
+    IntakeResult& result = results[p.index];
+    result.status = IntakeStatus::checked;
+    result.record = std::move(recorded.value()[k]);
+    std::size_t outside = 0;
+    std::size_t not_checked = 0;
+    for (const auto& beam : p.outcome.beams) {
+      outside += beam.verdict == BeamVerdict::outside_tolerance ? 1 : 0;
+      not_checked += beam.verdict == BeamVerdict::not_checked ? 1 : 0;
+    }
+    result.message = "checked " + p.name + ": " + p.outcome.sop_instance_uid + " patient " +
+                     p.outcome.patient_id + " verdict " + std::string{to_string(p.outcome.verdict)} + " (" +
+                     std::to_string(p.outcome.beams.size()) + " beams, " + std::to_string(outside) +
+                     " outside, " + std::to_string(not_checked) + " not checked) check #" +
+                     std::to_string(result.record->id);
+    if (result.record->replaces_check_id) {
+      result.message += " replaces #" + std::to_string(*result.record->replaces_check_id);
+    }
+    result.message +=
+        " -> " + result.record->result_file + " in " + format_milliseconds(Clock::now() - p.started);
+    if (!moved) {
+      result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
+    }
+    log_.line(result.message);
   }
-  result.message += " -> " + json_file.string() + " in " + format_milliseconds(Clock::now() - started);
-  if (!moved)
-    result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
-  log_.line(result.message);
-  return result;
+}
+
+IntakeResult PlanIntake::take(const fs::path& file, Arrival arrival, int attempt) {
+  const IntakeCandidate candidate{file, arrival, attempt};
+  return std::move(take_batch(std::span<const IntakeCandidate>{&candidate, 1}).front());
 }
 
 }  // namespace countersign::service

@@ -8,6 +8,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
 #include <string>
@@ -121,6 +122,52 @@ Expected<fs::path> write_file_atomically(const fs::path& target, std::string_vie
     if (auto synced = sync_directory(dir); !synced) return synced.error();
   }
   return target;
+}
+
+AtomicFileGroup::~AtomicFileGroup() {
+  for (const Staged& staged : files_) ::unlink(staged.temporary.c_str());
+}
+
+Expected<fs::path> AtomicFileGroup::add(const fs::path& target, std::string_view content) {
+  const fs::path dir = parent_or_dot(target);
+  std::string pattern = (dir / ("." + target.filename().string() + ".XXXXXX")).string();
+  const UniqueFd fd{::mkstemp(pattern.data())};
+  if (!fd.valid()) return io_error(target, "cannot create a temporary file", errno);
+  const fs::path temporary{pattern};
+  if (::fchmod(fd.get(), 0640) != 0 || !write_all(fd.get(), content)) {
+    const int saved = errno;
+    ::unlink(temporary.c_str());
+    return io_error(target, "cannot write", saved);
+  }
+  files_.push_back(Staged{temporary, target});
+  return temporary;
+}
+
+Expected<std::size_t> AtomicFileGroup::commit() {
+  std::vector<fs::path> dirs;
+  for (const Staged& staged : files_) {
+    const fs::path dir = parent_or_dot(staged.target);
+    if (std::find(dirs.begin(), dirs.end(), dir) == dirs.end()) dirs.push_back(dir);
+  }
+  // One flush of the whole file system writes every temporary's data: far cheaper than an fsync
+  // per file, each of which commits the file system journal on its own.
+  for (const fs::path& dir : dirs) {
+    const UniqueFd fd{::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC)};
+    if (!fd.valid()) return io_error(dir, "cannot open directory", errno);
+    if (::syncfs(fd.get()) != 0) return io_error(dir, "cannot flush to disk", errno);
+  }
+  std::size_t committed = 0;
+  for (const Staged& staged : files_) {
+    if (::rename(staged.temporary.c_str(), staged.target.c_str()) != 0) {
+      return io_error(staged.target, "cannot rename into place", errno);
+    }
+    ++committed;
+  }
+  files_.clear();
+  for (const fs::path& dir : dirs) {
+    if (auto synced = sync_directory(dir); !synced) return synced.error();
+  }
+  return committed;
 }
 
 Expected<fs::path> move_file_durably(const fs::path& from, const fs::path& to, OnExisting on_existing,

@@ -9,6 +9,7 @@
 #include "support/paths.hpp"
 
 #include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
 
 #include <algorithm>
 #include <filesystem>
@@ -48,6 +49,31 @@ TEST(FuzzRegressions, EachPlanInputGivesACleanErrorOrAJudgedPlan) {
     const check::PlanCheck result = check::check_plan(*plan, *library, check::CheckOptions{});
     for (const auto& beam : result.beams) EXPECT_FALSE(beam.reason.sentence.empty()) << beam.beam_number;
   }
+}
+
+TEST(FuzzRegressions, EachPlanInputGoesThroughEveryOutputOfTheProgram) {
+  // The whole path, as fuzz_whole_path runs it, through the built program: check (JSON, text and
+  // the record) and show (JSON and text). No input may end in anything but a documented exit code,
+  // JSON that parses, and no control character from the input on the terminal.
+  const fs::path out = test::make_temp_dir("countersign-fuzz-outputs");
+  const std::string program = test::quote(test::program().string());
+  for (const fs::path& file : entries(regressions() / "plans", false)) {
+    SCOPED_TRACE(file.string());
+    const std::string input = test::quote(file.string());
+    const auto json = test::run_command(program + " check --json --html " +
+                                        test::quote((out / "record.html").string()) + " " + input);
+    EXPECT_LE(json.exit_code, 3) << json.err;
+    EXPECT_FALSE(nlohmann::json::parse(json.out, nullptr, false).is_discarded()) << json.out.substr(0, 500);
+    const auto text = test::run_command(program + " check " + input);
+    EXPECT_LE(text.exit_code, 3) << text.err;
+    EXPECT_EQ(text.out.find('\x1b'), std::string::npos);
+    const auto shown = test::run_command(program + " show --json " + input);
+    EXPECT_LE(shown.exit_code, 3) << shown.err;
+    if (shown.exit_code == 0) {
+      EXPECT_FALSE(nlohmann::json::parse(shown.out, nullptr, false).is_discarded());
+    }
+  }
+  fs::remove_all(out);
 }
 
 TEST(FuzzRegressions, EachBeamDataFolderGivesACleanErrorNamingTheFile) {

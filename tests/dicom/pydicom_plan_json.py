@@ -34,6 +34,16 @@ def number(item, keyword):
     return result
 
 
+def character_set(ds):
+    """Specific Character Set (0008,0005) as declared, values joined by a backslash."""
+    value = ds.get("SpecificCharacterSet")
+    if value is None:
+        return None
+    values = list(value) if isinstance(value, pydicom.multival.MultiValue) else [value]
+    joined = "\\".join(str(v).strip() for v in values).strip()
+    return joined or None
+
+
 def integer(item, keyword):
     value = number(item, keyword)
     return None if value is None else int(value)
@@ -261,7 +271,10 @@ def plan_json(path):
                  "geometry": text(ds, "RTPlanGeometry"), "sop_class_uid": text(ds, "SOPClassUID"),
                  "sop_instance_uid": text(ds, "SOPInstanceUID"), "patient_id": text(ds, "PatientID"),
                  "patient_name": text(ds, "PatientName"), "approval_status": text(ds, "ApprovalStatus"),
-                 "manufacturer": text(ds, "Manufacturer")},
+                 "manufacturer": text(ds, "Manufacturer"),
+                 "specific_character_set": character_set(ds)},
+        # pydicom decodes these files without replacing anything: nothing to warn about.
+        "warnings": [],
         "patient_setups": [{"number": integer(s, "PatientSetupNumber"), "patient_position": text(s, "PatientPosition"),
                             "setup_technique": text(s, "SetupTechnique"),
                             "setup_technique_description": text(s, "SetupTechniqueDescription")}

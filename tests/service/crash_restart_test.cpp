@@ -16,6 +16,7 @@
 
 #include <chrono>
 #include <fstream>
+#include <functional>
 #include <map>
 #include <sstream>
 #include <thread>
@@ -59,13 +60,63 @@ int run_service(const fs::path& dir, RunUntil until) {
     return outcome;
   };
   IntakeOptions options;
-  options.settle_time = 2s;
+  options.quiet_period = 2s;
   PlanIntake intake{folders.value(), std::move(history.value()), processor, log, options};
   auto watcher = FolderWatcher::open(intake);
   if (!watcher) return 11;
   const StopSignal never;
   const int fds[] = {never.fd()};
   return watcher->run(until, fds) ? 0 : 12;
+}
+
+std::size_t lines_in(const fs::path& file) {
+  std::ifstream in(file);
+  std::size_t n = 0;
+  for (std::string line; std::getline(in, line);) ++n;
+  return n;
+}
+
+// Starts the service in a child, waits until the processor has been called `kill_after` times in
+// total (while `feed` keeps plans arriving), and kills it with SIGKILL: no destructor, no rollback.
+void kill_service_after(const fs::path& dir, std::size_t kill_after, const std::function<void()>& feed) {
+  const pid_t child = ::fork();
+  ASSERT_GE(child, 0);
+  if (child == 0) ::_exit(run_service(dir, RunUntil::stopped));
+  const auto deadline = std::chrono::steady_clock::now() + 30s;
+  while (lines_in(dir / "calls.log") < kill_after && std::chrono::steady_clock::now() < deadline) {
+    feed();
+    std::this_thread::sleep_for(1ms);
+  }
+  ASSERT_EQ(::kill(child, SIGKILL), 0);
+  int status = 0;
+  ASSERT_EQ(::waitpid(child, &status, 0), child);
+  ASSERT_TRUE(WIFSIGNALED(status));
+}
+
+// Every plan recorded exactly once, every result written, the inbox empty, nothing quarantined; and
+// the computations repeated because a kill came before their batch's commit, at most one batch per kill.
+void expect_each_plan_exactly_once(const fs::path& dir, int plans, std::size_t kills) {
+  auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_only);
+  ASSERT_TRUE(history);
+  auto records = history->list(HistoryFilter{});
+  ASSERT_TRUE(records);
+  std::map<std::string, int> recorded;
+  for (const auto& record : *records) ++recorded[record.sop_instance_uid];
+  EXPECT_EQ(records->size(), static_cast<std::size_t>(plans));
+  for (int i = 0; i < plans; ++i) EXPECT_EQ(recorded[test::demo_uid(i)], 1) << "plan " << i;
+  EXPECT_EQ(count_suffix(dir / "results", ".json"), static_cast<std::size_t>(plans));
+  EXPECT_EQ(count_suffix(dir / "inbox", ".dcm"), 0U);
+  EXPECT_EQ(count_suffix(dir / "results" / "quarantine", ""), 0U);
+
+  std::map<std::string, int> computed;
+  std::ifstream in(dir / "calls.log");
+  for (std::string line; std::getline(in, line);) ++computed[line];
+  std::size_t extra = 0;
+  for (const auto& [uid, n] : computed) extra += static_cast<std::size_t>(n - 1);
+  EXPECT_EQ(computed.size(), static_cast<std::size_t>(plans));
+  EXPECT_LE(extra, kills * WatchOptions{}.max_batch);
+  std::cout << "[ measured ] " << plans << " plans, " << kills << " kills: " << extra
+            << " plan(s) computed twice, each recorded once\n";
 }
 
 TEST(CrashRestart, KilledMidStreamThenRestartedLosesNoPlanAndChecksNoneTwice) {
@@ -80,56 +131,37 @@ TEST(CrashRestart, KilledMidStreamThenRestartedLosesNoPlanAndChecksNoneTwice) {
       fs::rename(temporary, dir / "inbox" / ("RP" + std::to_string(written) + ".dcm"));  // arrives whole
     }
   };
-  const auto calls_so_far = [&] {
-    std::ifstream in(dir / "calls.log");
-    std::size_t n = 0;
-    for (std::string line; std::getline(in, line);) ++n;
-    return n;
-  };
-
   // Two crashes, each while plans are still arriving and being checked.
   for (const std::size_t kill_after : {std::size_t{25}, std::size_t{70}}) {
-    const pid_t child = ::fork();
-    ASSERT_GE(child, 0);
-    if (child == 0) ::_exit(run_service(dir, RunUntil::stopped));
-    const auto deadline = std::chrono::steady_clock::now() + 30s;
-    while (calls_so_far() < kill_after && std::chrono::steady_clock::now() < deadline) {
-      write_plans(std::min(plans, written + 5));
-      std::this_thread::sleep_for(2ms);
-    }
-    ASSERT_EQ(::kill(child, SIGKILL), 0);
-    int status = 0;
-    ASSERT_EQ(::waitpid(child, &status, 0), child);
-    ASSERT_TRUE(WIFSIGNALED(status));
+    kill_service_after(dir, kill_after, [&] { write_plans(std::min(plans, written + 5)); });
   }
   write_plans(plans);
-
   // The restart finishes the stream.
-  ASSERT_EQ(run_service(dir, RunUntil::idle), 0);
+  ASSERT_EQ(run_service(dir, RunUntil::one_pass), 0);
+  expect_each_plan_exactly_once(dir, plans, 2);
+  fs::remove_all(dir);
+}
 
-  auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_only);
-  ASSERT_TRUE(history);
-  auto records = history->list(HistoryFilter{});
-  ASSERT_TRUE(records);
-  std::map<std::string, int> recorded;
-  for (const auto& record : *records) ++recorded[record.sop_instance_uid];
-  EXPECT_EQ(records->size(), static_cast<std::size_t>(plans));
-  for (int i = 0; i < plans; ++i) EXPECT_EQ(recorded[test::demo_uid(i)], 1) << "plan " << i;
-  EXPECT_EQ(count_suffix(dir / "results", ".json"), static_cast<std::size_t>(plans));
-  EXPECT_EQ(count_suffix(dir / "inbox", ".dcm"), 0U);
-  EXPECT_EQ(count_suffix(dir / "results" / "quarantine", ""), 0U);
-
-  // A kill can fall between writing a result and recording it; that one plan is computed again
-  // (and recorded once). So at most one extra computation per kill.
-  std::map<std::string, int> computed;
-  std::ifstream in(dir / "calls.log");
-  for (std::string line; std::getline(in, line);) ++computed[line];
-  std::size_t extra = 0;
-  for (const auto& [uid, n] : computed) extra += static_cast<std::size_t>(n - 1);
-  EXPECT_EQ(computed.size(), static_cast<std::size_t>(plans));
-  EXPECT_LE(extra, 2U);
-  std::cout << "[ measured ] " << plans << " plans, 2 kills: " << extra
-            << " plan(s) computed twice, recorded once\n";
+TEST(CrashRestart, ABacklogKilledInTheMiddleOfBatchesLosesNothingAndRecordsEachOnce) {
+  // A backlog is taken in batches of up to WatchOptions::max_batch plans, each batch committed at
+  // once: kills at several points inside batches (while checking, or while results are flushed and
+  // recorded) must leave every plan either recorded or still in the inbox.
+  const fs::path dir = test::make_temp_dir("countersign-crash-batch");
+  fs::create_directories(dir / "inbox");
+  constexpr int plans = 300;
+  for (int i = 0; i < plans; ++i) {
+    const fs::path temporary = dir / ("staging-" + std::to_string(i));
+    test::write_text(temporary, test::fake_plan_text(test::demo_uid(i), "FERN-DEMO-021"));
+    fs::rename(temporary, dir / "inbox" / ("RP" + std::to_string(i) + ".dcm"));
+  }
+  // Backlog files count as written in place: make them older than the quiet period.
+  for (const auto& entry : fs::directory_iterator{dir / "inbox"}) {
+    fs::last_write_time(entry.path(), fs::file_time_type::clock::now() - std::chrono::minutes{1});
+  }
+  const std::vector<std::size_t> kill_points{10, 63, 64, 65, 130, 200};
+  for (const std::size_t kill_after : kill_points) kill_service_after(dir, kill_after, [] {});
+  ASSERT_EQ(run_service(dir, RunUntil::one_pass), 0);
+  expect_each_plan_exactly_once(dir, plans, kill_points.size());
   fs::remove_all(dir);
 }
 

@@ -31,6 +31,10 @@ std::size_t count_files(const fs::path& dir, const std::string& suffix) {
   return n;
 }
 
+void make_old(const fs::path& file) {
+  fs::last_write_time(file, fs::file_time_type::clock::now() - std::chrono::hours{1});
+}
+
 bool wait_until(const std::function<bool()>& condition, std::chrono::milliseconds timeout) {
   const auto deadline = std::chrono::steady_clock::now() + timeout;
   while (std::chrono::steady_clock::now() < deadline) {
@@ -52,21 +56,22 @@ class FolderWatcherTest : public ::testing::Test {
   fs::path inbox() const { return dir_ / "inbox"; }
   fs::path results() const { return dir_ / "results"; }
 
-  void make_intake(std::chrono::milliseconds settle, std::chrono::milliseconds delay = 0ms) {
+  void make_intake(std::chrono::milliseconds quiet, std::chrono::milliseconds delay = 0ms) {
     auto folders = ServiceFolders::prepare(inbox(), results(), std::nullopt);
     ASSERT_TRUE(folders) << folders.error().message();
     auto history = History::open(results() / "history.sqlite", HistoryAccess::read_write);
     ASSERT_TRUE(history) << history.error().message();
     IntakeOptions options;
-    options.settle_time = settle;
+    options.quiet_period = quiet;
     options.busy_retry = 100ms;
     intake_.emplace(folders.value(), std::move(history.value()), test::fake_processor(calls_, delay), log_,
                     options);
   }
 
-  void start(std::chrono::milliseconds settle, std::chrono::milliseconds delay = 0ms) {
-    make_intake(settle, delay);
-    auto watcher = FolderWatcher::open(*intake_);
+  void start(std::chrono::milliseconds quiet, std::chrono::milliseconds delay = 0ms,
+             WatchOptions options = {}) {
+    make_intake(quiet, delay);
+    auto watcher = FolderWatcher::open(*intake_, options);
     ASSERT_TRUE(watcher) << watcher.error().message();
     watcher_.emplace(std::move(watcher.value()));
     thread_ = std::thread([this] {
@@ -110,7 +115,7 @@ TEST_F(FolderWatcherTest, FilesThatArrivedWhileDownAreCheckedAtStart) {
   make_intake(1s);
   auto watcher = FolderWatcher::open(*intake_);
   ASSERT_TRUE(watcher);
-  const auto summary = watcher->run(RunUntil::idle, {});
+  const auto summary = watcher->run(RunUntil::one_pass, {});
   ASSERT_TRUE(summary) << summary.error().message();
   EXPECT_EQ(summary->checked, 5U);
   EXPECT_EQ(count_files(results(), ".json"), 5U);
@@ -237,11 +242,112 @@ TEST_F(FolderWatcherTest, AStopFinishesThePlanInHandAndLosesNothing) {
   make_intake(2s);
   auto watcher = FolderWatcher::open(*intake_);
   ASSERT_TRUE(watcher);
-  const auto summary = watcher->run(RunUntil::idle, {});
+  const auto summary = watcher->run(RunUntil::one_pass, {});
   ASSERT_TRUE(summary);
   EXPECT_EQ(summary->checked, 6U - done);
   EXPECT_EQ(recorded(), 6U);
   for (int i = 0; i < 6; ++i) EXPECT_EQ(calls_->count(test::demo_uid(600 + i)), 1);
+}
+
+TEST_F(FolderWatcherTest, AFileMovedInIsTakenAtOnceAndOneWrittenInPlaceOnlyWhenQuiet) {
+  // Issue 10, item 2. A quiet period far longer than the test waits: only the rename can explain a
+  // check of the moved file.
+  start(30s);
+  const std::string moved_uid = test::demo_uid(700);
+  test::write_text(dir_ / "staging.dcm", test::fake_plan_text(moved_uid, "FERN-DEMO-016"));
+  test::write_text(inbox() / "in-place.dcm", test::fake_plan_text(test::demo_uid(701), "FERN-DEMO-016"));
+  fs::rename(dir_ / "staging.dcm", inbox() / "moved.dcm");
+  ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (moved_uid + ".json")); }, 10s)) << log_text();
+  std::this_thread::sleep_for(500ms);
+  stop();
+  EXPECT_EQ(calls_->count(moved_uid), 1);
+  EXPECT_EQ(calls_->count(test::demo_uid(701)), 0);  // still within its quiet period
+  EXPECT_TRUE(fs::exists(inbox() / "in-place.dcm"));
+}
+
+TEST_F(FolderWatcherTest, SubfoldersAreNamedInTheLogAndLeftAloneWithoutRecursive) {
+  // Issue 10, item 3: before, a plan exported into a subfolder was ignored without a word.
+  fs::create_directories(inbox() / "at-start");
+  test::write_text(inbox() / "at-start" / "RP1.dcm",
+                   test::fake_plan_text(test::demo_uid(710), "FERN-DEMO-017"));
+  start(200ms);
+  fs::create_directories(inbox() / "later");
+  test::write_text(inbox() / "later" / "RP2.dcm", test::fake_plan_text(test::demo_uid(711), "FERN-DEMO-017"));
+  ASSERT_TRUE(
+      wait_until([&] { return log_text().find("subfolder later is not watched") != std::string::npos; }, 10s))
+      << log_text();
+  std::this_thread::sleep_for(700ms);
+  stop();
+  EXPECT_NE(log_text().find("subfolder at-start is not watched"), std::string::npos) << log_text();
+  EXPECT_EQ(calls_->total.load(), 0);
+  EXPECT_TRUE(fs::exists(inbox() / "at-start" / "RP1.dcm"));
+  EXPECT_TRUE(fs::exists(inbox() / "later" / "RP2.dcm"));
+}
+
+TEST_F(FolderWatcherTest, WithRecursiveSubfoldersAreWatchedToo) {
+  fs::create_directories(inbox() / "at-start" / "deeper");
+  test::write_text(inbox() / "at-start" / "deeper" / "RP1.dcm",
+                   test::fake_plan_text(test::demo_uid(720), "FERN-DEMO-018"));
+  WatchOptions options;
+  options.subfolders = dicom::Subfolders::include;
+  start(200ms, 0ms, options);
+  // A folder moved in whole, and a folder created and then written into.
+  fs::create_directories(dir_ / "export" / "2026-12-02");
+  test::write_text(dir_ / "export" / "2026-12-02" / "RP2",
+                   test::fake_plan_text(test::demo_uid(721), "FERN-DEMO-018"));
+  fs::rename(dir_ / "export", inbox() / "export");
+  fs::create_directories(inbox() / "later");
+  std::this_thread::sleep_for(100ms);
+  test::write_text(inbox() / "later" / "RP3.DCM", test::fake_plan_text(test::demo_uid(722), "FERN-DEMO-018"));
+  ASSERT_TRUE(wait_until([&] { return calls_->total.load() >= 3; }, 15s)) << log_text();
+  stop();
+  for (int i = 720; i <= 722; ++i) EXPECT_EQ(calls_->count(test::demo_uid(i)), 1) << i;
+  EXPECT_FALSE(fs::exists(inbox() / "later" / "RP3.DCM"));
+  EXPECT_EQ(log_text().find("not watched"), std::string::npos) << log_text();
+}
+
+TEST_F(FolderWatcherTest, OnePassEndsAndNamesTheFilesItCouldNotTake) {
+  // Issue 10, item 3: `--once` never ended while a file kept failing. The results folder is made
+  // unusable (a file stands where the plan's result must go), a failure of our own for every plan.
+  make_intake(100ms);
+  test::write_text(inbox() / "good.dcm", test::fake_plan_text(test::demo_uid(730), "FERN-DEMO-019"));
+  fs::create_directories(results() / (test::demo_uid(730) + ".json"));  // a folder in the way
+  make_old(inbox() / "good.dcm");
+  auto watcher = FolderWatcher::open(*intake_);
+  ASSERT_TRUE(watcher);
+  const auto summary = watcher->run(RunUntil::one_pass, {});
+  ASSERT_TRUE(summary) << summary.error().message();
+  EXPECT_EQ(summary->checked, 0U);
+  ASSERT_EQ(summary->not_taken.size(), 1U);
+  EXPECT_EQ(summary->not_taken.front().rfind("good.dcm: error good.dcm:", 0), 0U)
+      << summary->not_taken.front();
+  EXPECT_TRUE(fs::exists(inbox() / "good.dcm"));  // nothing lost: it waits for the next run
+  EXPECT_EQ(recorded(), 0U);
+}
+
+TEST_F(FolderWatcherTest, NamesAndValuesCannotForgeLogLines) {
+  // Issue 10, item 4: a newline in a file name or a Patient ID made a complete, false log line. (The
+  // fake plan format is line-based, so its Patient ID carries a carriage return instead.)
+  start(100ms);
+  const std::string forged =
+      "\n2026-12-02T08:15:00Z checked FAKE.dcm: 1.2.3 patient X verdict within_tolerance";
+  test::write_text(dir_ / "staging", test::fake_plan_text(test::demo_uid(740), "PAT\rforged line"));
+  fs::rename(dir_ / "staging", inbox() / ("RP" + std::string{"\n"} + "x.dcm"));
+  test::write_text(dir_ / "staging", "not a plan");
+  fs::rename(dir_ / "staging", inbox() / ("bad" + forged + ".dcm"));
+  ASSERT_TRUE(wait_until(
+      [&] { return calls_->total.load() == 1 && count_files(results() / "quarantine", ".reason.txt") == 1; },
+      10s))
+      << log_text();
+  stop();
+  std::istringstream lines{log_text()};
+  std::size_t count = 0;
+  for (std::string line; std::getline(lines, line); ++count) {
+    EXPECT_EQ(line.size() > 20 && line[4] == '-' && line[10] == 'T' && line[19] == 'Z', true) << line;
+    EXPECT_EQ(line.rfind("2026-12-02T08:15:00Z checked FAKE.dcm", 0), std::string::npos) << line;
+  }
+  EXPECT_EQ(count, 2U) << log_text();  // one per event: the check, the quarantine
+  EXPECT_NE(log_text().find("patient PAT\\rforged line"), std::string::npos) << log_text();
 }
 
 }  // namespace

@@ -129,6 +129,35 @@ TEST_F(HistoryTest, AReExportWithOtherContentReplacesTheEarlierCheck) {
   EXPECT_EQ(all->back().superseded_by_check_id.value(), second->id);
 }
 
+TEST_F(HistoryTest, ABatchIsRecordedInOneTransactionInOrderAllOrNothing) {
+  // The watcher's group commit: one transaction per batch of plans.
+  auto history = History::open(dir_ / "h.sqlite", HistoryAccess::read_write);
+  ASSERT_TRUE(history);
+  const std::vector<NewCheck> batch{make_check("2.25.20", "a", PlanVerdict::within_tolerance, {}),
+                                    make_check("2.25.21", "b", PlanVerdict::outside_tolerance, {}),
+                                    make_check("2.25.20", "c", PlanVerdict::within_tolerance, {})};
+  const auto stored = history->record_batch(batch, "2026-12-01T10:00:00Z");
+  ASSERT_TRUE(stored) << stored.error().message();
+  ASSERT_EQ(stored->size(), 3U);
+  // A later re-export of the same plan in the same batch replaces the earlier one, as across batches.
+  ASSERT_TRUE((*stored)[2].replaces_check_id);
+  EXPECT_EQ(*(*stored)[2].replaces_check_id, (*stored)[0].id);
+  EXPECT_LT((*stored)[0].id, (*stored)[1].id);
+
+  // A batch with one bad record (the same check again) leaves no trace of the others.
+  const std::vector<NewCheck> bad{make_check("2.25.22", "d", PlanVerdict::within_tolerance, {}),
+                                  make_check("2.25.21", "b", PlanVerdict::outside_tolerance, {})};
+  EXPECT_FALSE(history->record_batch(bad, "2026-12-01T11:00:00Z"));
+  auto found = history->find_by_content("d");
+  ASSERT_TRUE(found);
+  EXPECT_FALSE(found->has_value());
+  HistoryFilter everything;
+  everything.superseded = Superseded::include;
+  auto all = history->list(everything);
+  ASSERT_TRUE(all);
+  EXPECT_EQ(all->size(), 3U);
+}
+
 TEST_F(HistoryTest, FiltersByTimeVerdictPatientAndBeamFields) {
   auto history = History::open(dir_ / "h.sqlite", HistoryAccess::read_write);
   ASSERT_TRUE(history);

@@ -18,6 +18,10 @@ unsigned mode_of(const fs::path& path) {
   return ::stat(path.c_str(), &info) == 0 ? (info.st_mode & 0777) : 0U;
 }
 
+void test_write(const fs::path& file, const std::string& text) {
+  std::ofstream{file, std::ios::binary} << text;
+}
+
 std::string slurp(const fs::path& file) {
   std::ifstream in(file, std::ios::binary);
   std::ostringstream text;
@@ -66,6 +70,39 @@ TEST(PrivateFiles, MoveKeepsAnExistingFileUnderAFreeName) {
   EXPECT_EQ(slurp(dir / "target"), "0");
   EXPECT_EQ(slurp(dir / "target.3"), "2");
   EXPECT_FALSE(fs::exists(dir / "one"));
+  fs::remove_all(dir);
+}
+
+TEST(PrivateFiles, AGroupOfFilesIsWrittenAtomicallyAndTogether) {
+  const fs::path dir = test::make_temp_dir("countersign-files");
+  test_write(dir / "a.json", "old");
+  {
+    AtomicFileGroup group;
+    ASSERT_TRUE(group.add(dir / "a.json", "new a"));
+    ASSERT_TRUE(group.add(dir / "b.html", "new b"));
+    ASSERT_TRUE(group.add(dir / "a.json", "newer a"));  // a later file of the same target wins
+    // Nothing replaced before the commit: a reader still sees the old file, and no new name.
+    EXPECT_EQ(slurp(dir / "a.json"), "old");
+    EXPECT_FALSE(fs::exists(dir / "b.html"));
+    const auto committed = group.commit();
+    ASSERT_TRUE(committed) << committed.error().message();
+    EXPECT_EQ(*committed, 3U);
+  }
+  EXPECT_EQ(slurp(dir / "a.json"), "newer a");
+  EXPECT_EQ(slurp(dir / "b.html"), "new b");
+  EXPECT_EQ(mode_of(dir / "b.html"), 0640U);
+  std::size_t names = 0;
+  for ([[maybe_unused]] const auto& entry : fs::directory_iterator{dir}) ++names;
+  EXPECT_EQ(names, 2U);  // no temporary left
+
+  {  // Dropped without a commit: the temporaries go, the targets stay as they were.
+    AtomicFileGroup abandoned;
+    ASSERT_TRUE(abandoned.add(dir / "a.json", "never"));
+  }
+  EXPECT_EQ(slurp(dir / "a.json"), "newer a");
+  names = 0;
+  for ([[maybe_unused]] const auto& entry : fs::directory_iterator{dir}) ++names;
+  EXPECT_EQ(names, 2U);
   fs::remove_all(dir);
 }
 

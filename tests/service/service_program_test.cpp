@@ -17,6 +17,7 @@
 #include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
+#include <nlohmann/json.hpp>
 
 #include <algorithm>
 #include <chrono>
@@ -160,7 +161,8 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
   const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
                                      test::quote((dir_ / "inbox").string()) + " --out " +
                                      test::quote(results.string()) + " --once --settle-seconds 0.2");
-  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  // One pass that had to quarantine a file ends with exit 3 and names it.
+  ASSERT_EQ(run.exit_code, 3) << run.out << run.err;
   EXPECT_EQ(count_suffix(results, ".json"), plans.size()) << run.out;
   EXPECT_EQ(count_suffix(results, ".html"), plans.size());
   EXPECT_EQ(count_suffix(dir_ / "inbox", ".dcm"), 0U);
@@ -314,6 +316,146 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
   const std::string log = slurp(dir_ / "receive.log");
   EXPECT_NE(log.find("refused association from AE \"UNKNOWN-AE\""), std::string::npos) << log;
   EXPECT_NE(log.find("receiver stopped"), std::string::npos) << log;
+}
+
+// The demo plan `source` under a new SOP Instance UID, with Patient's Name bytes in a character set.
+std::string copy_with_name(const fs::path& source, const fs::path& target, const std::string& character_set,
+                           const std::string& raw_name) {
+  DcmFileFormat format;
+  if (format.loadFile(source.c_str()).bad()) return {};
+  const std::string uid = test::new_dicom_uid();
+  DcmDataset* dataset = format.getDataset();
+  dataset->putAndInsertString(DCM_SOPInstanceUID, uid.c_str());
+  dataset->putAndInsertString(DCM_SpecificCharacterSet, character_set.c_str());
+  dataset->putAndInsertOFStringArray(DCM_PatientName, OFString{raw_name.data(), raw_name.size()});
+  format.getMetaInfo()->putAndInsertString(DCM_MediaStorageSOPInstanceUID, uid.c_str());
+  return format.saveFile(target.c_str(), EXS_LittleEndianExplicit).good() ? uid : std::string{};
+}
+
+std::vector<std::string> history_uids(const fs::path& results) {
+  std::vector<std::string> uids;
+  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  if (!history) return uids;
+  if (auto all = history->list(HistoryFilter{})) {
+    for (const auto& record : *all) uids.push_back(record.sop_instance_uid);
+  }
+  std::sort(uids.begin(), uids.end());
+  return uids;
+}
+
+TEST_F(ServiceProgramTest, AValidPlanWithALatin1NameIsCheckedNotQuarantined) {
+  // Issue 10: the watcher quarantined such a plan as an "internal error".
+  const auto plans = demo_plans();
+  fs::create_directories(dir_ / "inbox");
+  const std::string uid =
+      copy_with_name(plans.front(), dir_ / "staging.dcm", "ISO_IR 100", "M\xFCller^J\xF6rg");
+  ASSERT_FALSE(uid.empty());
+  fs::rename(dir_ / "staging.dcm", dir_ / "inbox" / "RP.latin1.dcm");
+  const fs::path results = dir_ / "results";
+  const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
+                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote(results.string()) + " --once --quiet-seconds 0");
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  EXPECT_EQ(history_uids(results), std::vector<std::string>{uid});
+  EXPECT_NE(slurp(results / (uid + ".json")).find("\"patient_name\": \"M\xC3\xBCller^J\xC3\xB6rg\""),
+            std::string::npos);
+  EXPECT_NE(slurp(results / (uid + ".html")).find("M\xC3\xBCller"), std::string::npos);
+}
+
+TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
+  // Issue 10: the sender got Success, then the receiver quarantined the valid plan as an
+  // "internal error". DCMTK's storescu is the real peer; the test fails without it.
+  ASSERT_EQ(test::run_command("command -v storescu").exit_code, 0)
+      << "DCMTK's storescu is needed (bash tools/install-deps)";
+  const auto plans = demo_plans();
+  const std::string uid =
+      copy_with_name(plans.front(), dir_ / "latin1.dcm", "ISO_IR 100", "M\xFCller^J\xF6rg");
+  ASSERT_FALSE(uid.empty());
+  const fs::path results = dir_ / "results";
+  const std::uint16_t port = free_port();
+  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
+                    "FERN-TPS", "--out", results.string()},
+                   dir_ / "receive.log"};
+  ASSERT_TRUE(receiver.running());
+  ASSERT_TRUE(wait_until(
+      [&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; }, 20s))
+      << slurp(dir_ / "receive.log");
+  const auto sent =
+      test::run_command("storescu -to 10 -aec FERN-CHECK -aet FERN-TPS 127.0.0.1 " + std::to_string(port) +
+                        " " + test::quote((dir_ / "latin1.dcm").string()));
+  EXPECT_EQ(sent.exit_code, 0) << sent.err;
+  ASSERT_TRUE(wait_until([&] { return recorded(results) == 1; }, 20s)) << slurp(dir_ / "receive.log");
+  receiver.signal(SIGTERM);
+  EXPECT_TRUE(WIFEXITED(receiver.wait()));
+  EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U) << slurp(dir_ / "receive.log");
+  EXPECT_NE(slurp(results / (uid + ".json")).find("M\xC3\xBCller^J\xC3\xB6rg"), std::string::npos);
+}
+
+TEST_F(ServiceProgramTest, CheckFolderAndWatchTakeTheSameFilesByContentWhateverTheirNames) {
+  // Issue 10, item 6: `check FOLDER` took only *.dcm, while `watch` took every name.
+  const auto plans = demo_plans();
+  ASSERT_GE(plans.size(), 4U);
+  const fs::path folder = dir_ / "export";
+  fs::create_directories(folder);
+  const std::string first = copy_with_new_uid(plans[0], folder / "RP1.2.3");
+  const std::string second = copy_with_new_uid(plans[1], folder / "RP.X.DCM");
+  ASSERT_FALSE(copy_with_new_uid(plans[2], folder / ".RP.hidden.dcm").empty());    // an exporter's temporary
+  ASSERT_FALSE(copy_with_new_uid(plans[3], folder / "RP.half.dcm.part").empty());  // still being written
+  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ct_sop_class.dcm", folder / "CT.1.2.3");
+  std::ofstream{folder / "README.txt"} << "export notes\n";
+  for (const auto& entry : fs::directory_iterator{folder}) {
+    fs::last_write_time(entry.path(), fs::file_time_type::clock::now() - std::chrono::minutes{1});
+  }
+  std::vector<std::string> expected{first, second};
+  std::sort(expected.begin(), expected.end());
+
+  const auto checked = test::run_command(test::quote(test::program().string()) + " check --json " +
+                                         test::quote(folder.string()));
+  ASSERT_LE(checked.exit_code, 2) << checked.out << checked.err;
+  const auto document = nlohmann::json::parse(checked.out);
+  std::vector<std::string> checked_uids;
+  for (const auto& plan : document.at("plans")) checked_uids.push_back(plan.at("sop_instance_uid"));
+  std::sort(checked_uids.begin(), checked_uids.end());
+  EXPECT_EQ(checked_uids, expected);
+  EXPECT_EQ(document.at("skipped_files").size(), 2U) << document.at("skipped_files");  // the CT, the notes
+  EXPECT_TRUE(document.at("errors").empty());
+
+  const fs::path results = dir_ / "results";
+  const auto watched =
+      test::run_command(test::quote(test::program().string()) + " watch " + test::quote(folder.string()) +
+                        " --out " + test::quote(results.string()) + " --once");
+  EXPECT_EQ(watched.exit_code, 3) << watched.out;  // the CT and the notes were quarantined
+  EXPECT_EQ(history_uids(results), expected) << watched.out;
+  EXPECT_TRUE(fs::exists(results / "quarantine" / "CT.1.2.3"));
+  EXPECT_TRUE(fs::exists(results / "quarantine" / "README.txt"));
+  // The same exclusions: hidden and temporary files are left alone by both.
+  EXPECT_TRUE(fs::exists(folder / ".RP.hidden.dcm"));
+  EXPECT_TRUE(fs::exists(folder / "RP.half.dcm.part"));
+}
+
+TEST_F(ServiceProgramTest, WatchOnceEndsWithExit3AndNamesAFileItCannotRead) {
+  // Issue 10, item 3: `watch --once` never ended while one file kept failing.
+  const auto plans = demo_plans();
+  fs::create_directories(dir_ / "inbox");
+  const fs::path results = dir_ / "results";
+  fs::create_directories(results);
+  const bool root = ::geteuid() == 0;
+  const std::string user = root ? "runuser -u nobody -- " : "";
+  if (root) {
+    ASSERT_EQ(test::run_command("chown -R nobody " + test::quote(dir_.string())).exit_code, 0);
+  }
+  const fs::path locked = dir_ / "inbox" / "RP.locked.dcm";
+  fs::copy_file(plans.front(), locked);
+  fs::permissions(locked, root ? fs::perms{0600} : fs::perms::none);  // root's own, or nobody's at all
+  fs::last_write_time(locked, fs::file_time_type::clock::now() - std::chrono::minutes{1});
+  const auto run = test::run_command("timeout 120 " + user + test::quote(test::program().string()) +
+                                     " watch " + test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote(results.string()) + " --once");
+  EXPECT_EQ(run.exit_code, 3) << run.out << run.err;
+  EXPECT_NE(run.out.find("not taken: RP.locked.dcm: error RP.locked.dcm: cannot read"), std::string::npos)
+      << run.out;
+  EXPECT_TRUE(fs::exists(locked));  // nothing lost
+  fs::permissions(locked, fs::perms{0600});
 }
 
 }  // namespace

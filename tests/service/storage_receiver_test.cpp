@@ -69,7 +69,7 @@ class StorageReceiverTest : public ::testing::Test {
     ServiceSettings settings;
     settings.inbox = results() / "incoming";
     settings.results = results();
-    settings.intake.settle_time = 1s;
+    settings.intake.quiet_period = 1s;
     auto service = CheckingService::open(settings, test::dicom_identity_processor(calls_), log_);
     ASSERT_TRUE(service) << service.error().message();
     service_ = std::move(service.value());

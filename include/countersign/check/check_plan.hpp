@@ -78,6 +78,7 @@ struct PlanCheck {
   std::string patient_name;
   std::string plan_label;
   std::string approval_status;
+  std::vector<std::string> warnings;  // the reader's (text it could not decode), shown with every report
   Status status = Status::not_checked;
   engine::Finding reason;
   std::vector<BeamCheck> beams;

@@ -180,6 +180,12 @@ struct Plan {
   // Referenced SOP Instance UID (0008,1155) of each item of the Referenced Structure Set Sequence
   // (300C,0060): the structure set (and through it the CT) the plan was made on. DICOM permits one.
   std::vector<std::string> referenced_structure_set_uids;
+  // Specific Character Set (0008,0005) as declared; empty: the default repertoire (ASCII). Every
+  // text above is UTF-8, converted from it.
+  std::string specific_character_set;
+  // What the reader could not read faithfully without refusing the plan, one sentence each naming
+  // the attribute and tag (e.g. bytes that could not be decoded and are shown as U+FFFD).
+  std::vector<std::string> warnings;
   std::vector<PatientSetup> patient_setups;
   std::vector<DoseReference> dose_references;
   std::vector<FractionGroup> fraction_groups;

@@ -21,9 +21,11 @@ namespace countersign::report {
 // One table lookup: {"table_file", "quantity", "value", "extrapolated", "axes": [...]}.
 [[nodiscard]] nlohmann::json lookup_to_json(const beamdata::Lookup& lookup);
 
-// The whole run: {"plans": [...], "errors": [...], "status", "exit_code", "caution"}; errors are the
-// one-line messages of files that could not be read; "caution" is report::caution_text().
+// The whole run: {"plans": [...], "errors": [...], "skipped_files": [...], "exit_code", "caution"};
+// errors are the one-line messages of files that could not be read; skipped_files, the files of the
+// folders given that hold no RT Plan, each with why; "caution" is report::caution_text().
 [[nodiscard]] nlohmann::json check_run_to_json(const std::vector<check::PlanCheck>& checks,
-                                               const std::vector<std::string>& errors, int exit_code);
+                                               const std::vector<std::string>& errors, int exit_code,
+                                               const std::vector<std::string>& skipped_files = {});
 
 }  // namespace countersign::report

@@ -86,6 +86,12 @@ class History {
   // current, the new record replaces it. Returns the stored record.
   [[nodiscard]] Expected<CheckRecord> record(const NewCheck& check, const std::string& checked_at_utc);
 
+  // Records several checks in one transaction (one commit, one flush to disk), in order: a later
+  // check of the same UID replaces an earlier one of the batch as it would one recorded before.
+  // All are recorded or none. Returns the stored records in the same order.
+  [[nodiscard]] Expected<std::vector<CheckRecord>> record_batch(const std::vector<NewCheck>& checks,
+                                                                const std::string& checked_at_utc);
+
   // Checks matching the filter, newest first, with their beams.
   [[nodiscard]] Expected<std::vector<CheckRecord>> list(const HistoryFilter& filter) const;
 

@@ -1,10 +1,12 @@
 #pragma once
 
 // The one path every arriving plan file takes, from the folder watcher and the DICOM receiver alike:
-// read it once, whole; skip it if exactly these bytes were checked before; check it; write the
-// results atomically; record the check; only then move the file out of the inbox. A crash at any
-// step leaves the file in the inbox, and the next attempt either finds its record (and finishes the
-// move) or redoes the check, so no plan is lost and none is recorded twice.
+// read it once, whole and only when complete; skip it if exactly these bytes were checked before;
+// check it; write the results atomically; record the check; only then move the file out of the
+// inbox. Files are taken in batches: the results of a batch are flushed to disk together and its
+// checks recorded in one transaction, the commit point of the whole batch. A crash at any step
+// leaves the files in the inbox, and the next attempt either finds their records (and finishes the
+// moves) or redoes the checks, so no plan is lost and none is recorded twice.
 
 #include <countersign/service/history.hpp>
 #include <countersign/service/plan_outcome.hpp>
@@ -13,9 +15,13 @@
 
 #include <chrono>
 #include <filesystem>
+#include <functional>
+#include <map>
 #include <optional>
+#include <span>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace countersign::service {
 
@@ -32,35 +38,51 @@ struct ServiceFolders {
       const std::optional<std::filesystem::path>& quarantine);
 };
 
+// How a file came into the inbox, which decides when it may be read.
+enum class Arrival {
+  complete,  // moved in whole (a rename, as the receiver and careful exporters do): read at once
+  in_place,  // written in the inbox itself, or found by a listing: read after the quiet period
+};
+
 struct IntakeOptions {
-  // A file that cannot be read as a plan, and that changed less than this long ago, may still be
-  // being written: it is retried once it has been quiet this long, and only then quarantined.
-  std::chrono::milliseconds settle_time{10000};
-  // How soon to look again at a file some process still holds open for writing.
+  // A file written in place is read only once its size and modification time have been unchanged
+  // this long, and only if they are still the same after it was read.
+  std::chrono::milliseconds quiet_period{2000};
+  // How soon to look again at a file some process holds open for writing, or that changed while read.
   std::chrono::milliseconds busy_retry{500};
-  // How soon to retry after a failure of our own (results folder or history not writable).
-  std::chrono::milliseconds failure_retry{30000};
+  // Back-off after a failed attempt (a file that cannot be read, or our own failure such as a full
+  // disk): first_retry, doubled with each attempt, at most max_retry.
+  std::chrono::milliseconds first_retry{1000};
+  std::chrono::milliseconds max_retry{300000};
+  // A file that still cannot be read at this attempt is moved to quarantine with the reason.
+  int read_attempts = 5;
+  // A batch takes no further file once this long has passed, so that the first results of a long
+  // backlog are not held back (the files left over come first in the next batch).
+  std::chrono::milliseconds batch_time_budget{1000};
 };
 
 enum class IntakeStatus {
   checked,      // checked now; results written and recorded
   duplicate,    // these exact bytes were checked before; the file was moved out, nothing recorded
-  quarantined,  // not a usable plan; moved to quarantine with a reason
-  not_ready,    // still being written; try again at retry_at
-  failed,       // our own failure (disk, database); the file stays; try again at retry_at
-  ignored,      // not a candidate: vanished, a directory, a hidden or temporary name
+  quarantined,  // not a usable plan (or unreadable too often); moved to quarantine with a reason
+  not_ready,    // still being written (quiet period, held open, changed while read); retry at retry_at
+  failed,       // could not be taken now (unreadable, or our own failure); the file stays; retry at retry_at
+  deferred,     // not looked at: the batch ended early (stop request or time budget); take it first next
+  ignored,      // not a candidate: vanished, a directory, a symbolic link, a hidden or temporary name
 };
 
 struct IntakeResult {
   IntakeStatus status = IntakeStatus::ignored;
-  std::string message;                               // what was logged, if anything
+  std::string message;                               // what happened (logged, except for not_ready)
   std::optional<CheckRecord> record;                 // checked: the new record; duplicate: the earlier one
   std::chrono::system_clock::time_point retry_at{};  // not_ready and failed
 };
 
-// Names the folder watcher never takes: hidden files (our own temporary files start with a dot)
-// and names ending in .part, .partial, .tmp or .reason.txt.
-[[nodiscard]] bool is_candidate_name(std::string_view file_name);
+struct IntakeCandidate {
+  std::filesystem::path file;
+  Arrival arrival = Arrival::complete;
+  int attempt = 1;  // 1, then one more after each failed attempt (for back-off and the read limit)
+};
 
 // True for a non-empty UID of digits and dots of at most 64 characters: safe as a file name.
 [[nodiscard]] bool is_safe_uid(std::string_view uid);
@@ -70,18 +92,40 @@ class PlanIntake {
   PlanIntake(ServiceFolders folders, History history, PlanProcessor processor, ServiceLog& log,
              IntakeOptions options);
 
-  // Takes one file from the inbox through the whole path and logs one line about it (none for
-  // not_ready and ignored).
-  [[nodiscard]] IntakeResult take(const std::filesystem::path& file);
+  // Takes the candidates as one batch and returns one result each, in order. Every file is logged
+  // once when it leaves the inbox or fails (not_ready, deferred and ignored files are not logged).
+  // `stop_requested` is asked between files; once it says yes, the rest are deferred.
+  [[nodiscard]] std::vector<IntakeResult> take_batch(std::span<const IntakeCandidate> candidates,
+                                                     const std::function<bool()>& stop_requested = {});
+
+  // One file as a batch of one.
+  [[nodiscard]] IntakeResult take(const std::filesystem::path& file, Arrival arrival = Arrival::complete,
+                                  int attempt = 1);
 
   [[nodiscard]] const ServiceFolders& folders() const { return folders_; }
   [[nodiscard]] const History& history() const { return history_; }
   [[nodiscard]] const IntakeOptions& options() const { return options_; }
+  [[nodiscard]] ServiceLog& log() const { return log_; }
+
+  struct Pending;  // a file checked, waiting for its batch's commit (internal)
 
  private:
+  struct Observed {
+    std::string signature;  // size, times and inode as seen
+    std::chrono::system_clock::time_point since;
+  };
+
+  std::optional<IntakeResult> examine(const IntakeCandidate& candidate, std::size_t index,
+                                      std::vector<Pending>& pending);
+  std::optional<IntakeResult> wait_for_quiet(const IntakeCandidate& candidate, const std::string& signature,
+                                             std::chrono::system_clock::time_point modified);
+  void commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results);
+  IntakeResult finish_duplicate(const std::filesystem::path& file, const CheckRecord& record,
+                                const std::string& content_sha256);
   IntakeResult quarantine(const std::filesystem::path& file, std::string_view content_sha256,
                           const std::string& reason);
-  IntakeResult fail(const std::filesystem::path& file, const std::string& reason);
+  IntakeResult fail(const std::filesystem::path& file, const std::string& reason, int attempt);
+  std::chrono::milliseconds back_off(int attempt) const;
   Expected<std::filesystem::path> move_to_checked(const std::filesystem::path& file, const std::string& uid,
                                                   const std::string& content_sha256);
 
@@ -90,6 +134,9 @@ class PlanIntake {
   PlanProcessor processor_;
   ServiceLog& log_;
   IntakeOptions options_;
+  // Files written in place whose modification time is in the future (another clock, a time set by
+  // the writer): their quiet period is measured from when we first saw them as they are.
+  std::map<std::filesystem::path, Observed> observed_;
 };
 
 }  // namespace countersign::service

@@ -10,6 +10,7 @@
 #include <cstddef>
 #include <filesystem>
 #include <string_view>
+#include <vector>
 
 namespace countersign::service {
 
@@ -46,6 +47,35 @@ enum class OnExisting { pick_free_name, replace };
 
 // fsync of a directory, so that a rename or unlink inside it survives a crash.
 [[nodiscard]] Expected<std::filesystem::path> sync_directory(const std::filesystem::path& dir);
+
+// Files replaced atomically and made durable together, for a batch of results: add() writes each to
+// a hidden temporary file beside its target (0640, not yet flushed); commit() flushes them all with
+// one syncfs of their file system, renames them into place in the order added (a later file of the
+// same target wins) and syncs each directory once. A reader sees each target old or new, never a
+// part. Temporaries not committed are removed on destruction; those a crash leaves are removed by
+// remove_stale_temporaries.
+class AtomicFileGroup {
+ public:
+  AtomicFileGroup() = default;
+  AtomicFileGroup(const AtomicFileGroup&) = delete;
+  AtomicFileGroup& operator=(const AtomicFileGroup&) = delete;
+  ~AtomicFileGroup();
+
+  // Writes `content` for `target`; returns the temporary file.
+  [[nodiscard]] Expected<std::filesystem::path> add(const std::filesystem::path& target,
+                                                    std::string_view content);
+  // Flush, rename, sync directories; returns how many files were put in place. After an error no
+  // target has been replaced by a file that is not on disk.
+  [[nodiscard]] Expected<std::size_t> commit();
+  [[nodiscard]] std::size_t size() const { return files_.size(); }
+
+ private:
+  struct Staged {
+    std::filesystem::path temporary;
+    std::filesystem::path target;
+  };
+  std::vector<Staged> files_;
+};
 
 // An exclusive lock on a folder for as long as this object lives (flock on "<dir>/.countersign.lock";
 // the kernel releases it when the process dies, even by SIGKILL). One service per results folder:
