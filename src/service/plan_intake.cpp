@@ -2,6 +2,7 @@
 #include <countersign/service/private_files.hpp>
 
 #include <countersign/beamdata/sha256.hpp>
+#include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/util/version.hpp>
 
 #include <countersign/service/unique_fd.hpp>
@@ -115,6 +116,16 @@ FileRead read_whole_file(const fs::path& file) {
 
 std::string format_milliseconds(Clock::duration elapsed) {
   return std::to_string(std::chrono::duration_cast<std::chrono::milliseconds>(elapsed).count()) + " ms";
+}
+
+// The key of "checked exactly once": the SHA-256 of the dataset in one canonical encoding, so that
+// the same plan sent again in another transfer syntax is recognised. Bytes that do not read as
+// DICOM (to be retried or quarantined) are hashed as they are.
+std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::path& file) {
+  if (const auto canonical = dicom::canonical_dataset_bytes(bytes, file.string())) {
+    return beamdata::sha256_hex(*canonical);
+  }
+  return beamdata::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
 }
 
 bool ends_with(std::string_view text, std::string_view suffix) {
@@ -248,8 +259,7 @@ IntakeResult PlanIntake::take(const fs::path& file) {
   }
   const bool may_be_growing = started - read.modified < options_.settle_time;
 
-  const std::string content_sha256 = beamdata::sha256_hex(
-      std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
+  const std::string content_sha256 = content_sha256_of(read.bytes, file);
 
   // Exactly once: these bytes were checked before (a second copy, or a restart after a crash that
   // came between the record and the move).
