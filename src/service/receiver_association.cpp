@@ -22,7 +22,8 @@ std::string accepted_classes_text() {
 
 std::string connection_failure(const OFCondition& condition) {
   const std::string text = condition.text();
-  if (text.find("secure transport layer") != std::string::npos) return "TLS handshake failed: " + text;
+  if (text.find("TLS") != std::string::npos || text.find("secure transport layer") != std::string::npos)
+    return "TLS handshake failed (" + text + ")";
   if (condition == DUL_PEERABORTEDASSOCIATION || condition == DUL_NETWORKCLOSED)
     return "closed before a complete association request";
   if (condition == DUL_READTIMEOUT || condition == DUL_NOASSOCIATIONREQUEST)

@@ -81,7 +81,10 @@ const AcceptedStorageClass* accepted_class(const char* sop_class_uid) {
   return found == accepted_storage_classes.end() ? nullptr : &*found;
 }
 
-std::string mebibytes(std::uint64_t bytes) { return std::to_string((bytes + (1U << 20) - 1) >> 20) + " MiB"; }
+std::string size_text(std::uint64_t bytes) {
+  if (bytes < (std::uint64_t{1} << 20)) return std::to_string((bytes + 1023) >> 10) + " KiB";
+  return std::to_string((bytes + (std::uint64_t{1} << 19)) >> 20) + " MiB";
+}
 
 // The hidden file's SOP class and instance must be those of the request.
 Uint16 check_received(const fs::path& file, const T_DIMSE_C_StoreRQ& request, std::string& why) {
@@ -169,9 +172,9 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
   const BoundedFileConsumer& written = stream.consumer();
   if (written.exceeded()) {
     remove_temporary();
-    return refuse(STATUS_STORE_Refused_OutOfResources, "the object (" + mebibytes(written.total()) +
+    return refuse(STATUS_STORE_Refused_OutOfResources, "the object (" + size_text(written.total()) +
                                                            ") is larger than the limit of " +
-                                                           mebibytes(settings.max_object_bytes) + " (--max-object-mb)");
+                                                           size_text(settings.max_object_bytes) + " (--max-object-mb)");
   }
   if (!file.valid() || written.error() != 0 || ::fchmod(file.get(), 0640) != 0 || ::fsync(file.get()) != 0) {
     const int error = written.error() != 0 ? written.error() : errno;
