@@ -12,9 +12,11 @@
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/report/html_report.hpp>
 
+#include "result_sender.hpp"
 #include "shared_options.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -37,7 +39,39 @@ struct CheckCommandOptions {
   bool json = false;
   std::string html;  // --html FILE: the printable record
   std::string pdf;   // --pdf FILE: the same record as PDF (needs Chromium)
+  std::vector<std::string> send_to;  // --send-to AE@HOST:PORT: the results as DICOM to an archive
+  std::string outbox;
+  std::string calling_ae = "COUNTERSIGN";
+  int send_wait_s = 30;
 };
+
+// The sender for --send-to, or nullopt without it; an error for a bad destination or outbox.
+Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOptions& options, std::ostream& notes) {
+  if (options.send_to.empty()) return std::optional<ResultSender>{};
+  SendSettings settings;
+  for (const auto& text : options.send_to) {
+    auto destination = net::Destination::parse(text);
+    if (!destination) return destination.error();
+    settings.destinations.push_back(destination.value());
+  }
+  settings.outbox = options.outbox;
+  settings.scu.calling_ae_title = options.calling_ae;
+  settings.wait = std::chrono::seconds{options.send_wait_s};
+  auto sender = ResultSender::open(std::move(settings), report::find_chromium(), notes);
+  if (!sender) return sender.error();
+  return std::optional<ResultSender>{std::move(sender.value())};
+}
+
+// Delivers what is queued and says what happened; a rejection by an archive is exit code 4.
+ExitCode deliver_results(ResultSender& sender, std::vector<net::DeliveryEvent>& events, std::ostream& out) {
+  events = sender.deliver();
+  ExitCode code = ExitCode::all_within_tolerance;
+  for (const auto& event : events) {
+    out << delivery_line(event, sender.outbox_folder()) << "\n";
+    if (event.status == net::DeliveryStatus::rejected) code = ExitCode::record_not_written;
+  }
+  return code;
+}
 
 // The record's file for one plan: FILE itself for a single plan, FILE's stem plus the plan's stem
 // when several plans are checked in one run.
@@ -70,6 +104,13 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
       return ExitCode::record_not_written;
     }
   }
+
+  auto sender = result_sender_for(options, io.err);
+  if (!sender) {
+    io.err << "countersign check: " << sender.error().message() << "\n";
+    return ExitCode::bad_input;
+  }
+  std::vector<MadeObject> dicom_objects;
 
   ExitCode exit_code = ExitCode::all_within_tolerance;
   std::vector<check::PlanCheck> checks;
@@ -116,6 +157,15 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
         exit_code = worst(exit_code, ExitCode::record_not_written);
       }
     }
+    if (sender->has_value()) {
+      auto queued = (*sender)->queue(result, record_options);
+      if (queued) {
+        dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
+      } else {
+        io.err << "countersign check: the DICOM results were not queued: " << queued.error().message() << "\n";
+        exit_code = worst(exit_code, ExitCode::record_not_written);
+      }
+    }
     if (!options.json) {
       report::write_check_text(io.out, result);
       io.out << "\n";
@@ -129,8 +179,14 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     for (const std::string& e : errors) io.out << "bad input           " << e << "\n";
     io.out << "\n";
   }
+  std::vector<net::DeliveryEvent> deliveries;
+  if (sender->has_value()) {
+    exit_code = worst(exit_code, deliver_results(**sender, deliveries, options.json ? io.err : io.out));
+  }
   if (options.json) {
-    io.out << report::check_run_to_json(checks, errors, static_cast<int>(exit_code)).dump(2) << "\n";
+    auto document = report::check_run_to_json(checks, errors, static_cast<int>(exit_code));
+    if (sender->has_value()) document["dicom_results"] = dicom_results_to_json(dicom_objects, deliveries);
+    io.out << document.dump(2) << "\n";
   } else {
     io.out << report::caution_text() << "\n";
   }
@@ -164,6 +220,18 @@ void add_check_command(CLI::App& app, CommandContext& context) {
   command->add_option(
       "--pdf", options->pdf,
       "also write the record as PDF (needs Chromium; without it nothing is checked and the exit code is 4)");
+  command->add_option("--send-to", options->send_to,
+                      "also send the results as DICOM to an archive, AE@HOST:PORT (repeat for several): a "
+                      "structured report (SR) and, when Chromium is installed, the record as an Encapsulated PDF, "
+                      "in the plan's study; queued in the outbox first, so nothing is lost when the archive is down");
+  command->add_option("--outbox", options->outbox,
+                      "the durable outbox folder for --send-to (default $XDG_STATE_HOME/countersign/outbox or "
+                      "~/.local/state/countersign/outbox)");
+  command->add_option("--calling-ae", options->calling_ae, "our AE title when sending (default COUNTERSIGN)");
+  command->add_option("--send-wait", options->send_wait_s,
+                      "seconds to keep retrying delivery before leaving the rest in the outbox for the next run "
+                      "(default 30)")
+      ->check(CLI::Range(0, 3600));
   command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
 }
 

@@ -39,9 +39,9 @@ void put_code(DcmItem& parent, const DcmTagKey& sequence, const Code& code) {
   put(item, DCM_CodeMeaning, code.meaning);
 }
 
-std::string decimal_string(double value) {
+std::string decimal_string(double value, int significant_digits) {
   if (std::abs(value) < 5e-12) value = 0.0;
-  for (int precision = 10; precision > 0; --precision) {
+  for (int precision = significant_digits; precision > 0; --precision) {
     std::string text = fmt::format("{:.{}g}", value, precision);
     if (text.size() <= 16) return text;
   }

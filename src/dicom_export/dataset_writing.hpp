@@ -29,8 +29,8 @@ void put_empty_sequence(DcmItem& item, const DcmTagKey& sequence);
 // One item with Code Value (or Long Code Value), Coding Scheme Designator and Code Meaning.
 void put_code(DcmItem& parent, const DcmTagKey& sequence, const Code& code);
 
-// A decimal string (DS) of at most 16 characters.
-[[nodiscard]] std::string decimal_string(double value);
+// A decimal string (DS) of at most 16 characters and `significant_digits` significant digits.
+[[nodiscard]] std::string decimal_string(double value, int significant_digits = 10);
 
 // A new UID derived from a random UUID (PS3.5 B.2: "2.25." and the UUID as one decimal integer).
 [[nodiscard]] std::string new_uuid_uid();
