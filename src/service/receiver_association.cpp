@@ -3,6 +3,7 @@
 #include "receiver_handover.hpp"
 #include "receiver_store.hpp"
 
+#include <dcmtk/dcmdata/dcuid.h>
 #include <dcmtk/dcmnet/scpthrd.h>
 
 #include <functional>
@@ -72,7 +73,19 @@ class ReceiverScp final : public DcmThreadSCP {
     DcmThreadSCP::refuseAssociation(reason);
   }
 
-  void notifyAssociationAcknowledge() override { on_negotiated_(); }
+  void notifyAssociationAcknowledge() override {
+    on_negotiated_();
+    refused_classes_ = refused_sop_classes();
+  }
+
+  // An association that ended without a single request usually wanted a SOP class we do not take
+  // (a PACS proposes every class it has, then finds no context for its object): say which.
+  void notifyAssociationTermination() override {
+    if (requests_ == 0 && !refused_classes_.empty()) {
+      context_.log->line("association with " + who() + " ended without a request; of what it proposed, these SOP "
+                         "classes are not accepted here: " + refused_classes_);
+    }
+  }
 
   void notifyDIMSEError(const OFCondition& condition) override {
     const std::string why =
@@ -83,6 +96,7 @@ class ReceiverScp final : public DcmThreadSCP {
   }
 
   OFCondition handleIncomingCommand(T_DIMSE_Message* message, const DcmPresentationContextInfo& info) override {
+    ++requests_;
     if (message == nullptr || message->CommandField != DIMSE_C_STORE_RQ) {
       // C-ECHO is answered by DcmSCP; anything else is refused there as an unsupported command.
       return DcmThreadSCP::handleIncomingCommand(message, info);
@@ -97,6 +111,26 @@ class ReceiverScp final : public DcmThreadSCP {
  private:
   [[nodiscard]] std::string who() const { return "AE \"" + calling_ae_ + "\" at " + peer_text_; }
 
+  // The SOP classes the peer proposed that this association does not take: the first few by name.
+  [[nodiscard]] std::string refused_sop_classes() const {
+    constexpr std::size_t named = 3;
+    std::string refused;
+    std::size_t count_refused = 0;
+    T_ASC_Parameters* params = association_ != nullptr ? association_->params : nullptr;
+    const int count = params != nullptr ? ASC_countPresentationContexts(params) : 0;
+    for (int i = 0; i < count; ++i) {
+      T_ASC_PresentationContext context;
+      if (ASC_getPresentationContext(params, i, &context).bad() || context.resultReason == ASC_P_ACCEPTANCE) continue;
+      const char* name = dcmFindNameOfUID(context.abstractSyntax, nullptr);
+      const std::string text = name != nullptr ? std::string{name} + " (" + context.abstractSyntax + ")"
+                                               : std::string{context.abstractSyntax};
+      if (refused.find(text) != std::string::npos) continue;
+      if (++count_refused <= named) refused += (refused.empty() ? "" : ", ") + text;
+    }
+    if (count_refused > named) refused += " and " + std::to_string(count_refused - named) + " more";
+    return refused;
+  }
+
   const AssociationContext& context_;
   IpAddress address_;
   std::string peer_text_;
@@ -104,6 +138,8 @@ class ReceiverScp final : public DcmThreadSCP {
   T_ASC_Association* association_ = nullptr;
   std::string calling_ae_;
   std::string refusal_;
+  std::string refused_classes_;
+  int requests_ = 0;
 };
 
 }  // namespace

@@ -20,9 +20,7 @@ extern char** environ;
 
 namespace countersign::test {
 
-namespace {
-
-std::uint16_t free_port() {
+std::uint16_t free_tcp_port() {
   const int fd = ::socket(AF_INET, SOCK_STREAM, 0);
   sockaddr_in address{};
   address.sin_family = AF_INET;
@@ -33,6 +31,8 @@ std::uint16_t free_port() {
   ::close(fd);
   return ntohs(address.sin_port);
 }
+
+namespace {
 
 std::string json_string(const std::string& text) {
   std::string quoted = "\"";
@@ -85,8 +85,8 @@ std::unique_ptr<OrthancUnderTest> OrthancUnderTest::start(const std::filesystem:
   }
   std::unique_ptr<OrthancUnderTest> orthanc{new OrthancUnderTest()};
   orthanc->dir_ = dir;
-  orthanc->http_port_ = free_port();
-  orthanc->dicom_port_ = dicom_port != 0 ? dicom_port : free_port();
+  orthanc->http_port_ = free_tcp_port();
+  orthanc->dicom_port_ = dicom_port != 0 ? dicom_port : free_tcp_port();
   std::filesystem::create_directories(dir / "storage");
   const auto config_file = dir / "orthanc.json";
   std::ofstream(config_file) << configuration(dir / "storage", orthanc->http_port_, orthanc->dicom_port_,

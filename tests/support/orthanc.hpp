@@ -17,6 +17,9 @@ namespace countersign::test {
 
 inline constexpr const char* orthanc_binary = "/usr/sbin/Orthanc";
 
+// A TCP port free on loopback right now.
+[[nodiscard]] std::uint16_t free_tcp_port();
+
 // A DICOM peer Orthanc knows: it may send to Orthanc, and Orthanc may send to it (by `name`).
 struct OrthancPeer {
   std::string name;
