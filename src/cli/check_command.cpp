@@ -37,8 +37,8 @@ struct CheckCommandOptions {
   engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
   engine::DepthChoice depth = engine::DepthChoice::planned;
   bool json = false;
-  std::string html;  // --html FILE: the printable record
-  std::string pdf;   // --pdf FILE: the same record as PDF (needs Chromium)
+  std::string html;                  // --html FILE: the printable record
+  std::string pdf;                   // --pdf FILE: the same record as PDF (needs Chromium)
   std::vector<std::string> send_to;  // --send-to AE@HOST:PORT: the results as DICOM to an archive
   std::string outbox;
   std::string calling_ae = "COUNTERSIGN";
@@ -46,7 +46,8 @@ struct CheckCommandOptions {
 };
 
 // The sender for --send-to, or nullopt without it; an error for a bad destination or outbox.
-Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOptions& options, std::ostream& notes) {
+Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOptions& options,
+                                                        std::ostream& notes) {
   if (options.send_to.empty()) return std::optional<ResultSender>{};
   SendSettings settings;
   for (const auto& text : options.send_to) {
@@ -162,7 +163,8 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
       if (queued) {
         dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
       } else {
-        io.err << "countersign check: the DICOM results were not queued: " << queued.error().message() << "\n";
+        io.err << "countersign check: the DICOM results were not queued: " << queued.error().message()
+               << "\n";
         exit_code = worst(exit_code, ExitCode::record_not_written);
       }
     }
@@ -220,17 +222,20 @@ void add_check_command(CLI::App& app, CommandContext& context) {
   command->add_option(
       "--pdf", options->pdf,
       "also write the record as PDF (needs Chromium; without it nothing is checked and the exit code is 4)");
-  command->add_option("--send-to", options->send_to,
-                      "also send the results as DICOM to an archive, AE@HOST:PORT (repeat for several): a "
-                      "structured report (SR) and, when Chromium is installed, the record as an Encapsulated PDF, "
-                      "in the plan's study; queued in the outbox first, so nothing is lost when the archive is down");
-  command->add_option("--outbox", options->outbox,
-                      "the durable outbox folder for --send-to (default $XDG_STATE_HOME/countersign/outbox or "
-                      "~/.local/state/countersign/outbox)");
+  command->add_option(
+      "--send-to", options->send_to,
+      "also send the results as DICOM to an archive, AE@HOST:PORT (repeat for several): a "
+      "structured report (SR) and, when Chromium is installed, the record as an Encapsulated PDF, "
+      "in the plan's study; queued in the outbox first, so nothing is lost when the archive is down");
+  command->add_option(
+      "--outbox", options->outbox,
+      "the durable outbox folder for --send-to (default $XDG_STATE_HOME/countersign/outbox or "
+      "~/.local/state/countersign/outbox)");
   command->add_option("--calling-ae", options->calling_ae, "our AE title when sending (default COUNTERSIGN)");
-  command->add_option("--send-wait", options->send_wait_s,
-                      "seconds to keep retrying delivery before leaving the rest in the outbox for the next run "
-                      "(default 30)")
+  command
+      ->add_option("--send-wait", options->send_wait_s,
+                   "seconds to keep retrying delivery before leaving the rest in the outbox for the next run "
+                   "(default 30)")
       ->check(CLI::Range(0, 3600));
   command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
 }

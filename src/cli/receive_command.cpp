@@ -43,7 +43,8 @@ struct ReceiveCommandOptions {
   double settle_s = 10.0;
 };
 
-service::ReceiverSettings receiver_settings_from(const ReceiveCommandOptions& options, const fs::path& inbox) {
+service::ReceiverSettings receiver_settings_from(const ReceiveCommandOptions& options,
+                                                 const fs::path& inbox) {
   service::ReceiverSettings settings;
   settings.bind_address = options.bind;
   settings.port = static_cast<std::uint16_t>(options.port);
@@ -54,7 +55,8 @@ service::ReceiverSettings receiver_settings_from(const ReceiveCommandOptions& op
   settings.acse_timeout = std::chrono::seconds{options.acse_timeout_s};
   settings.dimse_timeout = std::chrono::seconds{options.dimse_timeout_s};
   settings.max_object_bytes = static_cast<std::uint64_t>(options.max_object_mb) << 20;
-  if (!options.tls_cert.empty()) settings.tls = service::ReceiverTls{options.tls_cert, options.tls_key, options.tls_ca};
+  if (!options.tls_cert.empty())
+    settings.tls = service::ReceiverTls{options.tls_cert, options.tls_key, options.tls_ca};
   return settings;
 }
 
@@ -116,24 +118,30 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
   command->add_option("--ae-title", options->ae_title, "this receiver's AE title (the sender's called AE)")
       ->required();
   command
-      ->add_option("--allow-ae", options->allowed,
-                   "an allowed sender: AE (from any host), AE@HOST (a host name or address) or AE@ADDRESS/BITS "
-                   "(a network); repeat for several")
+      ->add_option(
+          "--allow-ae", options->allowed,
+          "an allowed sender: AE (from any host), AE@HOST (a host name or address) or AE@ADDRESS/BITS "
+          "(a network); repeat for several")
       ->required();
-  command->add_option("--acse-timeout", options->acse_timeout_s,
-                      "seconds a connection has to complete its association request, TLS handshake included "
-                      "(default 30)")
+  command
+      ->add_option("--acse-timeout", options->acse_timeout_s,
+                   "seconds a connection has to complete its association request, TLS handshake included "
+                   "(default 30)")
       ->check(CLI::Range(1, 3600));
-  command->add_option("--dimse-timeout", options->dimse_timeout_s,
-                      "seconds to wait for each message or data once the association is up (default 30)")
+  command
+      ->add_option("--dimse-timeout", options->dimse_timeout_s,
+                   "seconds to wait for each message or data once the association is up (default 30)")
       ->check(CLI::Range(1, 3600));
-  command->add_option("--max-object-mb", options->max_object_mb,
-                      "largest object accepted, in MiB; larger ones are refused with a failure status (default 256)")
+  command
+      ->add_option(
+          "--max-object-mb", options->max_object_mb,
+          "largest object accepted, in MiB; larger ones are refused with a failure status (default 256)")
       ->check(CLI::Range(1, 65536));
   auto* cert = command->add_option("--tls-cert", options->tls_cert, "TLS: this receiver's certificate (PEM)");
   auto* key = command->add_option("--tls-key", options->tls_key, "TLS: its private key (PEM, no passphrase)");
-  auto* ca = command->add_option("--tls-ca", options->tls_ca,
-                                 "TLS: CA certificate(s) (PEM) that senders' certificates must verify against");
+  auto* ca =
+      command->add_option("--tls-ca", options->tls_ca,
+                          "TLS: CA certificate(s) (PEM) that senders' certificates must verify against");
   cert->needs(key)->needs(ca);
   key->needs(cert);
   ca->needs(cert);

@@ -74,7 +74,8 @@ Expected<ResultSender> ResultSender::open(SendSettings settings, std::optional<f
     return Error{ErrorKind::usage, "", "--outbox", "", "no outbox folder: name one (HOME is not set)"};
   }
   // Retries within one run come quickly; entries left for later runs keep their schedule.
-  auto outbox = net::Outbox::open(settings.outbox, net::RetryPolicy{std::chrono::seconds{2}, std::chrono::minutes{10}});
+  auto outbox =
+      net::Outbox::open(settings.outbox, net::RetryPolicy{std::chrono::seconds{2}, std::chrono::minutes{10}});
   if (!outbox) return outbox.error();
   if (!chromium) {
     notes << "countersign check: no Chromium found: sending the structured report (SR) only; the PDF record "
@@ -83,7 +84,8 @@ Expected<ResultSender> ResultSender::open(SendSettings settings, std::optional<f
   return ResultSender{std::move(settings), std::move(outbox.value()), std::move(chromium)};
 }
 
-Expected<std::vector<MadeObject>> ResultSender::queue(const check::PlanCheck& check, const report::HtmlOptions& record) {
+Expected<std::vector<MadeObject>> ResultSender::queue(const check::PlanCheck& check,
+                                                      const report::HtmlOptions& record) {
   const WorkFolder work;
   if (work.path().empty()) return Error{ErrorKind::io, "", "", "", "cannot create a temporary folder"};
   std::vector<dicom_export::ExportedObject> made;
@@ -101,8 +103,8 @@ Expected<std::vector<MadeObject>> ResultSender::queue(const check::PlanCheck& ch
   std::vector<MadeObject> objects;
   for (const auto& object : made) {
     const bool is_sr = object.sop_class_uid == dicom_export::comprehensive_sr_sop_class;
-    const std::string description = std::string{is_sr ? "structured result (SR)" : "record (PDF)"} + " of plan " +
-                                    check.sop_instance_uid;
+    const std::string description =
+        std::string{is_sr ? "structured result (SR)" : "record (PDF)"} + " of plan " + check.sop_instance_uid;
     for (const auto& destination : settings_.destinations) {
       auto queued = outbox_.enqueue(object.file, destination, object.sop_instance_uid, description);
       if (!queued) return queued.error();
@@ -127,7 +129,8 @@ std::string delivery_line(const net::DeliveryEvent& event, const fs::path& outbo
     case net::DeliveryStatus::delivered:
       return "sent " + what;
     case net::DeliveryStatus::rejected:
-      return "REJECTED " + what + ": " + event.detail + "; kept in " + (outbox / "failed" / event.entry.id).string();
+      return "REJECTED " + what + ": " + event.detail + "; kept in " +
+             (outbox / "failed" / event.entry.id).string();
     case net::DeliveryStatus::queued:
       break;
   }

@@ -23,9 +23,9 @@ namespace countersign::cli {
 
 struct SendSettings {
   std::vector<net::Destination> destinations;
-  std::filesystem::path outbox;                 // empty: the default (default_outbox_folder())
+  std::filesystem::path outbox;  // empty: the default (default_outbox_folder())
   net::ScuSettings scu;
-  std::chrono::seconds wait{30};                // how long `check` keeps trying before leaving the rest queued
+  std::chrono::seconds wait{30};  // how long `check` keeps trying before leaving the rest queued
 };
 
 // $XDG_STATE_HOME/countersign/outbox, else ~/.local/state/countersign/outbox; empty when neither is known.
@@ -44,7 +44,8 @@ class ResultSender {
  public:
   // Opens the outbox; `chromium` empty means the SR alone is sent (and `notes` says why, once).
   [[nodiscard]] static Expected<ResultSender> open(SendSettings settings,
-                                                   std::optional<std::filesystem::path> chromium, std::ostream& notes);
+                                                   std::optional<std::filesystem::path> chromium,
+                                                   std::ostream& notes);
 
   // Makes the objects of one check and queues each for every destination. An error means an
   // object could not be made or queued (the check itself stands).

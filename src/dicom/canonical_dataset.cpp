@@ -11,7 +11,8 @@
 
 namespace countersign::dicom {
 
-Expected<std::string> canonical_dataset_bytes(std::span<const std::byte> bytes, const std::string& display_name) {
+Expected<std::string> canonical_dataset_bytes(std::span<const std::byte> bytes,
+                                              const std::string& display_name) {
   if (bytes.empty()) return Error{ErrorKind::not_dicom, display_name, "", "", "the file is empty"};
   detail::ReopenableBufferStream input(bytes);
   DcmFileFormat file_format;
@@ -21,7 +22,8 @@ Expected<std::string> canonical_dataset_bytes(std::span<const std::byte> bytes, 
   DcmDataset* dataset = file_format.getDataset();
   if (read.bad() || dataset == nullptr || !dataset->tagExists(DCM_SOPInstanceUID)) {
     return Error{ErrorKind::not_dicom, display_name, "", "",
-                 std::string{"cannot be read as a DICOM dataset: "} + (read.bad() ? read.text() : "no SOP Instance UID")};
+                 std::string{"cannot be read as a DICOM dataset: "} +
+                     (read.bad() ? read.text() : "no SOP Instance UID")};
   }
 
   // Written in pieces through a fixed buffer: DCMTK asks for more room with EC_StreamNotifyClient.

@@ -39,7 +39,8 @@ ObjectIdentity write_object_header(DcmItem& dataset, const PlanSource& plan, con
 Expected<std::filesystem::path> save_object(DcmFileFormat& file, const std::filesystem::path& output) {
   const OFCondition saved = file.saveFile(output.c_str(), EXS_LittleEndianExplicit, EET_ExplicitLength,
                                           EGL_recalcGL, EPD_noChange, 0, 0, EWM_createNewMeta);
-  if (saved.bad()) return Error{ErrorKind::io, output.string(), "", "", std::string{"cannot write: "} + saved.text()};
+  if (saved.bad())
+    return Error{ErrorKind::io, output.string(), "", "", std::string{"cannot write: "} + saved.text()};
   return output;
 }
 

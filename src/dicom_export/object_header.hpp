@@ -29,6 +29,7 @@ ObjectIdentity write_object_header(DcmItem& dataset, const PlanSource& plan, con
                                    const ExportOptions& options);
 
 // Saves as a Part 10 file in Explicit VR Little Endian; an error names the file.
-[[nodiscard]] Expected<std::filesystem::path> save_object(DcmFileFormat& file, const std::filesystem::path& output);
+[[nodiscard]] Expected<std::filesystem::path> save_object(DcmFileFormat& file,
+                                                          const std::filesystem::path& output);
 
 }  // namespace countersign::dicom_export::detail

@@ -13,27 +13,28 @@ namespace {
 // Patient (PS3.3 C.7.1.1), General Study (C.7.2.1) and Patient Study (C.7.2.2) attributes copied
 // as they are, sequences included. The first group is type 2 in the exported IODs: written empty
 // when the plan lacks them.
-const std::array type2_attributes{DCM_PatientName,  DCM_PatientID,     DCM_PatientBirthDate,
-                                      DCM_PatientSex,   DCM_StudyDate,     DCM_StudyTime,
-                                      DCM_ReferringPhysicianName, DCM_StudyID, DCM_AccessionNumber};
+const std::array type2_attributes{
+    DCM_PatientName,    DCM_PatientID, DCM_PatientBirthDate,       DCM_PatientSex,
+    DCM_StudyDate,      DCM_StudyTime, DCM_ReferringPhysicianName, DCM_StudyID,
+    DCM_AccessionNumber};
 const std::array optional_attributes{DCM_IssuerOfPatientID,
-                                         DCM_IssuerOfPatientIDQualifiersSequence,
-                                         DCM_PatientBirthTime,
-                                         DCM_OtherPatientIDsSequence,
-                                         DCM_OtherPatientNames,
-                                         DCM_EthnicGroup,
-                                         DCM_PatientComments,
-                                         DCM_PatientIdentityRemoved,
-                                         DCM_DeidentificationMethod,
-                                         DCM_DeidentificationMethodCodeSequence,
-                                         DCM_ReferringPhysicianIdentificationSequence,
-                                         DCM_IssuerOfAccessionNumberSequence,
-                                         DCM_StudyDescription,
-                                         DCM_PhysiciansOfRecord,
-                                         DCM_ProcedureCodeSequence,
-                                         DCM_PatientAge,
-                                         DCM_PatientSize,
-                                         DCM_PatientWeight};
+                                     DCM_IssuerOfPatientIDQualifiersSequence,
+                                     DCM_PatientBirthTime,
+                                     DCM_OtherPatientIDsSequence,
+                                     DCM_OtherPatientNames,
+                                     DCM_EthnicGroup,
+                                     DCM_PatientComments,
+                                     DCM_PatientIdentityRemoved,
+                                     DCM_DeidentificationMethod,
+                                     DCM_DeidentificationMethodCodeSequence,
+                                     DCM_ReferringPhysicianIdentificationSequence,
+                                     DCM_IssuerOfAccessionNumberSequence,
+                                     DCM_StudyDescription,
+                                     DCM_PhysiciansOfRecord,
+                                     DCM_ProcedureCodeSequence,
+                                     DCM_PatientAge,
+                                     DCM_PatientSize,
+                                     DCM_PatientWeight};
 
 std::string text_of(DcmItem& item, const DcmTagKey& tag) {
   OFString value;

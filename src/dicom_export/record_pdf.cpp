@@ -46,7 +46,9 @@ void write_document(DcmItem& dataset, const check::PlanCheck& check, const PlanS
   // OB of even length: a trailing NUL pads an odd-sized document; the length says where it ends.
   std::vector<Uint8> value = pdf;
   if (value.size() % 2 != 0) value.push_back(0);
-  if (dataset.putAndInsertUint8Array(DCM_EncapsulatedDocument, value.data(), static_cast<unsigned long>(value.size()))
+  if (dataset
+          .putAndInsertUint8Array(DCM_EncapsulatedDocument, value.data(),
+                                  static_cast<unsigned long>(value.size()))
           .bad() ||
       dataset.putAndInsertUint32(DCM_EncapsulatedDocumentLength, static_cast<Uint32>(pdf.size())).bad()) {
     throw ExportDefect("cannot write the encapsulated document");
@@ -55,9 +57,10 @@ void write_document(DcmItem& dataset, const check::PlanCheck& check, const PlanS
 
 }  // namespace
 
-Expected<ExportedObject> write_record_pdf(const check::PlanCheck& check, const std::filesystem::path& plan_file,
-                                          const std::filesystem::path& pdf_file, const std::filesystem::path& output,
-                                          const ExportOptions& options) {
+Expected<ExportedObject> write_record_pdf(const check::PlanCheck& check,
+                                          const std::filesystem::path& plan_file,
+                                          const std::filesystem::path& pdf_file,
+                                          const std::filesystem::path& output, const ExportOptions& options) {
   auto plan = PlanSource::load(plan_file);
   if (!plan) return plan.error();
   auto pdf = read_pdf(pdf_file);
@@ -65,16 +68,16 @@ Expected<ExportedObject> write_record_pdf(const check::PlanCheck& check, const s
   try {
     DcmFileFormat file;
     DcmDataset& dataset = *file.getDataset();
-    const ObjectIdentity identity =
-        write_object_header(dataset, *plan,
-                            {encapsulated_pdf_sop_class, "DOC", "902", "Independent dose check record (countersign)"},
-                            options);
+    const ObjectIdentity identity = write_object_header(
+        dataset, *plan,
+        {encapsulated_pdf_sop_class, "DOC", "902", "Independent dose check record (countersign)"}, options);
     write_document(dataset, check, *plan, *pdf, options);
     if (auto saved = save_object(file, output); !saved) return saved.error();
     return ExportedObject{output, encapsulated_pdf_sop_class, identity.sop_instance_uid,
                           identity.series_instance_uid, plan->study_instance_uid()};
   } catch (const ExportDefect& defect) {
-    return Error{ErrorKind::io, output.string(), "", "", std::string{"cannot build the encapsulated PDF: "} + defect.what()};
+    return Error{ErrorKind::io, output.string(), "", "",
+                 std::string{"cannot build the encapsulated PDF: "} + defect.what()};
   }
 }
 

@@ -95,24 +95,25 @@ void write_content(DcmItem& dataset, const check::PlanCheck& check, const PlanSo
 
 }  // namespace
 
-Expected<ExportedObject> write_result_sr(const check::PlanCheck& check, const std::filesystem::path& plan_file,
+Expected<ExportedObject> write_result_sr(const check::PlanCheck& check,
+                                         const std::filesystem::path& plan_file,
                                          const std::filesystem::path& output, const ExportOptions& options) {
   auto plan = PlanSource::load(plan_file);
   if (!plan) return plan.error();
   try {
     DcmFileFormat file;
     DcmDataset& dataset = *file.getDataset();
-    const ObjectIdentity identity =
-        write_object_header(dataset, *plan,
-                            {comprehensive_sr_sop_class, "SR", "901", "Independent dose check result (countersign)"},
-                            options);
+    const ObjectIdentity identity = write_object_header(
+        dataset, *plan,
+        {comprehensive_sr_sop_class, "SR", "901", "Independent dose check result (countersign)"}, options);
     write_document_general(dataset, *plan, options);
     write_content(dataset, check, *plan);
     if (auto saved = save_object(file, output); !saved) return saved.error();
     return ExportedObject{output, comprehensive_sr_sop_class, identity.sop_instance_uid,
                           identity.series_instance_uid, plan->study_instance_uid()};
   } catch (const ExportDefect& defect) {
-    return Error{ErrorKind::io, output.string(), "", "", std::string{"cannot build the structured report: "} + defect.what()};
+    return Error{ErrorKind::io, output.string(), "", "",
+                 std::string{"cannot build the structured report: "} + defect.what()};
   }
 }
 

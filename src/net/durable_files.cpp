@@ -48,7 +48,8 @@ bool write_all(int fd, const char* data, std::size_t size) {
 Expected<fs::path> write_synced(const fs::path& file, std::string_view content) {
   const Fd fd{::open(file.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0640)};
   if (fd.get() < 0) return io_error(file, "cannot create");
-  if (!write_all(fd.get(), content.data(), content.size()) || ::fsync(fd.get()) != 0) return io_error(file, "cannot write");
+  if (!write_all(fd.get(), content.data(), content.size()) || ::fsync(fd.get()) != 0)
+    return io_error(file, "cannot write");
   return file;
 }
 
@@ -63,7 +64,8 @@ Expected<fs::path> copy_synced(const fs::path& from, const fs::path& to) {
     if (got < 0 && errno == EINTR) continue;
     if (got < 0) return io_error(from, "cannot read");
     if (got == 0) break;
-    if (!write_all(out.get(), buffer.data(), static_cast<std::size_t>(got))) return io_error(to, "cannot write");
+    if (!write_all(out.get(), buffer.data(), static_cast<std::size_t>(got)))
+      return io_error(to, "cannot write");
   }
   if (::fsync(out.get()) != 0) return io_error(to, "cannot flush");
   return to;
@@ -93,7 +95,8 @@ Expected<fs::path> make_private_directory(const fs::path& dir) {
   for (const auto& part : dir) {
     partial /= part;
     if (fs::is_directory(partial, ec)) continue;
-    if (::mkdir(partial.c_str(), 0750) != 0 && errno != EEXIST) return io_error(partial, "cannot create the folder");
+    if (::mkdir(partial.c_str(), 0750) != 0 && errno != EEXIST)
+      return io_error(partial, "cannot create the folder");
   }
   return dir;
 }

@@ -11,7 +11,8 @@
 namespace countersign::net::detail {
 
 // Writes `content` to `file` (0640) and fsyncs it; the caller renames it into place.
-[[nodiscard]] Expected<std::filesystem::path> write_synced(const std::filesystem::path& file, std::string_view content);
+[[nodiscard]] Expected<std::filesystem::path> write_synced(const std::filesystem::path& file,
+                                                           std::string_view content);
 // Copies `from` to `to` (0640) and fsyncs the copy.
 [[nodiscard]] Expected<std::filesystem::path> copy_synced(const std::filesystem::path& from,
                                                           const std::filesystem::path& to);

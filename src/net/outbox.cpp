@@ -7,9 +7,9 @@
 #include <unistd.h>
 
 #include <algorithm>
-#include <fstream>
 #include <cstdio>
 #include <ctime>
+#include <fstream>
 #include <map>
 #include <optional>
 #include <random>
@@ -29,7 +29,8 @@ std::int64_t to_ms(WallClock::time_point t) {
   return std::chrono::duration_cast<std::chrono::milliseconds>(t.time_since_epoch()).count();
 }
 WallClock::time_point from_ms(std::int64_t ms) {
-  return WallClock::time_point{std::chrono::duration_cast<WallClock::duration>(std::chrono::milliseconds{ms})};
+  return WallClock::time_point{
+      std::chrono::duration_cast<WallClock::duration>(std::chrono::milliseconds{ms})};
 }
 
 std::string one_line(std::string text) {
@@ -38,7 +39,8 @@ std::string one_line(std::string text) {
   return text;
 }
 
-std::string serialise(const OutboxEntry& entry, std::optional<WallClock::time_point> delivered_at = std::nullopt) {
+std::string serialise(const OutboxEntry& entry,
+                      std::optional<WallClock::time_point> delivered_at = std::nullopt) {
   std::ostringstream out;
   out << "destination=" << entry.destination.text() << "\n"
       << "sop_instance_uid=" << one_line(entry.sop_instance_uid) << "\n"
@@ -109,11 +111,15 @@ class EntryLock {
   bool locked_ = false;
 };
 
-Error io(const fs::path& path, const std::string& what) { return Error{ErrorKind::io, path.string(), "", "", what}; }
+Error io(const fs::path& path, const std::string& what) {
+  return Error{ErrorKind::io, path.string(), "", "", what};
+}
 
 }  // namespace
 
-fs::path OutboxEntry::object_file(const fs::path& outbox) const { return outbox / "queue" / id / object_name; }
+fs::path OutboxEntry::object_file(const fs::path& outbox) const {
+  return outbox / "queue" / id / object_name;
+}
 
 Expected<Outbox> Outbox::open(const fs::path& folder, RetryPolicy policy) {
   for (const char* sub : {"queue", "sent", "failed"}) {
@@ -122,7 +128,8 @@ Expected<Outbox> Outbox::open(const fs::path& folder, RetryPolicy policy) {
   std::error_code ec;
   for (const auto& item : fs::directory_iterator{folder / "queue", ec}) {
     const std::string name = item.path().filename().string();
-    if (!name.empty() && name.front() == '.') fs::remove_all(item.path(), ec);  // an enqueue that never finished
+    if (!name.empty() && name.front() == '.')
+      fs::remove_all(item.path(), ec);  // an enqueue that never finished
   }
   if (ec) return io(folder, "cannot read the outbox: " + ec.message());
   return Outbox{folder, policy};
@@ -145,7 +152,8 @@ Expected<OutboxEntry> Outbox::enqueue(const fs::path& object_file, const Destina
     return error;
   };
   if (auto made = detail::make_private_directory(staging); !made) return give_up(made.error());
-  if (auto copied = detail::copy_synced(object_file, staging / object_name); !copied) return give_up(copied.error());
+  if (auto copied = detail::copy_synced(object_file, staging / object_name); !copied)
+    return give_up(copied.error());
   if (auto written = detail::write_synced(staging / entry_name, serialise(entry)); !written) {
     return give_up(written.error());
   }
@@ -181,7 +189,8 @@ DeliveryEvent Outbox::attempt(OutboxEntry entry, const Sender& sender) {
     const fs::path done = folder_ / "sent" / entry.id;
     fs::rename(dir, done, ec);
     if (!ec) {
-      [[maybe_unused]] const auto noted = detail::replace_atomically(done / entry_name, serialise(entry, WallClock::now()));
+      [[maybe_unused]] const auto noted =
+          detail::replace_atomically(done / entry_name, serialise(entry, WallClock::now()));
       fs::remove(done / object_name, ec);
       event.status = DeliveryStatus::delivered;
     }
@@ -190,7 +199,8 @@ DeliveryEvent Outbox::attempt(OutboxEntry entry, const Sender& sender) {
   if (sent.result == SendResult::rejected) {
     fs::rename(dir, folder_ / "failed" / entry.id, ec);
     if (!ec) {
-      [[maybe_unused]] const auto noted = detail::replace_atomically(folder_ / "failed" / entry.id / entry_name, serialise(entry));
+      [[maybe_unused]] const auto noted =
+          detail::replace_atomically(folder_ / "failed" / entry.id / entry_name, serialise(entry));
       event.status = DeliveryStatus::rejected;
       return event;
     }
@@ -217,7 +227,8 @@ std::vector<DeliveryEvent> Outbox::deliver_due(const Sender& sender, WallClock::
   return events;
 }
 
-std::vector<DeliveryEvent> Outbox::deliver_until(const Sender& sender, std::chrono::steady_clock::time_point deadline,
+std::vector<DeliveryEvent> Outbox::deliver_until(const Sender& sender,
+                                                 std::chrono::steady_clock::time_point deadline,
                                                  const std::function<bool()>& stop) {
   std::vector<DeliveryEvent> events;
   for (;;) {
@@ -228,13 +239,14 @@ std::vector<DeliveryEvent> Outbox::deliver_until(const Sender& sender, std::chro
     const auto next = std::min_element(waiting.begin(), waiting.end(), [](const auto& a, const auto& b) {
                         return a.next_attempt < b.next_attempt;
                       })->next_attempt;
-    const auto wait = std::chrono::duration_cast<std::chrono::steady_clock::duration>(next - WallClock::now());
+    const auto wait =
+        std::chrono::duration_cast<std::chrono::steady_clock::duration>(next - WallClock::now());
     if (std::chrono::steady_clock::now() + wait > deadline) return events;
     const auto until = std::chrono::steady_clock::now() + wait;
     while (std::chrono::steady_clock::now() < until) {
       if (stop && stop()) return events;
-      std::this_thread::sleep_for(std::min<std::chrono::steady_clock::duration>(std::chrono::milliseconds{100},
-                                                                                until - std::chrono::steady_clock::now()));
+      std::this_thread::sleep_for(std::min<std::chrono::steady_clock::duration>(
+          std::chrono::milliseconds{100}, until - std::chrono::steady_clock::now()));
     }
   }
 }

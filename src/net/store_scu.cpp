@@ -21,17 +21,20 @@ SendOutcome outcome(SendResult result, std::string detail) { return SendOutcome{
 SendOutcome from_status(Uint16 status) {
   const std::string text = fmt::format("status {:04X}H ({})", status, DU_cstoreStatusString(status));
   if (status == STATUS_Success) return outcome(SendResult::delivered, "stored");
-  if (status == 0xB000 || status == 0xB006 || status == 0xB007) return outcome(SendResult::delivered, "stored with " + text);
+  if (status == 0xB000 || status == 0xB006 || status == 0xB007)
+    return outcome(SendResult::delivered, "stored with " + text);
   if ((status & 0xFF00) == 0xA700) return outcome(SendResult::retry_later, "refused for now: " + text);
   return outcome(SendResult::rejected, "rejected: " + text);
 }
 
 }  // namespace
 
-SendOutcome send_file(const Destination& destination, const std::filesystem::path& file, const ScuSettings& settings) {
+SendOutcome send_file(const Destination& destination, const std::filesystem::path& file,
+                      const ScuSettings& settings) {
   DcmFileFormat format;
   // Only the identifying attributes are needed here; DcmSCU reads the file again to send it.
-  if (const OFCondition loaded = format.loadFile(file.c_str(), EXS_Unknown, EGL_noChange, 4096); loaded.bad()) {
+  if (const OFCondition loaded = format.loadFile(file.c_str(), EXS_Unknown, EGL_noChange, 4096);
+      loaded.bad()) {
     return outcome(SendResult::rejected, std::string{"cannot read the object to send: "} + loaded.text());
   }
   OFString sop_class;
@@ -62,7 +65,8 @@ SendOutcome send_file(const Destination& destination, const std::filesystem::pat
   const T_ASC_PresentationContextID context = scu.findPresentationContextID(sop_class, "");
   if (context == 0) {
     scu.releaseAssociation();
-    return outcome(SendResult::rejected, std::string{"the destination does not accept SOP class "} + sop_class.c_str());
+    return outcome(SendResult::rejected,
+                   std::string{"the destination does not accept SOP class "} + sop_class.c_str());
   }
   Uint16 status = 0;
   const OFCondition sent = scu.sendSTORERequest(context, OFFilename{file.c_str()}, nullptr, status);

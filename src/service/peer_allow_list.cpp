@@ -30,7 +30,8 @@ std::vector<IpAddress> resolve(const std::string& host) {
   std::vector<IpAddress> addresses;
   for (const addrinfo* a = found; a != nullptr; a = a->ai_next) {
     if (auto address = IpAddress::from_socket_address(*a->ai_addr)) {
-      if (std::find(addresses.begin(), addresses.end(), *address) == addresses.end()) addresses.push_back(*address);
+      if (std::find(addresses.begin(), addresses.end(), *address) == addresses.end())
+        addresses.push_back(*address);
     }
   }
   return addresses;
@@ -39,8 +40,10 @@ std::vector<IpAddress> resolve(const std::string& host) {
 Expected<AllowedPeer> parse_entry(const std::string& entry) {
   AllowedPeer peer;
   const auto at = entry.rfind('@');
-  peer.ae_title = trim_spaces(at == std::string::npos ? std::string_view{entry} : std::string_view{entry}.substr(0, at));
-  if (!is_valid_ae_title(peer.ae_title)) return entry_error(entry, "not a valid AE title (1 to 16 printable characters)");
+  peer.ae_title =
+      trim_spaces(at == std::string::npos ? std::string_view{entry} : std::string_view{entry}.substr(0, at));
+  if (!is_valid_ae_title(peer.ae_title))
+    return entry_error(entry, "not a valid AE title (1 to 16 printable characters)");
   if (at == std::string::npos) return peer;
 
   peer.any_host = false;
@@ -61,7 +64,8 @@ Expected<AllowedPeer> parse_entry(const std::string& entry) {
     return peer;
   }
   peer.addresses = resolve(peer.host_text);
-  if (peer.addresses.empty()) return entry_error(entry, "the host \"" + peer.host_text + "\" cannot be resolved");
+  if (peer.addresses.empty())
+    return entry_error(entry, "the host \"" + peer.host_text + "\" cannot be resolved");
   peer.prefix_bits = 128;  // whole address; in_network caps it at 32 for IPv4
   return peer;
 }
@@ -141,7 +145,8 @@ Expected<PeerAllowList> PeerAllowList::parse(const std::vector<std::string>& ent
 }
 
 bool PeerAllowList::host_may_connect(const IpAddress& peer) const {
-  return std::any_of(entries_.begin(), entries_.end(), [&](const AllowedPeer& e) { return e.matches_host(peer); });
+  return std::any_of(entries_.begin(), entries_.end(),
+                     [&](const AllowedPeer& e) { return e.matches_host(peer); });
 }
 
 bool PeerAllowList::allows(std::string_view calling_ae_title, const IpAddress& peer) const {

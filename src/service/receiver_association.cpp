@@ -34,8 +34,12 @@ std::string connection_failure(const OFCondition& condition) {
 
 class ReceiverScp final : public DcmThreadSCP {
  public:
-  ReceiverScp(const AssociationContext& context, const PeerConnection& peer, std::function<void()> on_negotiated)
-      : context_(context), address_(peer.address), peer_text_(peer.text()), on_negotiated_(std::move(on_negotiated)) {}
+  ReceiverScp(const AssociationContext& context, const PeerConnection& peer,
+              std::function<void()> on_negotiated)
+      : context_(context),
+        address_(peer.address),
+        peer_text_(peer.text()),
+        on_negotiated_(std::move(on_negotiated)) {}
 
   // Negotiates and serves `association` (this object drops and frees it when destroyed).
   OFCondition serve(T_ASC_Association* association) {
@@ -82,20 +86,24 @@ class ReceiverScp final : public DcmThreadSCP {
   // (a PACS proposes every class it has, then finds no context for its object): say which.
   void notifyAssociationTermination() override {
     if (requests_ == 0 && !refused_classes_.empty()) {
-      context_.log->line("association with " + who() + " ended without a request; of what it proposed, these SOP "
-                         "classes are not accepted here: " + refused_classes_);
+      context_.log->line("association with " + who() +
+                         " ended without a request; of what it proposed, these SOP "
+                         "classes are not accepted here: " +
+                         refused_classes_);
     }
   }
 
   void notifyDIMSEError(const OFCondition& condition) override {
-    const std::string why =
-        condition == DIMSE_NODATAAVAILABLE
-            ? "no data within " + std::to_string(context_.settings->dimse_timeout.count()) + " s (DIMSE timeout)"
-            : std::string{condition.text()};
+    const std::string why = condition == DIMSE_NODATAAVAILABLE
+                                ? "no data within " +
+                                      std::to_string(context_.settings->dimse_timeout.count()) +
+                                      " s (DIMSE timeout)"
+                                : std::string{condition.text()};
     context_.log->line("association with " + who() + " aborted: " + why);
   }
 
-  OFCondition handleIncomingCommand(T_DIMSE_Message* message, const DcmPresentationContextInfo& info) override {
+  OFCondition handleIncomingCommand(T_DIMSE_Message* message,
+                                    const DcmPresentationContextInfo& info) override {
     ++requests_;
     if (message == nullptr || message->CommandField != DIMSE_C_STORE_RQ) {
       // C-ECHO is answered by DcmSCP; anything else is refused there as an unsupported command.
@@ -120,7 +128,8 @@ class ReceiverScp final : public DcmThreadSCP {
     const int count = params != nullptr ? ASC_countPresentationContexts(params) : 0;
     for (int i = 0; i < count; ++i) {
       T_ASC_PresentationContext context;
-      if (ASC_getPresentationContext(params, i, &context).bad() || context.resultReason == ASC_P_ACCEPTANCE) continue;
+      if (ASC_getPresentationContext(params, i, &context).bad() || context.resultReason == ASC_P_ACCEPTANCE)
+        continue;
       const char* name = dcmFindNameOfUID(context.abstractSyntax, nullptr);
       const std::string text = name != nullptr ? std::string{name} + " (" + context.abstractSyntax + ")"
                                                : std::string{context.abstractSyntax};
@@ -148,12 +157,14 @@ void serve_connection(PeerConnection peer, const AssociationContext& context) {
   const std::string peer_text = peer.text();
   const auto& settings = *context.settings;
   ReceivedAssociation received;  // declared first: freed after the SCP that uses its association
-  const auto token = context.watch->watch(
-      peer.socket.get(), NegotiationWatch::Clock::now() + settings.acse_timeout, peer_text);
-  const OFCondition received_condition = received.receive(peer, context.tls, settings.acse_timeout, max_pdu_bytes);
+  const auto token = context.watch->watch(peer.socket.get(),
+                                          NegotiationWatch::Clock::now() + settings.acse_timeout, peer_text);
+  const OFCondition received_condition =
+      received.receive(peer, context.tls, settings.acse_timeout, max_pdu_bytes);
   if (received_condition.bad()) {
     if (!context.watch->finish(token)) {
-      context.log->line("dropped connection from " + peer_text + ": " + connection_failure(received_condition));
+      context.log->line("dropped connection from " + peer_text + ": " +
+                        connection_failure(received_condition));
     }
     return;
   }
@@ -171,9 +182,10 @@ void refuse_over_limit(PeerConnection peer, const AssociationContext& context, s
   const std::string peer_text = peer.text();
   const auto& settings = *context.settings;
   ReceivedAssociation received;
-  const auto token = context.watch->watch(
-      peer.socket.get(), NegotiationWatch::Clock::now() + settings.acse_timeout, peer_text);
-  const OFCondition received_condition = received.receive(peer, context.tls, settings.acse_timeout, max_pdu_bytes);
+  const auto token = context.watch->watch(peer.socket.get(),
+                                          NegotiationWatch::Clock::now() + settings.acse_timeout, peer_text);
+  const OFCondition received_condition =
+      received.receive(peer, context.tls, settings.acse_timeout, max_pdu_bytes);
   const bool expired = context.watch->finish(token);
   const std::string limit = "over --max-associations (" + std::to_string(in_progress) + " in progress)";
   if (received_condition.bad()) {

@@ -57,7 +57,8 @@ Expected<UniqueFd> open_listening_socket(const std::string& address, std::uint16
   if (!fd.valid()) return usage("--bind", std::string{"cannot open a socket: "} + std::strerror(errno));
   const int yes = 1;
   ::setsockopt(fd.get(), SOL_SOCKET, SO_REUSEADDR, &yes, sizeof yes);
-  if (::bind(fd.get(), reinterpret_cast<const sockaddr*>(&storage), length) != 0 || ::listen(fd.get(), 64) != 0) {
+  if (::bind(fd.get(), reinterpret_cast<const sockaddr*>(&storage), length) != 0 ||
+      ::listen(fd.get(), 64) != 0) {
     return usage("--port", "cannot listen on " + address + " port " + std::to_string(port) + ": " +
                                std::strerror(errno));
   }
@@ -66,7 +67,9 @@ Expected<UniqueFd> open_listening_socket(const std::string& address, std::uint16
 
 ConnectionListener::ConnectionListener(UniqueFd listening_socket, AssociationContext context,
                                        std::size_t max_associations)
-    : listening_socket_(std::move(listening_socket)), context_(context), max_associations_(max_associations) {}
+    : listening_socket_(std::move(listening_socket)),
+      context_(context),
+      max_associations_(max_associations) {}
 
 ConnectionListener::~ConnectionListener() { stop(); }
 
@@ -115,7 +118,8 @@ void ConnectionListener::accept_waiting() {
   for (;;) {
     sockaddr_storage from{};
     socklen_t length = sizeof from;
-    UniqueFd accepted{::accept4(listening_socket_.get(), reinterpret_cast<sockaddr*>(&from), &length, SOCK_CLOEXEC)};
+    UniqueFd accepted{
+        ::accept4(listening_socket_.get(), reinterpret_cast<sockaddr*>(&from), &length, SOCK_CLOEXEC)};
     if (!accepted.valid()) {
       if (errno == EMFILE || errno == ENFILE) {
         context_.log->line(std::string{"receiver: cannot accept a connection: "} + std::strerror(errno));
@@ -124,7 +128,8 @@ void ConnectionListener::accept_waiting() {
     }
     PeerConnection peer;
     peer.socket = std::move(accepted);
-    peer.address = IpAddress::from_socket_address(reinterpret_cast<const sockaddr&>(from)).value_or(IpAddress{});
+    peer.address =
+        IpAddress::from_socket_address(reinterpret_cast<const sockaddr&>(from)).value_or(IpAddress{});
     peer.port = ntohs(from.ss_family == AF_INET6 ? reinterpret_cast<const sockaddr_in6&>(from).sin6_port
                                                  : reinterpret_cast<const sockaddr_in&>(from).sin_port);
     dispatch(std::move(peer));
@@ -137,7 +142,8 @@ void ConnectionListener::dispatch(PeerConnection peer) {
                        ": no allowed sender on this host (--allow-ae); connection closed");
     return;
   }
-  set_socket_timeouts(peer.socket.get(), std::max(context_.settings->acse_timeout, context_.settings->dimse_timeout));
+  set_socket_timeouts(peer.socket.get(),
+                      std::max(context_.settings->acse_timeout, context_.settings->dimse_timeout));
   const std::size_t in_progress = count(true);
   const bool over_limit = in_progress >= max_associations_;
   if (over_limit && count(false) >= max_refusing_threads) {
@@ -173,9 +179,9 @@ void ConnectionListener::join_finished() {
 }
 
 std::size_t ConnectionListener::count(bool counted) const {
-  return static_cast<std::size_t>(std::count_if(connections_.begin(), connections_.end(), [&](const Connection& c) {
-    return c.counted == counted && !*c.done;
-  }));
+  return static_cast<std::size_t>(
+      std::count_if(connections_.begin(), connections_.end(),
+                    [&](const Connection& c) { return c.counted == counted && !*c.done; }));
 }
 
 }  // namespace countersign::service::detail

@@ -76,8 +76,9 @@ class BoundedFileStream : public DcmOutputStream {
 };
 
 const AcceptedStorageClass* accepted_class(const char* sop_class_uid) {
-  const auto found = std::find_if(accepted_storage_classes.begin(), accepted_storage_classes.end(),
-                                  [&](const AcceptedStorageClass& c) { return std::strcmp(c.sop_class_uid, sop_class_uid) == 0; });
+  const auto found = std::find_if(
+      accepted_storage_classes.begin(), accepted_storage_classes.end(),
+      [&](const AcceptedStorageClass& c) { return std::strcmp(c.sop_class_uid, sop_class_uid) == 0; });
   return found == accepted_storage_classes.end() ? nullptr : &*found;
 }
 
@@ -90,7 +91,8 @@ std::string size_text(std::uint64_t bytes) {
 Uint16 check_received(const fs::path& file, const T_DIMSE_C_StoreRQ& request, std::string& why) {
   DcmFileFormat format;
   // Long values are not loaded: only the identifying attributes are needed here.
-  if (const OFCondition loaded = format.loadFile(file.c_str(), EXS_Unknown, EGL_noChange, 4096); loaded.bad()) {
+  if (const OFCondition loaded = format.loadFile(file.c_str(), EXS_Unknown, EGL_noChange, 4096);
+      loaded.bad()) {
     why = std::string{"the received object cannot be read as DICOM: "} + loaded.text();
     return STATUS_STORE_Error_CannotUnderstand;
   }
@@ -117,7 +119,8 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
                                ServiceLog& log, const std::string& who) {
   StoreOutcome outcome;
   const auto refuse = [&](Uint16 status, const std::string& why) {
-    log.line("refused C-STORE of " + std::string{request.AffectedSOPInstanceUID} + " from " + who + ": " + why);
+    log.line("refused C-STORE of " + std::string{request.AffectedSOPInstanceUID} + " from " + who + ": " +
+             why);
     outcome.status = status;
     return outcome;
   };
@@ -162,8 +165,8 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
   const UniqueFd file{::open(temporary.c_str(), O_WRONLY | O_APPEND | O_CLOEXEC)};
   BoundedFileStream stream(file.get(), settings.max_object_bytes);
   T_ASC_PresentationContextID data_context = context_id;
-  outcome.network = DIMSE_receiveDataSetInFile(association, DIMSE_NONBLOCKING, timeout_s, &data_context, &stream,
-                                               nullptr, nullptr);
+  outcome.network = DIMSE_receiveDataSetInFile(association, DIMSE_NONBLOCKING, timeout_s, &data_context,
+                                               &stream, nullptr, nullptr);
   if (outcome.network.bad()) {
     remove_temporary();
     log.line("receive from " + who + " failed: " + outcome.network.text());
@@ -172,9 +175,9 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
   const BoundedFileConsumer& written = stream.consumer();
   if (written.exceeded()) {
     remove_temporary();
-    return refuse(STATUS_STORE_Refused_OutOfResources, "the object (" + size_text(written.total()) +
-                                                           ") is larger than the limit of " +
-                                                           size_text(settings.max_object_bytes) + " (--max-object-mb)");
+    return refuse(STATUS_STORE_Refused_OutOfResources,
+                  "the object (" + size_text(written.total()) + ") is larger than the limit of " +
+                      size_text(settings.max_object_bytes) + " (--max-object-mb)");
   }
   if (!file.valid() || written.error() != 0 || ::fchmod(file.get(), 0640) != 0 || ::fsync(file.get()) != 0) {
     const int error = written.error() != 0 ? written.error() : errno;
@@ -188,7 +191,8 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
     return refuse(status, why);
   }
 
-  const std::string uid = is_safe_uid(request.AffectedSOPInstanceUID) ? request.AffectedSOPInstanceUID : "unnamed";
+  const std::string uid =
+      is_safe_uid(request.AffectedSOPInstanceUID) ? request.AffectedSOPInstanceUID : "unnamed";
   const std::string unique = pattern.substr(pattern.size() - 6);
   const fs::path final_name =
       settings.inbox / (std::string{storage_class->file_prefix} + "." + uid + "." + unique + ".dcm");

@@ -21,8 +21,8 @@
 namespace countersign::service::detail {
 
 struct StoreOutcome {
-  OFCondition network;        // bad: the association cannot go on (no response can be sent)
-  Uint16 status = 0xA700;     // the C-STORE response status otherwise
+  OFCondition network;     // bad: the association cannot go on (no response can be sent)
+  Uint16 status = 0xA700;  // the C-STORE response status otherwise
 };
 
 // Receives the dataset of `request` (announced on presentation context `context_id`) and stores it.

@@ -84,7 +84,8 @@ void StorageReceiver::stop() {
   impl_->log->line("receiver stopped");
 }
 
-Expected<std::unique_ptr<StorageReceiver>> StorageReceiver::start(const ReceiverSettings& settings, ServiceLog& log) {
+Expected<std::unique_ptr<StorageReceiver>> StorageReceiver::start(const ReceiverSettings& settings,
+                                                                  ServiceLog& log) {
   auto impl = std::make_unique<Impl>();
   auto valid = checked(settings);
   if (!valid) return valid.error();
@@ -120,10 +121,11 @@ Expected<std::unique_ptr<StorageReceiver>> StorageReceiver::start(const Receiver
   if (!impl->listener->start()) return Error{ErrorKind::io, "", "", "", "cannot start the receiver's thread"};
 
   std::string senders;
-  for (const auto& entry : impl->allow_list.entries()) senders += (senders.empty() ? "" : ", ") + entry.text();
-  log.line("receiving as AE \"" + impl->settings.ae_title + "\" on " + impl->settings.bind_address + " port " +
-           std::to_string(impl->settings.port) + (impl->tls ? " (TLS)" : "") + " from " + senders + " into " +
-           impl->settings.inbox.string());
+  for (const auto& entry : impl->allow_list.entries())
+    senders += (senders.empty() ? "" : ", ") + entry.text();
+  log.line("receiving as AE \"" + impl->settings.ae_title + "\" on " + impl->settings.bind_address +
+           " port " + std::to_string(impl->settings.port) + (impl->tls ? " (TLS)" : "") + " from " + senders +
+           " into " + impl->settings.inbox.string());
   return std::unique_ptr<StorageReceiver>{new StorageReceiver(std::move(impl))};
 }
 

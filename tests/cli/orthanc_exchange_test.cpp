@@ -37,7 +37,8 @@ class OrthancExchange : public ::testing::Test {
 
   void start_orthanc(std::uint16_t dicom_port = 0) {
     std::string error;
-    orthanc_ = OrthancUnderTest::start(dir_ / "orthanc", {{"countersign", "COUNTERSIGN", 104}}, error, dicom_port);
+    orthanc_ =
+        OrthancUnderTest::start(dir_ / "orthanc", {{"countersign", "COUNTERSIGN", 104}}, error, dicom_port);
     ASSERT_NE(orthanc_, nullptr) << error;
   }
 
@@ -55,15 +56,18 @@ class OrthancExchange : public ::testing::Test {
     const json found = json::parse(orthanc_->post("/tools/find", query.dump()), nullptr, false);
     if (!found.is_array() || found.size() != 1) return nullptr;
     if (orthanc_id != nullptr) *orthanc_id = found[0];
-    return json::parse(orthanc_->get("/instances/" + found[0].get<std::string>() + "/tags?simplify"), nullptr, false);
+    return json::parse(orthanc_->get("/instances/" + found[0].get<std::string>() + "/tags?simplify"), nullptr,
+                       false);
   }
 
   CommandOutput check(const fs::path& plan, const std::string& extra) {
     return run_command(quote(program().string()) + " check " + quote(plan.string()) + " --json --outbox " +
-                       quote((dir_ / "outbox").string()) + " --send-to FERN-PACS@127.0.0.1:" +
-                       std::to_string(orthanc_port_or(0)) + " " + extra);
+                       quote((dir_ / "outbox").string()) +
+                       " --send-to FERN-PACS@127.0.0.1:" + std::to_string(orthanc_port_or(0)) + " " + extra);
   }
-  std::uint16_t orthanc_port_or(std::uint16_t fallback) const { return orthanc_ ? orthanc_->dicom_port() : fallback; }
+  std::uint16_t orthanc_port_or(std::uint16_t fallback) const {
+    return orthanc_ ? orthanc_->dicom_port() : fallback;
+  }
 
   fs::path dir_;
   std::unique_ptr<OrthancUnderTest> orthanc_;
@@ -85,7 +89,8 @@ TEST_F(OrthancExchange, TheResultAndTheRecordArriveInThePlansStudyAndReferenceTh
   const json& results = out["dicom_results"];
   ASSERT_EQ(results["objects"].size(), 2U) << results.dump(2);
   ASSERT_EQ(results["deliveries"].size(), 2U) << results.dump(2);
-  for (const auto& delivery : results["deliveries"]) EXPECT_EQ(delivery["status"], "delivered") << delivery.dump();
+  for (const auto& delivery : results["deliveries"])
+    EXPECT_EQ(delivery["status"], "delivered") << delivery.dump();
 
   std::set<std::string> series;
   for (const auto& object : results["objects"]) {
@@ -100,7 +105,9 @@ TEST_F(OrthancExchange, TheResultAndTheRecordArriveInThePlansStudyAndReferenceTh
     if (object["kind"] == "sr") {
       EXPECT_EQ(tags["Modality"], "SR");
       const json& evidence = tags["CurrentRequestedProcedureEvidenceSequence"][0];
-      EXPECT_EQ(evidence["ReferencedSeriesSequence"][0]["ReferencedSOPSequence"][0]["ReferencedSOPInstanceUID"], plan_uid);
+      EXPECT_EQ(
+          evidence["ReferencedSeriesSequence"][0]["ReferencedSOPSequence"][0]["ReferencedSOPInstanceUID"],
+          plan_uid);
       EXPECT_EQ(tags["VerificationFlag"], "UNVERIFIED");
     } else {
       EXPECT_EQ(tags["Modality"], "DOC");
@@ -119,9 +126,10 @@ TEST_F(OrthancExchange, AnArchiveThatIsDownLosesNothing) {
   // The archive's port is known, but nothing listens there yet.
   const std::uint16_t port = free_tcp_port();
 
-  const auto down = run_command(quote(program().string()) + " check " + quote(demo_plan("fern_wedged_pair.dcm").string()) +
-                                " --json --send-wait 0 --outbox " + quote((dir_ / "outbox").string()) +
-                                " --send-to FERN-PACS@127.0.0.1:" + std::to_string(port));
+  const auto down =
+      run_command(quote(program().string()) + " check " + quote(demo_plan("fern_wedged_pair.dcm").string()) +
+                  " --json --send-wait 0 --outbox " + quote((dir_ / "outbox").string()) +
+                  " --send-to FERN-PACS@127.0.0.1:" + std::to_string(port));
   EXPECT_EQ(down.exit_code, 0) << down.err;  // the verdict stands; the results wait in the outbox
   const json first = json::parse(down.out, nullptr, false);
   ASSERT_TRUE(first.contains("dicom_results")) << down.out;
@@ -137,7 +145,8 @@ TEST_F(OrthancExchange, AnArchiveThatIsDownLosesNothing) {
   const json second = json::parse(up.out, nullptr, false);
   ASSERT_TRUE(second.contains("dicom_results")) << up.out << up.err;
   std::size_t delivered = 0;
-  for (const auto& delivery : second["dicom_results"]["deliveries"]) delivered += delivery["status"] == "delivered";
+  for (const auto& delivery : second["dicom_results"]["deliveries"])
+    delivered += delivery["status"] == "delivered";
   EXPECT_EQ(delivered, 4U) << second["dicom_results"].dump(2);
   for (const auto& object : first["dicom_results"]["objects"]) {
     EXPECT_TRUE(instance_tags(object["sop_instance_uid"]).is_object()) << object.dump();
@@ -147,11 +156,12 @@ TEST_F(OrthancExchange, AnArchiveThatIsDownLosesNothing) {
 
 TEST_F(OrthancExchange, WithoutChromiumTheStructuredResultAloneIsSentAndTheLogSaysWhy) {
   start_orthanc();
-  const auto run = run_command("COUNTERSIGN_CHROMIUM=/nonexistent/chromium " + quote(program().string()) + " check " +
-                               quote(demo_plan("fern_half_beam.dcm").string()) + " --json --outbox " +
-                               quote((dir_ / "outbox").string()) + " --send-to FERN-PACS@127.0.0.1:" +
-                               std::to_string(orthanc_->dicom_port()));
-  EXPECT_NE(run.err.find("no Chromium found: sending the structured report (SR) only"), std::string::npos) << run.err;
+  const auto run = run_command("COUNTERSIGN_CHROMIUM=/nonexistent/chromium " + quote(program().string()) +
+                               " check " + quote(demo_plan("fern_half_beam.dcm").string()) +
+                               " --json --outbox " + quote((dir_ / "outbox").string()) +
+                               " --send-to FERN-PACS@127.0.0.1:" + std::to_string(orthanc_->dicom_port()));
+  EXPECT_NE(run.err.find("no Chromium found: sending the structured report (SR) only"), std::string::npos)
+      << run.err;
   const json out = json::parse(run.out, nullptr, false);
   ASSERT_TRUE(out.contains("dicom_results")) << run.out;
   ASSERT_EQ(out["dicom_results"]["objects"].size(), 1U);

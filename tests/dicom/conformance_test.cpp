@@ -20,7 +20,8 @@ namespace fs = std::filesystem;
 //    lists them in the Beam Dose Verification Control Point Sequence, where the current-layout
 //    plans write them: retired-attribute warnings, no missing or misplaced attribute.
 const std::vector<std::regex> every_plan{
-    std::regex{R"(Retired attribute - \(0x300a,0x008[89a]\) FL Beam Dose Point (Depth|Equivalent Depth|SSD))"},
+    std::regex{
+        R"(Retired attribute - \(0x300a,0x008[89a]\) FL Beam Dose Point (Depth|Equivalent Depth|SSD))"},
     std::regex{R"(Dicom dataset contains retired attributes)"},
 };
 // 2. fern_dosepoint_2012.dcm and fern_dosepoint_fraction.dcm keep the dose-point depths where
@@ -29,8 +30,10 @@ const std::vector<std::regex> every_plan{
 //    checks against the current edition and reports the attributes as not in the IOD.
 const std::vector<std::regex> earlier_edition{
     std::regex{R"(Attribute is not present in standard DICOM IOD - \(0x300a,0x00(82|88|89|8a|8c)\))"},
-    std::regex{R"(Attribute is not present in standard DICOM IOD - \(0x300a,0x0134\) DS Cumulative Meterset Weight)"},
-    std::regex{R"(Attribute is not present in standard DICOM IOD - \(0x300c,0x00f0\) IS Referenced Control Point Index)"},
+    std::regex{
+        R"(Attribute is not present in standard DICOM IOD - \(0x300a,0x0134\) DS Cumulative Meterset Weight)"},
+    std::regex{
+        R"(Attribute is not present in standard DICOM IOD - \(0x300c,0x00f0\) IS Referenced Control Point Index)"},
     std::regex{R"(Dicom dataset contains attributes not present in standard DICOM IOD)"},
 };
 
@@ -40,7 +43,8 @@ TEST(DemoPlanConformance, EveryDemoPlanPassesDciodvfyWithOnlyJustifiedWarnings) 
   for (const auto& entry : fs::directory_iterator{plans}) {
     if (entry.path().extension() != ".dcm") continue;
     const auto report = test::verify_iod(entry.path());
-    ASSERT_TRUE(report.ran) << "dciodvfy is not installed (Debian package dicom3tools; bash tools/install-deps)";
+    ASSERT_TRUE(report.ran)
+        << "dciodvfy is not installed (Debian package dicom3tools; bash tools/install-deps)";
     ++checked;
     const std::string name = entry.path().filename().string();
     EXPECT_TRUE(report.errors.empty()) << name << ":\n" << report.output;

@@ -51,14 +51,16 @@ json read_with_pydicom(const fs::path& file) {
   EXPECT_TRUE(python.has_value()) << "python3-pydicom is needed (bash tools/install-deps)";
   if (!python) return {};
   const auto script = test::source_dir() / "tests" / "dicom_export" / "pydicom_result_summary.py";
-  const auto result = test::run_command(*python + " " + test::quote(script.string()) + " " + test::quote(file.string()));
+  const auto result =
+      test::run_command(*python + " " + test::quote(script.string()) + " " + test::quote(file.string()));
   EXPECT_EQ(result.exit_code, 0) << result.err;
   return json::parse(result.out, nullptr, false);
 }
 
 void expect_conformant(const fs::path& file) {
   const auto report = test::verify_iod(file);
-  ASSERT_TRUE(report.ran) << "dciodvfy is not installed (Debian package dicom3tools; bash tools/install-deps)";
+  ASSERT_TRUE(report.ran)
+      << "dciodvfy is not installed (Debian package dicom3tools; bash tools/install-deps)";
   EXPECT_TRUE(report.errors.empty()) << report.output;
   for (const auto& warning : test::unjustified(report.warnings, justified)) {
     ADD_FAILURE() << file.filename() << ": warning not justified in this test: " << warning;
@@ -91,7 +93,9 @@ std::string study_uid_of(const fs::path& plan_file) {
   const auto dumped = test::run_command("dcmdump +P StudyInstanceUID " + test::quote(plan_file.string()));
   const auto open = dumped.out.find('[');
   const auto close = dumped.out.find(']');
-  return open == std::string::npos || close == std::string::npos ? "" : dumped.out.substr(open + 1, close - open - 1);
+  return open == std::string::npos || close == std::string::npos
+             ? ""
+             : dumped.out.substr(open + 1, close - open - 1);
 }
 
 class ExportObjects : public ::testing::Test {
@@ -124,7 +128,8 @@ TEST_F(ExportObjects, TheStructuredResultIsConformantAndCarriesEveryBeamInThePla
     ASSERT_NE(find_concept(content, "CSR-0002"), nullptr);
     EXPECT_EQ((*find_concept(content, "CSR-0002"))["reference"], c.check.sop_instance_uid);
     ASSERT_NE(find_concept(content, "CSR-0018"), nullptr);  // the caution
-    EXPECT_NE((*find_concept(content, "CSR-0018"))["text"].get<std::string>().find("does not replace"), std::string::npos);
+    EXPECT_NE((*find_concept(content, "CSR-0018"))["text"].get<std::string>().find("does not replace"),
+              std::string::npos);
 
     std::size_t beams = 0;
     for (const auto& item : content) {
@@ -134,9 +139,11 @@ TEST_F(ExportObjects, TheStructuredResultIsConformantAndCarriesEveryBeamInThePla
       EXPECT_EQ((*find_concept(inner, "CSR-0005"))["number"], beam.beam_number);
       EXPECT_EQ((*find_concept(inner, "CSR-0006"))["text"], beam.beam_name);
       EXPECT_EQ((*find_concept(inner, "CSR-0011"))["code"]["value"], verdict_code_value(beam.status));
-      const auto expect_number = [&](const char* code_value, const std::optional<double>& value, const char* unit) {
+      const auto expect_number = [&](const char* code_value, const std::optional<double>& value,
+                                     const char* unit) {
         const json* found = find_concept(inner, code_value);
-        ASSERT_EQ(found != nullptr, value.has_value()) << name << " beam " << beam.beam_number << " " << code_value;
+        ASSERT_EQ(found != nullptr, value.has_value())
+            << name << " beam " << beam.beam_number << " " << code_value;
         if (!value) return;
         EXPECT_NEAR((*found)["number"].get<double>(), *value, 1e-5 * std::max(1.0, std::abs(*value)));
         EXPECT_EQ((*found)["unit"]["value"], unit);

@@ -150,7 +150,8 @@ TEST_F(OutboxTest, DeliverUntilRetriesWithinTheTimeAndLeavesTheRestQueued) {
   enqueue(outbox);
   int attempts = 0;
   const Sender flaky = [&attempts](const Destination&, const fs::path&) {
-    return ++attempts < 3 ? SendOutcome{SendResult::retry_later, "archive down"} : SendOutcome{SendResult::delivered, "stored"};
+    return ++attempts < 3 ? SendOutcome{SendResult::retry_later, "archive down"}
+                          : SendOutcome{SendResult::delivered, "stored"};
   };
   const auto events = outbox.deliver_until(flaky, std::chrono::steady_clock::now() + 5s);
   ASSERT_EQ(events.size(), 3U);
@@ -159,7 +160,8 @@ TEST_F(OutboxTest, DeliverUntilRetriesWithinTheTimeAndLeavesTheRestQueued) {
 
   // An archive that stays down: the entry is still queued when the time is up.
   enqueue(outbox);
-  const auto gave_up = outbox.deliver_until(always(SendResult::retry_later), std::chrono::steady_clock::now() + 300ms);
+  const auto gave_up =
+      outbox.deliver_until(always(SendResult::retry_later), std::chrono::steady_clock::now() + 300ms);
   EXPECT_GE(gave_up.size(), 1U);
   EXPECT_EQ(outbox.pending().size(), 1U);
 }

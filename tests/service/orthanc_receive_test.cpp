@@ -24,8 +24,8 @@ TEST(OrthancSendsToTheReceiver, APlanForwardedByThePacsIsReceivedAndChecked) {
   settings.allowed_senders = {"FERN-PACS@127.0.0.1"};
   ASSERT_EQ(receiver.start(settings), "");
   std::string error;
-  const auto orthanc =
-      test::OrthancUnderTest::start(receiver.dir() / "orthanc", {{"checker", "FERN-CHECK", receiver.port()}}, error);
+  const auto orthanc = test::OrthancUnderTest::start(receiver.dir() / "orthanc",
+                                                     {{"checker", "FERN-CHECK", receiver.port()}}, error);
   ASSERT_NE(orthanc, nullptr) << error;
 
   bool ok = false;
@@ -33,15 +33,17 @@ TEST(OrthancSendsToTheReceiver, APlanForwardedByThePacsIsReceivedAndChecked) {
   const json stored = json::parse(orthanc->post_file("/instances", plan, &ok), nullptr, false);
   ASSERT_TRUE(ok) << stored.dump();
   const std::string instance = stored["ID"];
-  const std::string uid =
-      json::parse(orthanc->get("/instances/" + instance + "/simplified-tags"), nullptr, false)["SOPInstanceUID"];
+  const std::string uid = json::parse(orthanc->get("/instances/" + instance + "/simplified-tags"), nullptr,
+                                      false)["SOPInstanceUID"];
 
   orthanc->post("/modalities/checker/echo", "{}", &ok);
   EXPECT_TRUE(ok) << receiver.log() << orthanc->log();
   const std::string answer = orthanc->post("/modalities/checker/store", instance, &ok);
   EXPECT_TRUE(ok) << answer << receiver.log() << orthanc->log();
-  EXPECT_TRUE(test::wait_for([&] { return fs::exists(receiver.results() / (uid + ".json")); }, 20s)) << receiver.log();
-  EXPECT_TRUE(receiver.log_has("received RT Plan " + uid + " from AE \"FERN-PACS\" at 127.0.0.1:")) << receiver.log();
+  EXPECT_TRUE(test::wait_for([&] { return fs::exists(receiver.results() / (uid + ".json")); }, 20s))
+      << receiver.log();
+  EXPECT_TRUE(receiver.log_has("received RT Plan " + uid + " from AE \"FERN-PACS\" at 127.0.0.1:"))
+      << receiver.log();
   EXPECT_EQ(receiver.checks(), 1);
 
   // A CT image: the receiver takes RT Plans only, and says so.
@@ -51,7 +53,8 @@ TEST(OrthancSendsToTheReceiver, APlanForwardedByThePacsIsReceivedAndChecked) {
   ASSERT_TRUE(ok);
   orthanc->post("/modalities/checker/store", ct_stored["ID"].get<std::string>(), &ok);
   EXPECT_FALSE(ok);
-  EXPECT_TRUE(test::wait_for([&] { return receiver.log_has("these SOP classes are not accepted here: CTImageStorage"); }, 10s))
+  EXPECT_TRUE(test::wait_for(
+      [&] { return receiver.log_has("these SOP classes are not accepted here: CTImageStorage"); }, 10s))
       << receiver.log();
   EXPECT_EQ(receiver.checks(), 1);
 }

@@ -16,11 +16,13 @@ TEST(PeerAllowList, PlainEntriesAllowTheirAeTitleFromAnyHost) {
   EXPECT_TRUE(list->allows("FERN-QA", ip("2001:db8::1")));
   EXPECT_FALSE(list->allows("INTRUDER", ip("127.0.0.1")));
   EXPECT_TRUE(list->host_may_connect(ip("198.51.100.1")));
-  EXPECT_EQ(list->refusal_reason("INTRUDER", ip("127.0.0.1")), "calling AE title not on the allow-list (--allow-ae)");
+  EXPECT_EQ(list->refusal_reason("INTRUDER", ip("127.0.0.1")),
+            "calling AE title not on the allow-list (--allow-ae)");
 }
 
 TEST(PeerAllowList, HostAndNetworkEntriesBindTheAeTitleToAddresses) {
-  const auto list = PeerAllowList::parse({"FERN-TPS@192.0.2.10", "FERN-QA@198.51.100.0/24", "FERN-V6@2001:db8::/32"});
+  const auto list =
+      PeerAllowList::parse({"FERN-TPS@192.0.2.10", "FERN-QA@198.51.100.0/24", "FERN-V6@2001:db8::/32"});
   ASSERT_TRUE(list) << list.error().message();
   EXPECT_TRUE(list->allows("FERN-TPS", ip("192.0.2.10")));
   EXPECT_FALSE(list->allows("FERN-TPS", ip("192.0.2.11")));

@@ -25,18 +25,20 @@ namespace fs = std::filesystem;
 using namespace std::chrono_literals;
 
 void require_dcmtk_tools() {
-  ASSERT_EQ(test::run_command("command -v storescu >/dev/null && command -v echoscu && command -v dcmconv").exit_code,
+  ASSERT_EQ(test::run_command("command -v storescu >/dev/null && command -v echoscu && command -v dcmconv")
+                .exit_code,
             0)
       << "DCMTK's storescu, echoscu and dcmconv are needed (Debian package dcmtk; bash tools/install-deps)";
 }
 
 test::CommandOutput echo(const test::ReceiverUnderTest& receiver, const std::string& calling,
                          const std::string& host = "127.0.0.1", const std::string& extra = "") {
-  return test::run_command("echoscu -to 10 " + extra + " -aet " + test::quote(calling) + " -aec FERN-CHECK " + host +
-                           " " + std::to_string(receiver.port()));
+  return test::run_command("echoscu -to 10 " + extra + " -aet " + test::quote(calling) + " -aec FERN-CHECK " +
+                           host + " " + std::to_string(receiver.port()));
 }
 
-test::CommandOutput store(const test::ReceiverUnderTest& receiver, const fs::path& file, const std::string& extra = "") {
+test::CommandOutput store(const test::ReceiverUnderTest& receiver, const fs::path& file,
+                          const std::string& extra = "") {
   return test::run_command("storescu -v -to 10 " + extra + " -aet FERN-TPS -aec FERN-CHECK 127.0.0.1 " +
                            std::to_string(receiver.port()) + " " + test::quote(file.string()));
 }
@@ -44,7 +46,8 @@ test::CommandOutput store(const test::ReceiverUnderTest& receiver, const fs::pat
 std::size_t visible_files(const fs::path& dir) {
   std::size_t n = 0;
   std::error_code ec;
-  for (const auto& entry : fs::directory_iterator{dir, ec}) n += entry.path().filename().string().front() != '.';
+  for (const auto& entry : fs::directory_iterator{dir, ec})
+    n += entry.path().filename().string().front() != '.';
   return n;
 }
 
@@ -64,7 +67,8 @@ TEST(ReceiverHardening, ATricklingConnectionDelaysNobodyAndIsDroppedAfterTheAcse
   std::atomic<bool> keep_trickling{true};
   std::thread trickle([&] {
     const char byte = 0x00;
-    while (keep_trickling && ::send(trickler, &byte, 1, MSG_NOSIGNAL) == 1) std::this_thread::sleep_for(200ms);
+    while (keep_trickling && ::send(trickler, &byte, 1, MSG_NOSIGNAL) == 1)
+      std::this_thread::sleep_for(200ms);
   });
   std::this_thread::sleep_for(300ms);
 
@@ -75,7 +79,8 @@ TEST(ReceiverHardening, ATricklingConnectionDelaysNobodyAndIsDroppedAfterTheAcse
   // The trickler is still connected; echoscu must not have waited for it (less than the timeout).
   EXPECT_LT(elapsed, 3s) << receiver.log();
 
-  EXPECT_TRUE(test::wait_for([&] { return receiver.log_has("no complete association request within 3 s"); }, 10s))
+  EXPECT_TRUE(
+      test::wait_for([&] { return receiver.log_has("no complete association request within 3 s"); }, 10s))
       << receiver.log();
   keep_trickling = false;
   trickle.join();
@@ -97,8 +102,9 @@ TEST(ReceiverHardening, AnOversizedObjectIsRefusedWithAFailureStatusAndNotKept) 
   ASSERT_TRUE(format.loadFile(big.c_str()).good());
   const std::vector<Uint8> filler(1 << 20, 0x5A);
   format.getDataset()->putAndInsertString(DcmTag(0x0011, 0x0010, EVR_LO), "FERNHOLLOW DEMO");
-  ASSERT_TRUE(format.getDataset()->putAndInsertUint8Array(DcmTag(0x0011, 0x1001, EVR_OB), filler.data(),
-                                                          static_cast<unsigned long>(filler.size()))
+  ASSERT_TRUE(format.getDataset()
+                  ->putAndInsertUint8Array(DcmTag(0x0011, 0x1001, EVR_OB), filler.data(),
+                                           static_cast<unsigned long>(filler.size()))
                   .good());
   ASSERT_TRUE(format.saveFile(big.c_str(), EXS_LittleEndianExplicit).good());
 
@@ -115,8 +121,8 @@ TEST(ReceiverHardening, AnOversizedObjectIsRefusedWithAFailureStatusAndNotKept) 
   const fs::path small = receiver.dir() / "small.dcm";
   ASSERT_TRUE(test::write_demo_rt_plan(small, test::new_dicom_uid(), "FERN-DEMO-091"));
   const auto both = test::run_command("storescu -v -nh -to 10 -aet FERN-TPS -aec FERN-CHECK 127.0.0.1 " +
-                                      std::to_string(receiver.port()) + " " + test::quote(big.string()) + " " +
-                                      test::quote(small.string()));
+                                      std::to_string(receiver.port()) + " " + test::quote(big.string()) +
+                                      " " + test::quote(small.string()));
   EXPECT_NE((both.out + both.err).find("(Success)"), std::string::npos) << both.out << both.err;
   EXPECT_TRUE(test::wait_for([&] { return receiver.checks() == 1; }, 10s)) << receiver.log();
 }
@@ -194,7 +200,8 @@ TEST(ReceiverHardening, AssociationsBeyondTheLimitAreRefusedAndLogged) {
       << receiver.log();
   EXPECT_TRUE(receiver.log_has("over --max-associations (1 in progress)")) << receiver.log();
   ::close(idle);
-  EXPECT_TRUE(test::wait_for([&] { return echo(receiver, "FERN-TPS").exit_code == 0; }, 10s)) << receiver.log();
+  EXPECT_TRUE(test::wait_for([&] { return echo(receiver, "FERN-TPS").exit_code == 0; }, 10s))
+      << receiver.log();
 }
 
 TEST(ReceiverHardening, TheSamePlanInAnotherTransferSyntaxIsRecognisedAsTheSamePlan) {
@@ -206,12 +213,14 @@ TEST(ReceiverHardening, TheSamePlanInAnotherTransferSyntaxIsRecognisedAsTheSameP
   ASSERT_TRUE(test::write_demo_rt_plan(plan, uid, "FERN-DEMO-092"));
   const fs::path implicit = receiver.dir() / "plan-implicit.dcm";
   const fs::path big_endian = receiver.dir() / "plan-big-endian.dcm";
-  ASSERT_EQ(test::run_command("dcmconv +ti " + test::quote(plan.string()) + " " + test::quote(implicit.string()))
-                .exit_code,
-            0);
-  ASSERT_EQ(test::run_command("dcmconv +tb " + test::quote(plan.string()) + " " + test::quote(big_endian.string()))
-                .exit_code,
-            0);
+  ASSERT_EQ(
+      test::run_command("dcmconv +ti " + test::quote(plan.string()) + " " + test::quote(implicit.string()))
+          .exit_code,
+      0);
+  ASSERT_EQ(
+      test::run_command("dcmconv +tb " + test::quote(plan.string()) + " " + test::quote(big_endian.string()))
+          .exit_code,
+      0);
 
   EXPECT_EQ(store(receiver, plan).exit_code, 0);
   ASSERT_TRUE(test::wait_for([&] { return fs::exists(receiver.results() / (uid + ".json")); }, 10s))
@@ -223,7 +232,9 @@ TEST(ReceiverHardening, TheSamePlanInAnotherTransferSyntaxIsRecognisedAsTheSameP
       [&] {
         const std::string log = receiver.log();
         std::size_t n = 0;
-        for (auto at = log.find("already checked"); at != std::string::npos; at = log.find("already checked", at + 1)) ++n;
+        for (auto at = log.find("already checked"); at != std::string::npos;
+             at = log.find("already checked", at + 1))
+          ++n;
         return n == 2;
       },
       15s))

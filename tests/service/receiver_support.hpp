@@ -64,7 +64,8 @@ inline int connect_tcp(const std::string& host, std::uint16_t port) {
 // The receiver in a temporary folder, with a checking service behind it that counts its checks.
 class ReceiverUnderTest {
  public:
-  explicit ReceiverUnderTest(const std::string& name) : dir_(make_temp_dir(name)), port_(free_loopback_port()) {}
+  explicit ReceiverUnderTest(const std::string& name)
+      : dir_(make_temp_dir(name)), port_(free_loopback_port()) {}
   ReceiverUnderTest(const ReceiverUnderTest&) = delete;
   ReceiverUnderTest& operator=(const ReceiverUnderTest&) = delete;
   ~ReceiverUnderTest() {

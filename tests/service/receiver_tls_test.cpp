@@ -22,7 +22,8 @@ bool make_certificates(const fs::path& dir) {
       "; for who in server client; do"
       " openssl req -newkey rsa:2048 -nodes -keyout $who.key -out $who.csr"
       " -subj \"/O=Fernhollow Radiotherapy Unit (invented)/CN=fern-$who\" 2>/dev/null;"
-      " openssl x509 -req -in $who.csr -CA ca.crt -CAkey ca.key -CAcreateserial -out $who.crt -days 1 2>/dev/null;"
+      " openssl x509 -req -in $who.csr -CA ca.crt -CAkey ca.key -CAcreateserial -out $who.crt -days 1 "
+      "2>/dev/null;"
       " done";
   return test::run_command("bash -c " + test::quote(script)).exit_code == 0;
 }
@@ -30,14 +31,16 @@ bool make_certificates(const fs::path& dir) {
 class ReceiverTlsTest : public ::testing::Test {
  protected:
   void SetUp() override {
-    ASSERT_EQ(test::run_command("command -v openssl && command -v echoscu && command -v storescu").exit_code, 0)
+    ASSERT_EQ(test::run_command("command -v openssl && command -v echoscu && command -v storescu").exit_code,
+              0)
         << "openssl and DCMTK's echoscu/storescu are needed (bash tools/install-deps)";
     certificates_ = receiver_.dir() / "pki";
     fs::create_directories(certificates_);
     ASSERT_TRUE(make_certificates(certificates_));
     auto settings = receiver_.settings();
     settings.acse_timeout = 5s;
-    settings.tls = ReceiverTls{certificates_ / "server.crt", certificates_ / "server.key", certificates_ / "ca.crt"};
+    settings.tls =
+        ReceiverTls{certificates_ / "server.crt", certificates_ / "server.key", certificates_ / "ca.crt"};
     ASSERT_EQ(receiver_.start(settings), "");
   }
 
@@ -46,7 +49,9 @@ class ReceiverTlsTest : public ::testing::Test {
            test::quote((certificates_ / "client.crt").string()) + " +cf " +
            test::quote((certificates_ / "ca.crt").string());
   }
-  [[nodiscard]] std::string peer() const { return "-aec FERN-CHECK 127.0.0.1 " + std::to_string(receiver_.port()); }
+  [[nodiscard]] std::string peer() const {
+    return "-aec FERN-CHECK 127.0.0.1 " + std::to_string(receiver_.port());
+  }
 
   test::ReceiverUnderTest receiver_{"countersign-tls"};
   fs::path certificates_;
@@ -59,8 +64,8 @@ TEST_F(ReceiverTlsTest, EchoAndStoreWithVerifiedCertificates) {
   const std::string uid = test::new_dicom_uid();
   const fs::path plan = receiver_.dir() / "plan.dcm";
   ASSERT_TRUE(test::write_demo_rt_plan(plan, uid, "FERN-DEMO-095"));
-  const auto stored =
-      test::run_command("storescu -to 10 " + tls_client() + " -aet FERN-TPS " + peer() + " " + test::quote(plan.string()));
+  const auto stored = test::run_command("storescu -to 10 " + tls_client() + " -aet FERN-TPS " + peer() + " " +
+                                        test::quote(plan.string()));
   EXPECT_EQ(stored.exit_code, 0) << stored.err << receiver_.log();
   EXPECT_TRUE(test::wait_for([&] { return fs::exists(receiver_.results() / (uid + ".json")); }, 10s))
       << receiver_.log();
@@ -69,8 +74,9 @@ TEST_F(ReceiverTlsTest, EchoAndStoreWithVerifiedCertificates) {
 
 TEST_F(ReceiverTlsTest, PeersWithoutACertificateOrWithoutTlsAreRefusedAndLogged) {
   // TLS without a client certificate: the handshake fails, because peers must be verified.
-  const auto anonymous = test::run_command("echoscu -to 10 +tla +cf " +
-                                           test::quote((certificates_ / "ca.crt").string()) + " -aet FERN-TPS " + peer());
+  const auto anonymous =
+      test::run_command("echoscu -to 10 +tla +cf " + test::quote((certificates_ / "ca.crt").string()) +
+                        " -aet FERN-TPS " + peer());
   EXPECT_NE(anonymous.exit_code, 0);
   // Plain TCP to a TLS port.
   const auto plain = test::run_command("echoscu -to 10 -aet FERN-TPS " + peer());
@@ -79,7 +85,9 @@ TEST_F(ReceiverTlsTest, PeersWithoutACertificateOrWithoutTlsAreRefusedAndLogged)
       [&] {
         const std::string log = receiver_.log();
         std::size_t n = 0;
-        for (auto at = log.find("TLS handshake failed"); at != std::string::npos; at = log.find("TLS handshake failed", at + 1)) ++n;
+        for (auto at = log.find("TLS handshake failed"); at != std::string::npos;
+             at = log.find("TLS handshake failed", at + 1))
+          ++n;
         return n >= 2;
       },
       15s))

@@ -22,11 +22,13 @@ IodReport verify_iod(const std::filesystem::path& file) {
   return report;
 }
 
-std::vector<std::string> unjustified(const std::vector<std::string>& warnings, const std::vector<std::regex>& justified) {
+std::vector<std::string> unjustified(const std::vector<std::string>& warnings,
+                                     const std::vector<std::regex>& justified) {
   std::vector<std::string> left;
   for (const auto& warning : warnings) {
-    const bool known = std::any_of(justified.begin(), justified.end(),
-                                   [&](const std::regex& pattern) { return std::regex_search(warning, pattern); });
+    const bool known = std::any_of(justified.begin(), justified.end(), [&](const std::regex& pattern) {
+      return std::regex_search(warning, pattern);
+    });
     if (!known) left.push_back(warning);
   }
   return left;

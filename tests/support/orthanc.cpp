@@ -40,11 +40,13 @@ std::string json_string(const std::string& text) {
   return quoted + "\"";
 }
 
-std::string configuration(const std::filesystem::path& storage, std::uint16_t http_port, std::uint16_t dicom_port,
-                          const std::string& ae_title, const std::vector<OrthancPeer>& peers) {
+std::string configuration(const std::filesystem::path& storage, std::uint16_t http_port,
+                          std::uint16_t dicom_port, const std::string& ae_title,
+                          const std::vector<OrthancPeer>& peers) {
   std::ostringstream modalities;
   for (std::size_t i = 0; i < peers.size(); ++i) {
-    modalities << (i ? ",\n" : "") << "    " << json_string(peers[i].name) << ": {\"AET\": " << json_string(peers[i].ae_title)
+    modalities << (i ? ",\n" : "") << "    " << json_string(peers[i].name)
+               << ": {\"AET\": " << json_string(peers[i].ae_title)
                << ", \"Host\": \"127.0.0.1\", \"Port\": " << peers[i].port << "}";
   }
   std::ostringstream config;
@@ -55,8 +57,8 @@ std::string configuration(const std::filesystem::path& storage, std::uint16_t ht
          << "  \"Plugins\": [],\n"
          << "  \"HttpServerEnabled\": true, \"HttpPort\": " << http_port << ",\n"
          << "  \"RemoteAccessAllowed\": false, \"AuthenticationEnabled\": false,\n"
-         << "  \"DicomServerEnabled\": true, \"DicomAet\": " << json_string(ae_title) << ", \"DicomPort\": " << dicom_port
-         << ",\n"
+         << "  \"DicomServerEnabled\": true, \"DicomAet\": " << json_string(ae_title)
+         << ", \"DicomPort\": " << dicom_port << ",\n"
          << "  \"DicomCheckCalledAETitle\": true, \"DicomCheckModalityHost\": true,\n"
          << "  \"DicomAlwaysAllowEcho\": false, \"DicomAlwaysAllowStore\": false,\n"
          << "  \"DicomScuTimeout\": 10, \"DicomAssociationCloseDelay\": 0,\n"
@@ -77,10 +79,11 @@ std::string slurp(const std::filesystem::path& file) {
 }  // namespace
 
 std::unique_ptr<OrthancUnderTest> OrthancUnderTest::start(const std::filesystem::path& dir,
-                                                          const std::vector<OrthancPeer>& peers, std::string& error,
-                                                          std::uint16_t dicom_port) {
+                                                          const std::vector<OrthancPeer>& peers,
+                                                          std::string& error, std::uint16_t dicom_port) {
   if (::access(orthanc_binary, X_OK) != 0) {
-    error = std::string{orthanc_binary} + " is not installed (Debian package orthanc; bash tools/install-deps)";
+    error =
+        std::string{orthanc_binary} + " is not installed (Debian package orthanc; bash tools/install-deps)";
     return nullptr;
   }
   std::unique_ptr<OrthancUnderTest> orthanc{new OrthancUnderTest()};
@@ -139,7 +142,8 @@ OrthancUnderTest::~OrthancUnderTest() {
 }
 
 std::string OrthancUnderTest::get(const std::string& path, bool* ok) const {
-  const auto result = run_command("curl -sS -f --max-time 30 " + quote("http://127.0.0.1:" + std::to_string(http_port_) + path));
+  const auto result = run_command("curl -sS -f --max-time 30 " +
+                                  quote("http://127.0.0.1:" + std::to_string(http_port_) + path));
   if (ok != nullptr) *ok = result.exit_code == 0;
   return result.exit_code == 0 ? result.out : std::string{};
 }
@@ -151,9 +155,10 @@ std::string OrthancUnderTest::post(const std::string& path, const std::string& b
   return result.exit_code == 0 ? result.out : result.err;
 }
 
-std::string OrthancUnderTest::post_file(const std::string& path, const std::filesystem::path& file, bool* ok) const {
-  const auto result = run_command("curl -sS -f --max-time 60 -X POST --data-binary @" + quote(file.string()) + " " +
-                                  quote("http://127.0.0.1:" + std::to_string(http_port_) + path));
+std::string OrthancUnderTest::post_file(const std::string& path, const std::filesystem::path& file,
+                                        bool* ok) const {
+  const auto result = run_command("curl -sS -f --max-time 60 -X POST --data-binary @" + quote(file.string()) +
+                                  " " + quote("http://127.0.0.1:" + std::to_string(http_port_) + path));
   if (ok != nullptr) *ok = result.exit_code == 0;
   return result.exit_code == 0 ? result.out : result.err;
 }

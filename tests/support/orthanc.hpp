@@ -31,8 +31,9 @@ class OrthancUnderTest {
  public:
   // Starts Orthanc in `dir` (created) and waits until its REST API answers (up to 60 s). A port of
   // 0 picks a free one. On failure returns null and says why in `error`.
-  static std::unique_ptr<OrthancUnderTest> start(const std::filesystem::path& dir, const std::vector<OrthancPeer>& peers,
-                                                 std::string& error, std::uint16_t dicom_port = 0);
+  static std::unique_ptr<OrthancUnderTest> start(const std::filesystem::path& dir,
+                                                 const std::vector<OrthancPeer>& peers, std::string& error,
+                                                 std::uint16_t dicom_port = 0);
   OrthancUnderTest(const OrthancUnderTest&) = delete;
   OrthancUnderTest& operator=(const OrthancUnderTest&) = delete;
   ~OrthancUnderTest();

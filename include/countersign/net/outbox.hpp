@@ -63,8 +63,10 @@ class Outbox {
 
   // Copies `object_file` into the queue for `destination`. Once this returns, the object is
   // delivered or kept, whatever happens to the process.
-  [[nodiscard]] Expected<OutboxEntry> enqueue(const std::filesystem::path& object_file, const Destination& destination,
-                                              const std::string& sop_instance_uid, const std::string& description);
+  [[nodiscard]] Expected<OutboxEntry> enqueue(const std::filesystem::path& object_file,
+                                              const Destination& destination,
+                                              const std::string& sop_instance_uid,
+                                              const std::string& description);
 
   // Tries each entry that is due at `now` once (oldest first); entries another process is sending
   // are left alone.
@@ -72,7 +74,8 @@ class Outbox {
 
   // Delivers until the queue is empty or `deadline` passes, sleeping until the next entry is due in
   // between; `stop` (if given) is asked every 100 ms.
-  std::vector<DeliveryEvent> deliver_until(const Sender& sender, std::chrono::steady_clock::time_point deadline,
+  std::vector<DeliveryEvent> deliver_until(const Sender& sender,
+                                           std::chrono::steady_clock::time_point deadline,
                                            const std::function<bool()>& stop = {});
 
   // Entries waiting in the queue, oldest first.

@@ -37,9 +37,9 @@ class IpAddress {
 
 struct AllowedPeer {
   std::string ae_title;
-  std::string host_text;               // as written; empty: any host
-  std::vector<IpAddress> addresses;    // the host's addresses, or the network's address
-  unsigned prefix_bits = 0;            // CIDR entries: network prefix; otherwise the full length
+  std::string host_text;             // as written; empty: any host
+  std::vector<IpAddress> addresses;  // the host's addresses, or the network's address
+  unsigned prefix_bits = 0;          // CIDR entries: network prefix; otherwise the full length
   bool any_host = true;
 
   [[nodiscard]] bool matches_host(const IpAddress& peer) const;

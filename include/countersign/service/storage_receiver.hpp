@@ -53,14 +53,14 @@ struct ReceiverTls {
 };
 
 struct ReceiverSettings {
-  std::string bind_address = "127.0.0.1";  // an IPv4 or IPv6 address of this machine
-  std::uint16_t port = 0;                  // TCP port to listen on (1..65535)
-  std::string ae_title;                    // our AE title; associations must call it
+  std::string bind_address = "127.0.0.1";    // an IPv4 or IPv6 address of this machine
+  std::uint16_t port = 0;                    // TCP port to listen on (1..65535)
+  std::string ae_title;                      // our AE title; associations must call it
   std::vector<std::string> allowed_senders;  // "AE", "AE@HOST" or "AE@ADDRESS/BITS"; never empty
-  std::filesystem::path inbox;             // where received objects are stored
-  std::uint16_t max_associations = 4;      // served at once; more are refused and logged
-  std::chrono::seconds acse_timeout{30};   // whole association negotiation (TLS handshake included)
-  std::chrono::seconds dimse_timeout{30};  // each wait for data once the association is up
+  std::filesystem::path inbox;               // where received objects are stored
+  std::uint16_t max_associations = 4;        // served at once; more are refused and logged
+  std::chrono::seconds acse_timeout{30};     // whole association negotiation (TLS handshake included)
+  std::chrono::seconds dimse_timeout{30};    // each wait for data once the association is up
   std::uint64_t max_object_bytes = std::uint64_t{256} << 20;  // larger objects are refused
   std::optional<ReceiverTls> tls;
 };
