@@ -55,6 +55,10 @@ Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOption
     if (!destination) return destination.error();
     settings.destinations.push_back(destination.value());
   }
+  if (!net::is_valid_ae_title(options.calling_ae)) {
+    return Error{ErrorKind::usage, "", "--calling-ae", "",
+                 "\"" + options.calling_ae + "\" is not a valid AE title (1 to 16 printable characters)"};
+  }
   settings.outbox = options.outbox;
   settings.scu.calling_ae_title = options.calling_ae;
   settings.wait = std::chrono::seconds{options.send_wait_s};
@@ -80,6 +84,43 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
   if (plan_count <= 1) return requested;
   const fs::path r(requested);
   return r.parent_path() / (r.stem().string() + "-" + plan_file.stem().string() + r.extension().string());
+}
+
+// Where the records of one plan go; an empty path: not asked for.
+struct RecordTarget {
+  fs::path html;
+  fs::path pdf;
+};
+
+// The records asked for (--html, --pdf) and the DICOM results (--send-to) of one checked plan;
+// exit code 4 when one of them could not be made.
+ExitCode write_records(const check::PlanCheck& result, const plan::Plan& plan, const RecordTarget& target,
+                       const std::optional<fs::path>& chromium, ResultSender* sender,
+                       std::vector<MadeObject>& dicom_objects, std::ostream& err) {
+  ExitCode code = ExitCode::all_within_tolerance;
+  const auto failed = [&](const Error& error, const std::string& what) {
+    err << "countersign check: " << what << error.message() << "\n";
+    code = ExitCode::record_not_written;
+  };
+  report::HtmlOptions record_options;
+  record_options.plan = &plan;
+  if (!target.html.empty()) {
+    if (auto written = report::write_html(result, target.html, record_options); !written)
+      failed(written.error(), "");
+  }
+  std::optional<fs::path> pdf;
+  if (chromium && !target.pdf.empty()) {
+    auto written = report::write_pdf(result, target.pdf, *chromium, record_options);
+    if (written) pdf = written.value();
+    if (!written) failed(written.error(), "");
+  }
+  if (sender != nullptr) {
+    // The PDF just written is the one sent, when there is one.
+    auto queued = sender->queue(result, record_options, pdf);
+    if (queued) dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
+    if (!queued) failed(queued.error(), "the DICOM results were not queued: ");
+  }
+  return code;
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
@@ -140,34 +181,12 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
     exit_code = worst(exit_code, result.exit_code());
-    report::HtmlOptions record_options;
-    record_options.plan = &plan.value();
-    if (!options.html.empty()) {
-      auto written =
-          report::write_html(result, record_file(options.html, file, files.size()), record_options);
-      if (!written) {
-        io.err << "countersign check: " << written.error().message() << "\n";
-        exit_code = worst(exit_code, ExitCode::record_not_written);
-      }
-    }
-    if (chromium) {
-      auto written =
-          report::write_pdf(result, record_file(options.pdf, file, files.size()), *chromium, record_options);
-      if (!written) {
-        io.err << "countersign check: " << written.error().message() << "\n";
-        exit_code = worst(exit_code, ExitCode::record_not_written);
-      }
-    }
-    if (sender->has_value()) {
-      auto queued = (*sender)->queue(result, record_options);
-      if (queued) {
-        dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
-      } else {
-        io.err << "countersign check: the DICOM results were not queued: " << queued.error().message()
-               << "\n";
-        exit_code = worst(exit_code, ExitCode::record_not_written);
-      }
-    }
+    const RecordTarget target{
+        options.html.empty() ? fs::path{} : record_file(options.html, file, files.size()),
+        options.pdf.empty() ? fs::path{} : record_file(options.pdf, file, files.size())};
+    exit_code =
+        worst(exit_code, write_records(result, plan.value(), target, chromium,
+                                       sender->has_value() ? &**sender : nullptr, dicom_objects, io.err));
     if (!options.json) {
       report::write_check_text(io.out, result);
       io.out << "\n";

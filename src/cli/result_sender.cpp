@@ -85,15 +85,17 @@ Expected<ResultSender> ResultSender::open(SendSettings settings, std::optional<f
 }
 
 Expected<std::vector<MadeObject>> ResultSender::queue(const check::PlanCheck& check,
-                                                      const report::HtmlOptions& record) {
+                                                      const report::HtmlOptions& record,
+                                                      const std::optional<fs::path>& record_pdf) {
   const WorkFolder work;
   if (work.path().empty()) return Error{ErrorKind::io, "", "", "", "cannot create a temporary folder"};
   std::vector<dicom_export::ExportedObject> made;
   auto sr = dicom_export::write_result_sr(check, check.source_file, work.path() / "result-sr.dcm");
   if (!sr) return sr.error();
   made.push_back(std::move(sr.value()));
-  if (chromium_) {
-    auto pdf = report::write_pdf(check, work.path() / "record.pdf", *chromium_, record);
+  if (record_pdf || chromium_) {
+    auto pdf = record_pdf ? Expected<fs::path>{*record_pdf}
+                          : report::write_pdf(check, work.path() / "record.pdf", *chromium_, record);
     if (!pdf) return pdf.error();
     auto encapsulated =
         dicom_export::write_record_pdf(check, check.source_file, *pdf, work.path() / "record-pdf.dcm");

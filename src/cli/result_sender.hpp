@@ -47,10 +47,12 @@ class ResultSender {
                                                    std::optional<std::filesystem::path> chromium,
                                                    std::ostream& notes);
 
-  // Makes the objects of one check and queues each for every destination. An error means an
-  // object could not be made or queued (the check itself stands).
-  [[nodiscard]] Expected<std::vector<MadeObject>> queue(const check::PlanCheck& check,
-                                                        const report::HtmlOptions& record);
+  // Makes the objects of one check and queues each for every destination; `record_pdf`, when
+  // given, is the record already printed (else it is printed here when Chromium is there). An error
+  // means an object could not be made or queued (the check itself stands).
+  [[nodiscard]] Expected<std::vector<MadeObject>> queue(
+      const check::PlanCheck& check, const report::HtmlOptions& record,
+      const std::optional<std::filesystem::path>& record_pdf = {});
 
   // Delivers what is queued (this run's objects and any left from earlier runs) for up to the wait.
   [[nodiscard]] std::vector<net::DeliveryEvent> deliver();

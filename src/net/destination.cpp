@@ -12,13 +12,13 @@ Error bad(std::string_view text, const std::string& why) {
                "\"" + std::string{text} + "\": " + why + " (expected AE@HOST:PORT)"};
 }
 
-bool valid_ae_title(std::string_view title) {
+}  // namespace
+
+bool is_valid_ae_title(std::string_view title) {
   if (title.empty() || title.size() > 16 || title.find_first_not_of(' ') == std::string_view::npos)
     return false;
   return std::all_of(title.begin(), title.end(), [](char c) { return c >= 0x20 && c < 0x7f && c != '\\'; });
 }
-
-}  // namespace
 
 Expected<Destination> Destination::parse(std::string_view text) {
   const auto at = text.rfind('@');
@@ -33,7 +33,7 @@ Expected<Destination> Destination::parse(std::string_view text) {
   const std::string_view port_text = text.substr(colon + 1);
   unsigned port = 0;
   const auto [end, ec] = std::from_chars(port_text.data(), port_text.data() + port_text.size(), port);
-  if (!valid_ae_title(destination.ae_title))
+  if (!is_valid_ae_title(destination.ae_title))
     return bad(text, "not a valid AE title (1 to 16 printable characters)");
   if (destination.host.empty()) return bad(text, "no host");
   if (ec != std::errc{} || end != port_text.data() + port_text.size() || port == 0 || port > 65535) {

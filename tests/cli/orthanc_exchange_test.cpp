@@ -171,3 +171,26 @@ TEST_F(OrthancExchange, WithoutChromiumTheStructuredResultAloneIsSentAndTheLogSa
 
 }  // namespace
 }  // namespace countersign::test
+
+namespace countersign::test {
+namespace {
+
+TEST(CheckSendToOptions, ABadDestinationOrCallingAeTitleIsAUsageErrorBeforeAnyCheck) {
+  const auto plan = source_dir() / "testdata" / "plans" / "fern_box_4field.dcm";
+  const auto dir = make_temp_dir("countersign-send-options");
+  for (const std::string bad : {"--send-to FERN-PACS@127.0.0.1", "--send-to FERN-PACS@127.0.0.1:0",
+                                "--send-to FERN-PACS@127.0.0.1:104 --calling-ae A-TITLE-THAT-IS-TOO-LONG"}) {
+    const auto run = run_command(quote(program().string()) + " check " + quote(plan.string()) + " --outbox " +
+                                 quote((dir / "outbox").string()) + " " + bad);
+    EXPECT_EQ(run.exit_code, 3) << bad << "\n" << run.err;
+    EXPECT_NE(run.err.find(bad.find("calling") != std::string::npos ? "--calling-ae" : "--send-to"),
+              std::string::npos)
+        << run.err;
+    EXPECT_EQ(run.out.find("Plan"), std::string::npos) << "checked although the options are wrong:\n"
+                                                       << run.out;
+  }
+  std::filesystem::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace countersign::test

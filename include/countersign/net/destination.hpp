@@ -11,6 +11,10 @@
 
 namespace countersign::net {
 
+// A valid AE title: 1 to 16 printable ASCII characters without backslash, not only spaces
+// (DICOM PS3.5 Table 6.2-1, value representation AE).
+[[nodiscard]] bool is_valid_ae_title(std::string_view title);
+
 struct Destination {
   std::string ae_title;
   std::string host;
