@@ -112,6 +112,50 @@ Uint16 check_received(const fs::path& file, const T_DIMSE_C_StoreRQ& request, st
   return STATUS_Success;
 }
 
+// Reads and drops the dataset that follows a command we refuse (it comes whatever we answer).
+OFCondition discard_dataset(T_ASC_Association* association, int timeout_s) {
+  DIC_UL bytes = 0;
+  DIC_UL fragments = 0;
+  return DIMSE_ignoreDataSet(association, DIMSE_NONBLOCKING, timeout_s, &bytes, &fragments);
+}
+
+struct Received {
+  OFCondition network;             // bad: nothing more can be said on this association
+  Uint16 status = STATUS_Success;  // otherwise: Success, or why the object is refused
+  std::string problem;
+};
+
+// The meta header as DCMTK writes it for a received object (transfer syntax of the presentation
+// context, the sender's AE title), then the dataset's bytes as they arrive, up to the size limit.
+Received receive_to_file(T_ASC_Association* association, const T_DIMSE_C_StoreRQ& request,
+                         T_ASC_PresentationContextID context_id, const fs::path& file,
+                         const ReceiverSettings& settings) {
+  Received received;
+  DcmOutputFileStream* header_stream = nullptr;
+  received.network = DIMSE_createFilestream(OFFilename{file.c_str()}, &request, association, context_id,
+                                            OFTrue, &header_stream);
+  delete header_stream;  // DCMTK hands the stream over; deleting it closes the file
+  if (received.network.bad()) return received;
+  const UniqueFd fd{::open(file.c_str(), O_WRONLY | O_APPEND | O_CLOEXEC)};
+  BoundedFileStream stream(fd.get(), settings.max_object_bytes);
+  T_ASC_PresentationContextID data_context = context_id;
+  received.network = DIMSE_receiveDataSetInFile(association, DIMSE_NONBLOCKING,
+                                                static_cast<int>(settings.dimse_timeout.count()),
+                                                &data_context, &stream, nullptr, nullptr);
+  if (received.network.bad()) return received;
+  const BoundedFileConsumer& written = stream.consumer();
+  if (written.exceeded()) {
+    received.status = STATUS_STORE_Refused_OutOfResources;
+    received.problem = "the object (" + size_text(written.total()) + ") is larger than the limit of " +
+                       size_text(settings.max_object_bytes) + " (--max-object-mb)";
+  } else if (!fd.valid() || written.error() != 0 || ::fchmod(fd.get(), 0640) != 0 || ::fsync(fd.get()) != 0) {
+    const int error = written.error() != 0 ? written.error() : errno;
+    received.status = STATUS_STORE_Refused_OutOfResources;
+    received.problem = std::string{"cannot write the received object to disk: "} + std::strerror(error);
+  }
+  return received;
+}
+
 }  // namespace
 
 StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_StoreRQ& request,
@@ -127,80 +171,44 @@ StoreOutcome receive_and_store(T_ASC_Association* association, const T_DIMSE_C_S
   const auto timeout_s = static_cast<int>(settings.dimse_timeout.count());
   const AcceptedStorageClass* storage_class = accepted_class(request.AffectedSOPClassUID);
   if (storage_class == nullptr) {
-    // The dataset follows the command whatever we answer: read it, keep nothing.
-    DIC_UL bytes = 0;
-    DIC_UL fragments = 0;
-    outcome.network = DIMSE_ignoreDataSet(association, DIMSE_NONBLOCKING, timeout_s, &bytes, &fragments);
+    outcome.network = discard_dataset(association, timeout_s);
     if (outcome.network.bad()) return outcome;
     return refuse(STATUS_STORE_Refused_SOPClassNotSupported,
                   std::string{"SOP class "} + request.AffectedSOPClassUID + " is not accepted here");
   }
-
   // Hidden while written: the watcher never takes a partial file, and the next start removes one
   // left by a crash.
   std::string pattern = (settings.inbox / ".countersign-rx.XXXXXX").string();
-  UniqueFd created{::mkstemp(pattern.data())};
-  const fs::path temporary{pattern};
-  if (!created.valid()) {
-    DIC_UL bytes = 0;
-    DIC_UL fragments = 0;
-    outcome.network = DIMSE_ignoreDataSet(association, DIMSE_NONBLOCKING, timeout_s, &bytes, &fragments);
+  if (UniqueFd created{::mkstemp(pattern.data())}; !created.valid()) {
+    const std::string why = std::string{"cannot create a file in the inbox: "} + std::strerror(errno);
+    outcome.network = discard_dataset(association, timeout_s);
     if (outcome.network.bad()) return outcome;
-    return refuse(STATUS_STORE_Refused_OutOfResources,
-                  std::string{"cannot create a file in the inbox: "} + std::strerror(errno));
+    return refuse(STATUS_STORE_Refused_OutOfResources, why);
   }
-  created.reset();
-  const auto remove_temporary = [&] { ::unlink(temporary.c_str()); };
-
-  // The meta header as DCMTK writes it for a received object (transfer syntax of the presentation
-  // context, the sender's AE title), then the dataset's bytes as they arrive.
-  DcmOutputFileStream* header_stream = nullptr;
-  outcome.network = DIMSE_createFilestream(OFFilename{temporary.c_str()}, &request, association, context_id,
-                                           OFTrue, &header_stream);
-  delete header_stream;  // DCMTK hands the stream over; deleting it closes the file
+  const fs::path temporary{pattern};
+  const Received received = receive_to_file(association, request, context_id, temporary, settings);
+  outcome.network = received.network;
   if (outcome.network.bad()) {
-    remove_temporary();
-    return outcome;
-  }
-  const UniqueFd file{::open(temporary.c_str(), O_WRONLY | O_APPEND | O_CLOEXEC)};
-  BoundedFileStream stream(file.get(), settings.max_object_bytes);
-  T_ASC_PresentationContextID data_context = context_id;
-  outcome.network = DIMSE_receiveDataSetInFile(association, DIMSE_NONBLOCKING, timeout_s, &data_context,
-                                               &stream, nullptr, nullptr);
-  if (outcome.network.bad()) {
-    remove_temporary();
+    ::unlink(temporary.c_str());
     log.line("receive from " + who + " failed: " + outcome.network.text());
     return outcome;
   }
-  const BoundedFileConsumer& written = stream.consumer();
-  if (written.exceeded()) {
-    remove_temporary();
-    return refuse(STATUS_STORE_Refused_OutOfResources,
-                  "the object (" + size_text(written.total()) + ") is larger than the limit of " +
-                      size_text(settings.max_object_bytes) + " (--max-object-mb)");
-  }
-  if (!file.valid() || written.error() != 0 || ::fchmod(file.get(), 0640) != 0 || ::fsync(file.get()) != 0) {
-    const int error = written.error() != 0 ? written.error() : errno;
-    remove_temporary();
-    return refuse(STATUS_STORE_Refused_OutOfResources,
-                  std::string{"cannot write the received object to disk: "} + std::strerror(error));
-  }
-  std::string why;
-  if (const Uint16 status = check_received(temporary, request, why); status != STATUS_Success) {
-    remove_temporary();
+  std::string why = received.problem;
+  Uint16 status = received.status;
+  if (status == STATUS_Success) status = check_received(temporary, request, why);
+  if (status != STATUS_Success) {
+    ::unlink(temporary.c_str());
     return refuse(status, why);
   }
-
   const std::string uid =
       is_safe_uid(request.AffectedSOPInstanceUID) ? request.AffectedSOPInstanceUID : "unnamed";
-  const std::string unique = pattern.substr(pattern.size() - 6);
-  const fs::path final_name =
-      settings.inbox / (std::string{storage_class->file_prefix} + "." + uid + "." + unique + ".dcm");
+  const fs::path final_name = settings.inbox / (std::string{storage_class->file_prefix} + "." + uid + "." +
+                                                pattern.substr(pattern.size() - 6) + ".dcm");
   if (::renameat2(AT_FDCWD, temporary.c_str(), AT_FDCWD, final_name.c_str(), RENAME_NOREPLACE) != 0) {
-    const int error = errno;
-    remove_temporary();
+    const std::string error = std::strerror(errno);
+    ::unlink(temporary.c_str());
     return refuse(STATUS_STORE_Refused_OutOfResources,
-                  std::string{"cannot move the received object into the inbox: "} + std::strerror(error));
+                  "cannot move the received object into the inbox: " + error);
   }
   if (auto synced = sync_directory(settings.inbox); !synced) {
     // The object is in place; only its durability across a power cut is in doubt.

@@ -97,3 +97,29 @@ TEST_F(ReceiverTlsTest, PeersWithoutACertificateOrWithoutTlsAreRefusedAndLogged)
 
 }  // namespace
 }  // namespace countersign::service
+
+namespace countersign::service {
+namespace {
+
+TEST_F(ReceiverTlsTest, UnusableTlsFilesAreUsageErrorsNamingTheOptionAndFile) {
+  std::ostringstream sink;
+  ServiceLog log{sink};
+  auto settings = receiver_.settings();
+  settings.port = test::free_loopback_port();
+  settings.tls =
+      ReceiverTls{certificates_ / "missing.crt", certificates_ / "server.key", certificates_ / "ca.crt"};
+  auto started = StorageReceiver::start(settings, log);
+  ASSERT_FALSE(started);
+  EXPECT_EQ(started.error().attribute, "--tls-cert");
+  EXPECT_NE(started.error().message().find("missing.crt"), std::string::npos);
+  // A key that belongs to another certificate.
+  settings.tls =
+      ReceiverTls{certificates_ / "server.crt", certificates_ / "client.key", certificates_ / "ca.crt"};
+  started = StorageReceiver::start(settings, log);
+  ASSERT_FALSE(started);
+  EXPECT_EQ(started.error().attribute, "--tls-key");
+  EXPECT_NE(started.error().message().find("does not match"), std::string::npos) << started.error().message();
+}
+
+}  // namespace
+}  // namespace countersign::service
