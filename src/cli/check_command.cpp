@@ -14,9 +14,11 @@
 #include <countersign/report/json_text.hpp>
 #include <countersign/util/text.hpp>
 
+#include "result_sender.hpp"
 #include "shared_options.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -37,9 +39,46 @@ struct CheckCommandOptions {
   engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
   engine::DepthChoice depth = engine::DepthChoice::planned;
   bool json = false;
-  std::string html;  // --html FILE: the printable record
-  std::string pdf;   // --pdf FILE: the same record as PDF (needs Chromium)
+  std::string html;                  // --html FILE: the printable record
+  std::string pdf;                   // --pdf FILE: the same record as PDF (needs Chromium)
+  std::vector<std::string> send_to;  // --send-to AE@HOST:PORT: the results as DICOM to an archive
+  std::string outbox;
+  std::string calling_ae = "COUNTERSIGN";
+  int send_wait_s = 30;
 };
+
+// The sender for --send-to, or nullopt without it; an error for a bad destination or outbox.
+Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOptions& options,
+                                                        std::ostream& notes) {
+  if (options.send_to.empty()) return std::optional<ResultSender>{};
+  SendSettings settings;
+  for (const auto& text : options.send_to) {
+    auto destination = net::Destination::parse(text);
+    if (!destination) return destination.error();
+    settings.destinations.push_back(destination.value());
+  }
+  if (!net::is_valid_ae_title(options.calling_ae)) {
+    return Error{ErrorKind::usage, "", "--calling-ae", "",
+                 "\"" + options.calling_ae + "\" is not a valid AE title (1 to 16 printable characters)"};
+  }
+  settings.outbox = options.outbox;
+  settings.scu.calling_ae_title = options.calling_ae;
+  settings.wait = std::chrono::seconds{options.send_wait_s};
+  auto sender = ResultSender::open(std::move(settings), report::find_chromium(), notes);
+  if (!sender) return sender.error();
+  return std::optional<ResultSender>{std::move(sender.value())};
+}
+
+// Delivers what is queued and says what happened; a rejection by an archive is exit code 4.
+ExitCode deliver_results(ResultSender& sender, std::vector<net::DeliveryEvent>& events, std::ostream& out) {
+  events = sender.deliver();
+  ExitCode code = ExitCode::all_within_tolerance;
+  for (const auto& event : events) {
+    out << delivery_line(event, sender.outbox_folder()) << "\n";
+    if (event.status == net::DeliveryStatus::rejected) code = ExitCode::record_not_written;
+  }
+  return code;
+}
 
 // The record's file for one plan: FILE itself for a single plan, FILE's stem plus the plan's stem
 // when several plans are checked in one run.
@@ -47,6 +86,43 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
   if (plan_count <= 1) return requested;
   const fs::path r(requested);
   return r.parent_path() / (r.stem().string() + "-" + plan_file.stem().string() + r.extension().string());
+}
+
+// Where the records of one plan go; an empty path: not asked for.
+struct RecordTarget {
+  fs::path html;
+  fs::path pdf;
+};
+
+// The records asked for (--html, --pdf) and the DICOM results (--send-to) of one checked plan;
+// exit code 4 when one of them could not be made.
+ExitCode write_records(const check::PlanCheck& result, const plan::Plan& plan, const RecordTarget& target,
+                       const std::optional<fs::path>& chromium, ResultSender* sender,
+                       std::vector<MadeObject>& dicom_objects, std::ostream& err) {
+  ExitCode code = ExitCode::all_within_tolerance;
+  const auto failed = [&](const Error& error, const std::string& what) {
+    err << "countersign check: " << what << error.message() << "\n";
+    code = ExitCode::record_not_written;
+  };
+  report::HtmlOptions record_options;
+  record_options.plan = &plan;
+  if (!target.html.empty()) {
+    if (auto written = report::write_html(result, target.html, record_options); !written)
+      failed(written.error(), "");
+  }
+  std::optional<fs::path> pdf;
+  if (chromium && !target.pdf.empty()) {
+    auto written = report::write_pdf(result, target.pdf, *chromium, record_options);
+    if (written) pdf = written.value();
+    if (!written) failed(written.error(), "");
+  }
+  if (sender != nullptr) {
+    // The PDF just written is the one sent, when there is one.
+    auto queued = sender->queue(result, record_options, pdf);
+    if (queued) dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
+    if (!queued) failed(queued.error(), "the DICOM results were not queued: ");
+  }
+  return code;
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
@@ -72,6 +148,13 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
       return ExitCode::record_not_written;
     }
   }
+
+  auto sender = result_sender_for(options, io.err);
+  if (!sender) {
+    io.err << "countersign check: " << sender.error().message() << "\n";
+    return ExitCode::bad_input;
+  }
+  std::vector<MadeObject> dicom_objects;
 
   ExitCode exit_code = ExitCode::all_within_tolerance;
   std::vector<check::PlanCheck> checks;
@@ -114,23 +197,12 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     }
     check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
     exit_code = worst(exit_code, result.exit_code());
-    report::HtmlOptions record_options;
-    record_options.plan = &plan.value();
-    if (!options.html.empty()) {
-      auto written = report::write_html(result, record_file(options.html, file, file_count), record_options);
-      if (!written) {
-        io.err << "countersign check: " << written.error().message() << "\n";
-        exit_code = worst(exit_code, ExitCode::record_not_written);
-      }
-    }
-    if (chromium) {
-      auto written =
-          report::write_pdf(result, record_file(options.pdf, file, file_count), *chromium, record_options);
-      if (!written) {
-        io.err << "countersign check: " << written.error().message() << "\n";
-        exit_code = worst(exit_code, ExitCode::record_not_written);
-      }
-    }
+    const RecordTarget target{
+        options.html.empty() ? fs::path{} : record_file(options.html, file, file_count),
+        options.pdf.empty() ? fs::path{} : record_file(options.pdf, file, file_count)};
+    exit_code =
+        worst(exit_code, write_records(result, plan.value(), target, chromium,
+                                       sender->has_value() ? &**sender : nullptr, dicom_objects, io.err));
     if (!options.json) {
       report::write_check_text(io.out, result);
       io.out << "\n";
@@ -150,9 +222,14 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     if (!skipped.empty()) io.out << skipped.size() << " other file(s) skipped: no RT Plan in them\n";
     io.out << "\n";
   }
+  std::vector<net::DeliveryEvent> deliveries;
+  if (sender->has_value()) {
+    exit_code = worst(exit_code, deliver_results(**sender, deliveries, options.json ? io.err : io.out));
+  }
   if (options.json) {
-    io.out << report::json_text(
-        report::check_run_to_json(checks, errors, static_cast<int>(exit_code), skipped));
+    auto document = report::check_run_to_json(checks, errors, static_cast<int>(exit_code), skipped);
+    if (sender->has_value()) document["dicom_results"] = dicom_results_to_json(dicom_objects, deliveries);
+    io.out << report::json_text(document);
   } else {
     io.out << report::caution_text() << "\n";
   }
@@ -190,6 +267,21 @@ void add_check_command(CLI::App& app, CommandContext& context) {
   command->add_option(
       "--pdf", options->pdf,
       "also write the record as PDF (needs Chromium; without it nothing is checked and the exit code is 4)");
+  command->add_option(
+      "--send-to", options->send_to,
+      "also send the results as DICOM to an archive, AE@HOST:PORT (repeat for several): a "
+      "structured report (SR) and, when Chromium is installed, the record as an Encapsulated PDF, "
+      "in the plan's study; queued in the outbox first, so nothing is lost when the archive is down");
+  command->add_option(
+      "--outbox", options->outbox,
+      "the durable outbox folder for --send-to (default $XDG_STATE_HOME/countersign/outbox or "
+      "~/.local/state/countersign/outbox)");
+  command->add_option("--calling-ae", options->calling_ae, "our AE title when sending (default COUNTERSIGN)");
+  command
+      ->add_option("--send-wait", options->send_wait_s,
+                   "seconds to keep retrying delivery before leaving the rest in the outbox for the next run "
+                   "(default 30)")
+      ->check(CLI::Range(0, 3600));
   command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
 }
 

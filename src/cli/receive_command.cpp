@@ -13,6 +13,7 @@
 #include "service_startup.hpp"
 #include "shared_options.hpp"
 
+#include <chrono>
 #include <memory>
 #include <ostream>
 #include <string>
@@ -26,9 +27,16 @@ namespace {
 namespace fs = std::filesystem;
 
 struct ReceiveCommandOptions {
+  std::string bind = "127.0.0.1";
   int port = 0;
   std::string ae_title;
   std::vector<std::string> allowed;
+  int acse_timeout_s = 30;
+  int dimse_timeout_s = 30;
+  int max_object_mb = 256;
+  std::string tls_cert;
+  std::string tls_key;
+  std::string tls_ca;
   std::string results;
   std::string inbox;
   std::string beamdata;
@@ -36,6 +44,23 @@ struct ReceiveCommandOptions {
   int max_associations = 4;
   IntakeFlags intake;
 };
+
+service::ReceiverSettings receiver_settings_from(const ReceiveCommandOptions& options,
+                                                 const fs::path& inbox) {
+  service::ReceiverSettings settings;
+  settings.bind_address = options.bind;
+  settings.port = static_cast<std::uint16_t>(options.port);
+  settings.ae_title = options.ae_title;
+  settings.allowed_senders = options.allowed;
+  settings.inbox = inbox;
+  settings.max_associations = static_cast<std::uint16_t>(options.max_associations);
+  settings.acse_timeout = std::chrono::seconds{options.acse_timeout_s};
+  settings.dimse_timeout = std::chrono::seconds{options.dimse_timeout_s};
+  settings.max_object_bytes = static_cast<std::uint64_t>(options.max_object_mb) << 20;
+  if (!options.tls_cert.empty())
+    settings.tls = service::ReceiverTls{options.tls_cert, options.tls_key, options.tls_ca};
+  return settings;
+}
 
 ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
   try {
@@ -54,13 +79,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
       return ExitCode::bad_input;
     }
 
-    service::ReceiverSettings receiver_settings;
-    receiver_settings.port = static_cast<std::uint16_t>(options.port);
-    receiver_settings.ae_title = options.ae_title;
-    receiver_settings.allowed_calling_ae_titles = options.allowed;
-    receiver_settings.inbox = settings.inbox;
-    receiver_settings.max_associations = static_cast<std::uint16_t>(options.max_associations);
-    auto receiver = service::StorageReceiver::start(receiver_settings, log);
+    auto receiver = service::StorageReceiver::start(receiver_settings_from(options, settings.inbox), log);
     if (!receiver) {
       io.err << "countersign receive: " << escape_control_characters(receiver.error().message()) << "\n";
       return ExitCode::bad_input;
@@ -89,18 +108,47 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
   auto options = std::make_shared<ReceiveCommandOptions>();
   auto* command = app.add_subcommand(
       "receive",
-      "Receive RT Plans over the DICOM network (C-STORE; C-ECHO answered) from the allowed calling AE titles "
-      "only, store each atomically in the inbox (default RESULTS/incoming) and check it exactly once, as "
-      "`watch` does. Other SOP classes and unknown senders are refused. SIGTERM or SIGINT stops after the "
-      "current plan. The check supports, and does not replace, the physicist's review.");
+      "Receive RT Plans over the DICOM network (C-STORE; C-ECHO answered) from the allowed senders only, "
+      "store each atomically in the inbox (default RESULTS/incoming) and check it exactly once, as `watch` "
+      "does. Listens on 127.0.0.1 unless --bind names another address. Other SOP classes, unknown senders, "
+      "objects over --max-object-mb and associations beyond --max-associations are refused and logged. "
+      "SIGTERM or SIGINT stops after the current plan. The check supports, and does not replace, the "
+      "physicist's review.");
+  command->add_option("--bind", options->bind,
+                      "address to listen on (default 127.0.0.1; 0.0.0.0 or :: for every interface)");
   command->add_option("--port", options->port, "TCP port to listen on")
       ->required()
       ->check(CLI::Range(1, 65535));
   command->add_option("--ae-title", options->ae_title, "this receiver's AE title (the sender's called AE)")
       ->required();
   command
-      ->add_option("--allow-ae", options->allowed, "a calling AE title allowed to send; repeat for several")
+      ->add_option(
+          "--allow-ae", options->allowed,
+          "an allowed sender: AE (from any host), AE@HOST (a host name or address) or AE@ADDRESS/BITS "
+          "(a network); repeat for several")
       ->required();
+  command
+      ->add_option("--acse-timeout", options->acse_timeout_s,
+                   "seconds a connection has to complete its association request, TLS handshake included "
+                   "(default 30)")
+      ->check(CLI::Range(1, 3600));
+  command
+      ->add_option("--dimse-timeout", options->dimse_timeout_s,
+                   "seconds to wait for each message or data once the association is up (default 30)")
+      ->check(CLI::Range(1, 3600));
+  command
+      ->add_option(
+          "--max-object-mb", options->max_object_mb,
+          "largest object accepted, in MiB; larger ones are refused with a failure status (default 256)")
+      ->check(CLI::Range(1, 65536));
+  auto* cert = command->add_option("--tls-cert", options->tls_cert, "TLS: this receiver's certificate (PEM)");
+  auto* key = command->add_option("--tls-key", options->tls_key, "TLS: its private key (PEM, no passphrase)");
+  auto* ca =
+      command->add_option("--tls-ca", options->tls_ca,
+                          "TLS: CA certificate(s) (PEM) that senders' certificates must verify against");
+  cert->needs(key)->needs(ca);
+  key->needs(cert);
+  ca->needs(cert);
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
   command->add_option("--inbox", options->inbox,
                       "where received plans are stored and checked from "

@@ -4,6 +4,7 @@
 #include <countersign/beamdata/sha256.hpp>
 #include <countersign/dicom/plan_files.hpp>
 #include <countersign/util/text.hpp>
+#include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/util/version.hpp>
 
 #include <countersign/service/unique_fd.hpp>
@@ -146,6 +147,20 @@ std::string format_seconds(std::chrono::milliseconds wait) {
 std::string shown_name(const fs::path& inbox, const fs::path& file) {
   const fs::path relative = file.lexically_relative(inbox);
   return relative.empty() || *relative.begin() == ".." ? file.filename().string() : relative.string();
+}
+
+// The key of "checked exactly once": the SHA-256 of the dataset in one canonical encoding, so that
+// the same plan sent again in another transfer syntax is recognised. Bytes that do not read as
+// DICOM (to be retried or quarantined) are hashed as they are.
+std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::path& file) {
+  if (const auto canonical = dicom::canonical_dataset_bytes(bytes, file.string())) {
+    return beamdata::sha256_hex(*canonical);
+  }
+  return beamdata::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
+}
+
+bool ends_with(std::string_view text, std::string_view suffix) {
+  return text.size() >= suffix.size() && text.substr(text.size() - suffix.size()) == suffix;
 }
 
 }  // namespace
@@ -331,9 +346,8 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   }
   if (auto waiting = wait_for_quiet(candidate, read.signature, read.modified)) return waiting;
 
-  const std::string content_sha256 = beamdata::sha256_hex(
-      std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
-  // The same bytes earlier in this batch: settled once the batch is committed.
+  const std::string content_sha256 = content_sha256_of(read.bytes, file);
+  // The same content earlier in this batch: settled once the batch is committed.
   for (const Pending& earlier : pending) {
     if (earlier.content_sha256 == content_sha256) return std::nullopt;
   }

@@ -43,9 +43,8 @@ TEST(RecordCli, HtmlRecordOfTheDemoPlan) {
 
 TEST(RecordCli, PdfRecordHasACoverAndOnePagePerBeam) {
   if (!std::filesystem::exists(box_plan())) GTEST_SKIP() << "demo plans not generated";
-  if (run_command("command -v chromium || command -v chromium-browser").exit_code != 0) {
-    GTEST_SKIP() << "no Chromium on this machine (tools/install-deps installs Debian's chromium)";
-  }
+  ASSERT_EQ(run_command("command -v chromium || command -v chromium-browser").exit_code, 0)
+      << "no Chromium on this machine (tools/install-deps installs Debian's chromium)";
   const auto dir = make_temp_dir("countersign-record");
   const auto pdf = dir / "box.pdf";
   const auto r = run_command(quote(program().string()) + " check " + quote(box_plan().string()) + " --pdf " +

@@ -285,8 +285,8 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
 }
 
 TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrangers) {
-  if (test::run_command("command -v storescu").exit_code != 0)
-    GTEST_SKIP() << "DCMTK's storescu not installed";
+  ASSERT_EQ(test::run_command("command -v storescu").exit_code, 0)
+      << "DCMTK's storescu is not installed (Debian package dcmtk; bash tools/install-deps)";
   const auto plans = demo_plans();
   ASSERT_FALSE(plans.empty());
   const fs::path results = dir_ / "results";
@@ -296,7 +296,7 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
   ASSERT_TRUE(wait_until(
-      [&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; }, 20s))
+      [&] { return slurp(dir_ / "receive.log").find("receiving as AE") != std::string::npos; }, 20s))
       << slurp(dir_ / "receive.log");
 
   const std::string send = "storescu -to 10 -aec FERN-CHECK ";

@@ -61,9 +61,8 @@ std::size_t count_entries(const fs::path& dir) {
 class StorageReceiverTest : public ::testing::Test {
  protected:
   void SetUp() override {
-    if (test::run_command("command -v storescu >/dev/null && command -v echoscu").exit_code != 0) {
-      GTEST_SKIP() << "DCMTK's storescu/echoscu are not installed (Debian package dcmtk)";
-    }
+    ASSERT_EQ(test::run_command("command -v storescu >/dev/null && command -v echoscu").exit_code, 0)
+        << "DCMTK's storescu/echoscu are not installed (Debian package dcmtk; bash tools/install-deps)";
     dir_ = test::make_temp_dir("countersign-receive");
     port_ = free_port();
     ServiceSettings settings;
@@ -80,7 +79,7 @@ class StorageReceiverTest : public ::testing::Test {
     ReceiverSettings receiver;
     receiver.port = port_;
     receiver.ae_title = "FERN-CHECK";
-    receiver.allowed_calling_ae_titles = {"FERN-TPS", "FERN-TPS2"};
+    receiver.allowed_senders = {"FERN-TPS", "FERN-TPS2"};
     receiver.inbox = settings.inbox;
     auto started = StorageReceiver::start(receiver, log_);
     ASSERT_TRUE(started) << started.error().message();
@@ -171,7 +170,7 @@ TEST_F(StorageReceiverTest, AWrongCalledAeTitleIsRefused) {
 TEST_F(StorageReceiverTest, ACtImageIsRefused) {
   // pydicom's bundled CT image as an independent, real DICOM object of another SOP class.
   const fs::path ct = "/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm";
-  if (!fs::exists(ct)) GTEST_SKIP() << "python3-pydicom test files not installed";
+  ASSERT_TRUE(fs::exists(ct)) << "python3-pydicom test files not installed (bash tools/install-deps)";
   const auto stored = store("FERN-TPS", ct);
   EXPECT_NE(stored.exit_code, 0) << stored.out << stored.err;
   std::this_thread::sleep_for(300ms);
@@ -224,7 +223,7 @@ TEST(StorageReceiverSettings, RefusesUnusableSettingsWithAClearMessage) {
   auto started = StorageReceiver::start(settings, log);
   ASSERT_FALSE(started);
   EXPECT_EQ(started.error().attribute, "--allow-ae");
-  settings.allowed_calling_ae_titles = {"A-TITLE-THAT-IS-TOO-LONG"};
+  settings.allowed_senders = {"A-TITLE-THAT-IS-TOO-LONG"};
   started = StorageReceiver::start(settings, log);
   ASSERT_FALSE(started);
   EXPECT_NE(started.error().message().find("not a valid AE title"), std::string::npos);

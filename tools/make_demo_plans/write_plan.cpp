@@ -71,10 +71,12 @@ RayDistances ray_distances(const BeamSpec& beam) {
   return {beam.depth_mm * scale, beam.ssd_mm * scale};
 }
 
-void write_verification_item(DcmItem& item, const BeamSpec& beam, bool with_contour) {
+// One item of a Beam Dose Verification Control Point Sequence at control point `index`. The demo
+// phantom keeps the SSD and depth of the dose point the same at every control point of a beam.
+void write_verification_item(DcmItem& item, const BeamSpec& beam, std::size_t index, bool with_contour) {
   const RayDistances ray = ray_distances(beam);
-  put(item, DCM_CumulativeMetersetWeight, ds(1.0));
-  put(item, DCM_ReferencedControlPointIndex, std::to_string(beam.control_points.size() - 1));
+  put(item, DCM_CumulativeMetersetWeight, ds(beam.cumulative_weights.at(index)));
+  put(item, DCM_ReferencedControlPointIndex, std::to_string(index));
   put_fl(item, DCM_BeamDosePointDepth, ray.depth_mm);
   put_fl(item, DCM_BeamDosePointEquivalentDepth, ray.depth_mm);  // homogeneous water phantom
   put_fl(item, DCM_BeamDosePointSSD, ray.ssd_mm);
@@ -105,6 +107,7 @@ void write_header(DcmDataset& ds_, const PlanSpec& plan) {
   put(ds_, DCM_SeriesInstanceUID, uid(plan, 3));
   put(ds_, DCM_StudyID, "FERN-DEMO");
   put(ds_, DCM_SeriesNumber, "1");
+  put(ds_, DCM_OperatorsName, "");  // RT Series module, type 2
   put(ds_, DCM_InstanceNumber, "1");
   put(ds_, DCM_FrameOfReferenceUID, uid(plan, 4));
   put(ds_, DCM_PositionReferenceIndicator, "");
@@ -172,7 +175,8 @@ void write_fraction_group(DcmDataset& ds_, const PlanSpec& plan) {
         break;
       case DosePointLayout::fraction_verification:
         put(ref, DCM_ReferencedDoseReferenceUID, uid(plan, 5, 1));
-        write_verification_item(new_item(ref, DCM_BeamDoseVerificationControlPointSequence, 0), beam, false);
+        write_verification_item(new_item(ref, DCM_BeamDoseVerificationControlPointSequence, 0), beam,
+                                beam.control_points.size() - 1, false);
         break;
     }
   }
@@ -308,7 +312,11 @@ void write_beam(DcmItem& item, const PlanSpec& plan, const BeamSpec& beam) {
     DcmItem& ref = new_item(item, DCM_ReferencedDoseReferenceSequence, 0);
     put(ref, DCM_ReferencedDoseReferenceNumber, "1");
     put(ref, DCM_DepthValueAveragingFlag, "NO");
-    write_verification_item(new_item(ref, DCM_BeamDoseVerificationControlPointSequence, 0), beam, true);
+    // The RT Beams module asks for two or more items (PS3.3 C.8.8.14): the first and the last
+    // control point of the beam.
+    write_verification_item(new_item(ref, DCM_BeamDoseVerificationControlPointSequence, 0), beam, 0, true);
+    write_verification_item(new_item(ref, DCM_BeamDoseVerificationControlPointSequence, 1), beam,
+                            beam.control_points.size() - 1, true);
   }
 }
 

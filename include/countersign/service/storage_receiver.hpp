@@ -1,18 +1,29 @@
 #pragma once
 
-// A DICOM storage provider for RT Plans, the way a planning system sends to an archive. It accepts
-// Verification (C-ECHO) and RT Plan Storage only, only from calling AE titles on the allow-list and
-// only when called by its own AE title, and stores each received plan atomically in an inbox folder
-// (temporary hidden file, fsync, rename), where the folder watcher checks it like any other file.
+// A DICOM storage provider, the way a planning system sends to an archive. It listens on one
+// address (loopback unless another is asked for), accepts Verification (C-ECHO) and the storage SOP
+// classes in accepted_storage_classes, only from the senders on its allow-list (AE title, optionally
+// bound to a host or network) and only when called by its own AE title; optionally over TLS with
+// both peers' certificates verified. Each received object is written straight to a hidden file in
+// the inbox (never held whole in memory; an object over the size limit is refused with a failure
+// status), then renamed into place, where the folder watcher checks it like any other file.
+//
+// No single peer can stall or flood it: connections are accepted by a thread of their own and each
+// is served on its own thread, an association request must be complete within the ACSE timeout,
+// every later read within the DIMSE timeout, and connections beyond max_associations are refused.
+// Every refused or dropped connection is logged with the peer's address and the reason.
 // DCMTK stays inside the implementation.
 
+#include <countersign/service/peer_allow_list.hpp>
 #include <countersign/service/service_log.hpp>
 #include <countersign/util/error.hpp>
 
+#include <array>
 #include <chrono>
 #include <cstdint>
 #include <filesystem>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -21,22 +32,43 @@ namespace countersign::service {
 inline constexpr const char* rt_plan_storage_sop_class = "1.2.840.10008.5.1.4.1.1.481.5";
 inline constexpr const char* verification_sop_class = "1.2.840.10008.1.1";
 
-struct ReceiverSettings {
-  std::uint16_t port = 0;                              // TCP port to listen on (1..65535)
-  std::string ae_title;                                // our AE title; associations must call it
-  std::vector<std::string> allowed_calling_ae_titles;  // senders we accept; never empty
-  std::filesystem::path inbox;                         // where received plans are stored
-  std::uint16_t max_associations = 4;                  // served at once; more are refused as busy
-  std::chrono::seconds network_timeout{30};            // association and message timeouts
+// A storage SOP class the receiver accepts, and the prefix of the file names it stores it under.
+struct AcceptedStorageClass {
+  const char* sop_class_uid;
+  const char* name;
+  const char* file_prefix;
 };
 
-// A valid AE title: 1 to 16 characters of printable ASCII without backslash, not only spaces
-// (DICOM PS3.5 Table 6.2-1, value representation AE).
-[[nodiscard]] bool is_valid_ae_title(const std::string& title);
+// The storage SOP classes accepted (one presentation context each); adding a class is one line.
+inline constexpr std::array accepted_storage_classes{
+    AcceptedStorageClass{rt_plan_storage_sop_class, "RT Plan", "RP"},
+};
+
+// TLS with DCMTK's OpenSSL layer: our certificate and key, and the CA that signed the senders'
+// certificates. A peer without a certificate signed by that CA is refused.
+struct ReceiverTls {
+  std::filesystem::path certificate;  // PEM
+  std::filesystem::path private_key;  // PEM, without a passphrase
+  std::filesystem::path trusted_ca;   // PEM, one or more CA certificates
+};
+
+struct ReceiverSettings {
+  std::string bind_address = "127.0.0.1";    // an IPv4 or IPv6 address of this machine
+  std::uint16_t port = 0;                    // TCP port to listen on (1..65535)
+  std::string ae_title;                      // our AE title; associations must call it
+  std::vector<std::string> allowed_senders;  // "AE", "AE@HOST" or "AE@ADDRESS/BITS"; never empty
+  std::filesystem::path inbox;               // where received objects are stored
+  std::uint16_t max_associations = 4;        // served at once; more are refused and logged
+  std::chrono::seconds acse_timeout{30};     // whole association negotiation (TLS handshake included)
+  std::chrono::seconds dimse_timeout{30};    // each wait for data once the association is up
+  std::uint64_t max_object_bytes = std::uint64_t{256} << 20;  // larger objects are refused
+  std::optional<ReceiverTls> tls;
+};
 
 class StorageReceiver {
  public:
-  // Checks the settings, binds the port and starts serving on background threads. Call it after
+  // Checks the settings (allow-list, bind address, TLS files), binds the address and port and starts
+  // serving on background threads. Errors are of kind usage and name the option. Call it after
   // TerminationSignals exists, so that the receiver's threads inherit the blocked signal mask.
   [[nodiscard]] static Expected<std::unique_ptr<StorageReceiver>> start(const ReceiverSettings& settings,
                                                                         ServiceLog& log);
@@ -44,7 +76,8 @@ class StorageReceiver {
   StorageReceiver& operator=(const StorageReceiver&) = delete;
   ~StorageReceiver();  // stops
 
-  // Stops accepting associations, lets the ones in progress finish and waits for the threads.
+  // Stops accepting, drops connections still negotiating, lets transfers in progress finish and
+  // waits for every thread.
   void stop();
 
   struct Impl;

@@ -26,6 +26,8 @@ class UniqueFd {
 
   [[nodiscard]] int get() const { return fd_; }
   [[nodiscard]] bool valid() const { return fd_ >= 0; }
+  // Gives up ownership: the caller (or a library it hands the descriptor to) closes it.
+  [[nodiscard]] int release() { return std::exchange(fd_, -1); }
   void reset() {
     if (fd_ >= 0) ::close(fd_);
     fd_ = -1;
