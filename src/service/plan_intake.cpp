@@ -159,10 +159,6 @@ std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::pat
   return beamdata::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
 }
 
-bool ends_with(std::string_view text, std::string_view suffix) {
-  return text.size() >= suffix.size() && text.substr(text.size() - suffix.size()) == suffix;
-}
-
 }  // namespace
 
 // A plan checked in this batch, waiting for the commit.

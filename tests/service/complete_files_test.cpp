@@ -6,6 +6,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/beamdata/sha256.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/service/check_processor.hpp>
 #include <countersign/service/folder_watcher.hpp>
 #include <countersign/service/stop_signals.hpp>
@@ -85,7 +86,11 @@ TEST(CompleteFiles, APlanWrittenInChunksIsNeverCheckedTruncated) {
   auto records = stored->list(HistoryFilter{});
   ASSERT_TRUE(records);
   ASSERT_EQ(records->size(), 1U);
-  EXPECT_EQ(records->front().content_sha256, beamdata::sha256_hex(plan)) << "a truncated plan was checked";
+  // The key is the hash of the whole plan's canonical dataset: a truncated plan would hash otherwise.
+  const auto whole = dicom::canonical_dataset_bytes(
+      std::span{reinterpret_cast<const std::byte*>(plan.data()), plan.size()}, file.string());
+  ASSERT_TRUE(whole);
+  EXPECT_EQ(records->front().content_sha256, beamdata::sha256_hex(whole.value())) << "a truncated plan was checked";
   fs::remove_all(dir);
 }
 

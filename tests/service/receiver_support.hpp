@@ -88,7 +88,7 @@ class ReceiverUnderTest {
     service::ServiceSettings settings;
     settings.inbox = receiver_settings.inbox;
     settings.results = results();
-    settings.intake.settle_time = std::chrono::seconds{1};
+    settings.intake.quiet_period = std::chrono::seconds{1};
     auto service = service::CheckingService::open(settings, dicom_identity_processor(calls_), log_);
     if (!service) return service.error().message();
     service_ = std::move(service.value());

@@ -378,7 +378,7 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
   ASSERT_TRUE(wait_until(
-      [&] { return slurp(dir_ / "receive.log").find("receiving RT Plans") != std::string::npos; }, 20s))
+      [&] { return slurp(dir_ / "receive.log").find("receiving as AE") != std::string::npos; }, 20s))
       << slurp(dir_ / "receive.log");
   const auto sent =
       test::run_command("storescu -to 10 -aec FERN-CHECK -aet FERN-TPS 127.0.0.1 " + std::to_string(port) +
