@@ -23,6 +23,9 @@ int run(int argc, const char* const* argv, Io io) {
   add_receive_command(app, context);
   add_history_command(app, context);
   add_explain_command(app, context);
+  add_review_command(app, context);
+  add_audit_command(app, context);
+  add_send_command(app, context);
 
   try {
     app.parse(argc, argv);

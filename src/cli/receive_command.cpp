@@ -43,6 +43,7 @@ struct ReceiveCommandOptions {
   std::string policy;
   int max_associations = 4;
   IntakeFlags intake;
+  FollowUpFlags follow_ups;
 };
 
 service::ReceiverSettings receiver_settings_from(const ReceiveCommandOptions& options,
@@ -73,6 +74,10 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     settings.results = options.results;
     settings.inbox = options.inbox.empty() ? settings.results / "incoming" : fs::path{options.inbox};
     settings.intake = intake_options_from(options.intake);
+    if (auto applied = apply_follow_up_options(options.follow_ups, settings); !applied) {
+      io.err << "countersign receive: " << escape_control_characters(applied.error().message()) << "\n";
+      return ExitCode::bad_input;
+    }
     auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
       io.err << "countersign receive: " << escape_control_characters(opened.error().message()) << "\n";
@@ -159,6 +164,7 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
       ->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
       ->check(CLI::Range(1, 64));
   add_intake_options(*command, options->intake);
+  add_follow_up_options(*command, options->follow_ups);
   command->callback([options, &context] { context.exit_code = run_receive(*options, context.io); });
 }
 

@@ -2,7 +2,10 @@
 
 #include "shared_options.hpp"
 
+#include <countersign/net/destination.hpp>
+#include <countersign/report/html_pdf.hpp>
 #include <countersign/service/check_processor.hpp>
+#include <countersign/service/program_runner.hpp>
 
 #include <chrono>
 
@@ -30,6 +33,58 @@ service::IntakeOptions intake_options_from(const IntakeFlags& flags) {
   return options;
 }
 
+void add_follow_up_options(CLI::App& command, FollowUpFlags& flags) {
+  command.add_option(
+      "--db", flags.db,
+      "history store: an SQLite file (default RESULTS/history.sqlite) or a PostgreSQL connection URI "
+      "(postgresql://USER@HOST/DATABASE) shared by services on several machines");
+  command.add_option(
+      "--on-flag", flags.on_flag,
+      "run this program for each plan outside tolerance or not checked, with the result file's path "
+      "as its last argument (words split as a shell would, but no shell runs it); a failure is "
+      "logged and retried, never holding up checking");
+  command.add_option(
+      "--send-to", flags.send_to,
+      "send each check's structured result (SR) and record (Encapsulated PDF, with Chromium) to "
+      "this archive, AE@HOST:PORT; repeat for several; undelivered objects wait in the outbox");
+  command.add_option("--outbox", flags.outbox, "the durable outbox for --send-to (default RESULTS/outbox)");
+  command.add_option("--calling-ae", flags.calling_ae,
+                     "AE title this service sends with (default COUNTERSIGN)");
+}
+
+Expected<bool> apply_follow_up_options(const FollowUpFlags& flags, service::ServiceSettings& settings) {
+  if (!flags.db.empty()) settings.store = flags.db;
+  if (!flags.on_flag.empty()) {
+    auto words = service::split_command_words(flags.on_flag, "--on-flag");
+    if (!words) return words.error();
+    auto program = service::find_program(words->front(), "--on-flag");
+    if (!program) return program.error();
+    words->front() = program.value();
+    service::AlertSettings alerts;
+    alerts.command = std::move(words.value());
+    settings.follow_ups.alerts = std::move(alerts);
+  }
+  if (!flags.send_to.empty()) {
+    service::DeliverySettings delivery;
+    for (const std::string& text : flags.send_to) {
+      auto destination = net::Destination::parse(text);
+      if (!destination) return destination.error();
+      delivery.destinations.push_back(std::move(destination.value()));
+    }
+    if (!net::is_valid_ae_title(flags.calling_ae)) {
+      return Error{ErrorKind::usage, "", "--calling-ae", "",
+                   "\"" + flags.calling_ae + "\" is not a valid AE title (1 to 16 printable characters)"};
+    }
+    delivery.scu.calling_ae_title = flags.calling_ae;
+    delivery.outbox = flags.outbox;
+    delivery.chromium = report::find_chromium();
+    settings.follow_ups.delivery = std::move(delivery);
+  } else if (!flags.outbox.empty()) {
+    return Error{ErrorKind::usage, "", "--outbox", "", "--outbox is for --send-to, which is not given"};
+  }
+  return true;
+}
+
 Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
                                               const std::string& beamdata_option,
                                               const std::string& policy_option, service::ServiceLog& log) {
@@ -41,6 +96,11 @@ Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
   auto service = service::CheckingService::open(settings, std::move(processor.value()), log);
   if (!service) return service.error();
   opened.service = std::move(service.value());
+  if (settings.follow_ups.delivery && !settings.follow_ups.delivery->chromium) {
+    log.line(
+        "no Chromium found: the structured result (SR) of each check is sent alone; the PDF record needs "
+        "Chromium (Debian package chromium, or set COUNTERSIGN_CHROMIUM)");
+  }
   return opened;
 }
 

@@ -13,6 +13,7 @@
 #include <memory>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace countersign::cli {
 
@@ -23,6 +24,20 @@ struct IntakeFlags {
 };
 void add_intake_options(CLI::App& command, IntakeFlags& flags);
 [[nodiscard]] service::IntakeOptions intake_options_from(const IntakeFlags& flags);
+
+// The options of what follows a check (alerts, sending to the archive) and of the history store,
+// shared by both services.
+struct FollowUpFlags {
+  std::string db;                    // --db FILE|postgresql://…
+  std::string on_flag;               // --on-flag COMMAND
+  std::vector<std::string> send_to;  // --send-to AE@HOST:PORT
+  std::string outbox;                // --outbox DIR (default RESULTS/outbox)
+  std::string calling_ae = "COUNTERSIGN";
+};
+void add_follow_up_options(CLI::App& command, FollowUpFlags& flags);
+// The follow-ups and the store of `settings` from the flags; errors (kind usage) name the option.
+[[nodiscard]] Expected<bool> apply_follow_up_options(const FollowUpFlags& flags,
+                                                     service::ServiceSettings& settings);
 
 struct OpenedService {
   std::filesystem::path beamdata_dir;  // the library in use, for the log

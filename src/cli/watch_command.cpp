@@ -29,6 +29,7 @@ struct WatchCommandOptions {
   std::string beamdata;
   std::string policy;
   IntakeFlags intake;
+  FollowUpFlags follow_ups;
   bool once = false;
   bool recursive = false;
 };
@@ -45,6 +46,10 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
     settings.intake = intake_options_from(options.intake);
+    if (auto applied = apply_follow_up_options(options.follow_ups, settings); !applied) {
+      io.err << "countersign watch: " << escape_control_characters(applied.error().message()) << "\n";
+      return ExitCode::bad_input;
+    }
     settings.watch.subfolders = options.recursive ? dicom::Subfolders::include : dicom::Subfolders::ignore;
     auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
     if (!opened) {
@@ -79,8 +84,8 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   auto* command = app.add_subcommand(
       "watch",
       "Check every RT Plan file that arrives in INBOX, exactly once (by SOP Instance UID and content hash). "
-      "Results: RESULTS/<SOPInstanceUID>.json and .html, written atomically; history: "
-      "RESULTS/history.sqlite; "
+      "Each check keeps its own files, never replaced: RESULTS/<SOPInstanceUID>/<check id>.json, .html and "
+      ".sr.dcm; history and audit trail: RESULTS/history.sqlite or --db; "
       "checked plan files are kept in RESULTS/plans; files that are not usable plans go to the quarantine "
       "folder with a .reason.txt. Files already waiting are checked first. A file moved into INBOX is read "
       "at "
@@ -94,6 +99,7 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   add_beamdata_option(*command, options->beamdata);
   add_policy_option(*command, options->policy);
   add_intake_options(*command, options->intake);
+  add_follow_up_options(*command, options->follow_ups);
   command->add_flag(
       "--recursive", options->recursive,
       "watch the subfolders of INBOX too (without it, a subfolder is named in the log once and its "

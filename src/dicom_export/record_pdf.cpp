@@ -29,7 +29,7 @@ Expected<std::vector<Uint8>> read_pdf(const std::filesystem::path& pdf_file) {
   return bytes;
 }
 
-void write_document(DcmItem& dataset, const check::PlanCheck& check, const PlanSource& plan,
+void write_document(DcmItem& dataset, const std::string& plan_label, const PlanSource& plan,
                     const std::vector<Uint8>& pdf, const ExportOptions& options) {
   const LocalDateTime now = local_date_time(options.created);
   put(dataset, DCM_ConversionType, "WSD");  // SC Equipment: made on a workstation
@@ -37,7 +37,7 @@ void write_document(DcmItem& dataset, const check::PlanCheck& check, const PlanS
   put(dataset, DCM_ContentTime, now.time);
   put(dataset, DCM_AcquisitionDateTime, now.date + now.time);
   put(dataset, DCM_BurnedInAnnotation, "YES");  // the record names the patient
-  put(dataset, DCM_DocumentTitle, plan.own_text("Independent dose check record: " + check.plan_label));
+  put(dataset, DCM_DocumentTitle, plan.own_text("Independent dose check record: " + plan_label));
   put_code(dataset, DCM_ConceptNameCodeSequence, codes::record);
   DcmItem& source = append_item(dataset, DCM_SourceInstanceSequence);
   put(source, DCM_ReferencedSOPClassUID, plan.sop_class_uid());
@@ -61,6 +61,13 @@ Expected<ExportedObject> write_record_pdf(const check::PlanCheck& check,
                                           const std::filesystem::path& plan_file,
                                           const std::filesystem::path& pdf_file,
                                           const std::filesystem::path& output, const ExportOptions& options) {
+  return write_record_pdf(check.plan_label, plan_file, pdf_file, output, options);
+}
+
+Expected<ExportedObject> write_record_pdf(const std::string& plan_label,
+                                          const std::filesystem::path& plan_file,
+                                          const std::filesystem::path& pdf_file,
+                                          const std::filesystem::path& output, const ExportOptions& options) {
   auto plan = PlanSource::load(plan_file);
   if (!plan) return plan.error();
   auto pdf = read_pdf(pdf_file);
@@ -71,7 +78,7 @@ Expected<ExportedObject> write_record_pdf(const check::PlanCheck& check,
     const ObjectIdentity identity = write_object_header(
         dataset, *plan,
         {encapsulated_pdf_sop_class, "DOC", "902", "Independent dose check record (countersign)"}, options);
-    write_document(dataset, check, *plan, *pdf, options);
+    write_document(dataset, plan_label, *plan, *pdf, options);
     if (auto saved = save_object(file, output); !saved) return saved.error();
     return ExportedObject{output, encapsulated_pdf_sop_class, identity.sop_instance_uid,
                           identity.series_instance_uid, plan->study_instance_uid()};

@@ -1,14 +1,22 @@
 #include <countersign/service/check_processor.hpp>
 
+#include <countersign/beamdata/sha256.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom_export/export_objects.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/engine/reason.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/report/json_text.hpp>
 
+#include <charconv>
+#include <cstdlib>
+#include <fstream>
+#include <iterator>
 #include <string>
 #include <utility>
+
+#include <unistd.h>
 
 namespace countersign::service {
 
@@ -35,7 +43,60 @@ std::string technique_of(const check::BeamCheck& beam) {
   return category + "/" + std::string{engine::to_code(beam.calculation->method)};
 }
 
+// The structured result (SR) of the check, made now from the plan file while it is still in the
+// inbox, and kept as bytes so that the service writes it with the record under the check's number.
+void add_structured_result(PlanOutcome& outcome, const check::PlanCheck& check,
+                           const std::filesystem::path& file) {
+  std::error_code ec;
+  std::string pattern = (std::filesystem::temp_directory_path(ec) / "countersign-sr-XXXXXX").string();
+  const int fd = ::mkstemp(pattern.data());
+  if (fd < 0) {
+    outcome.sr_problem = "cannot create a temporary file for it";
+    return;
+  }
+  ::close(fd);
+  const std::filesystem::path temporary = pattern;
+  auto written = dicom_export::write_result_sr(check, file, temporary);
+  if (written) {
+    std::ifstream in(temporary, std::ios::binary);
+    outcome.sr_bytes = std::string{std::istreambuf_iterator<char>{in}, std::istreambuf_iterator<char>{}};
+  } else {
+    outcome.sr_problem = written.error().message();
+  }
+  std::filesystem::remove(temporary, ec);
+}
+
 }  // namespace
+
+std::string policy_sha256(const check::TolerancePolicy& policy) {
+  // Every value that changes a verdict, by name, in its shortest exact form; where the policy came
+  // from (`source`) is not part of it: the same values from another file are the same policy.
+  const std::pair<const char*, double> values[] = {
+      {"simple_percent", policy.simple_percent},
+      {"complex_percent", policy.complex_percent},
+      {"modulated_percent", policy.modulated_percent},
+      {"simple_heterogeneous_percent", policy.simple_heterogeneous_percent},
+      {"complex_heterogeneous_percent", policy.complex_heterogeneous_percent},
+      {"modulated_heterogeneous_percent", policy.modulated_heterogeneous_percent},
+      {"simple_max_off_axis_cm", policy.simple_max_off_axis_cm},
+      {"simple_max_jaw_offset_cm", policy.simple_max_jaw_offset_cm},
+      {"simple_min_open_fraction", policy.simple_min_open_fraction},
+      {"heterogeneous_depth_difference_percent", policy.heterogeneous_depth_difference_percent},
+      {"min_edge_distance_cm", policy.min_edge_distance_cm},
+      {"max_depth_discrepancy_cm", policy.max_depth_discrepancy_cm},
+      {"depth_check_max_off_axis_cm", policy.depth_check_max_off_axis_cm},
+      {"wedge_max_off_axis_cm", policy.wedge_max_off_axis_cm},
+      {"small_share_fraction", policy.small_share_fraction},
+  };
+  std::string text;
+  for (const auto& [name, value] : values) {
+    char number[32];
+    const auto [end, error] = std::to_chars(number, number + sizeof number, value);
+    text +=
+        std::string{name} + "=" + (error == std::errc{} ? std::string{number, end} : std::string{"?"}) + "\n";
+  }
+  return beamdata::sha256_hex(text);
+}
 
 PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& plan) {
   PlanOutcome outcome;
@@ -79,7 +140,8 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
 
 PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> library,
                                    check::CheckOptions options) {
-  return [library = std::move(library), options = std::move(options)](
+  const std::string policy_hash = policy_sha256(options.policy);
+  return [library = std::move(library), options = std::move(options), policy_hash](
              const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
     if (!plan) return plan.error();
@@ -90,6 +152,8 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
     report::HtmlOptions html;
     html.plan = &plan.value();
     outcome.html_text = report::html_report(check, html);
+    outcome.policy_sha256 = policy_hash;
+    add_structured_result(outcome, check, file);
     return outcome;
   };
 }

@@ -4,10 +4,16 @@ namespace countersign::service {
 
 namespace fs = std::filesystem;
 
-fs::path default_history_file(const fs::path& results) { return results / "history.sqlite"; }
+store::StoreLocation store_location(const ServiceSettings& settings) {
+  return store::StoreLocation::parse(
+      settings.store.value_or(store::default_history_file(settings.results).string()));
+}
 
-CheckingService::CheckingService(FolderLock lock, PlanIntake intake)
-    : lock_(std::move(lock)), intake_(std::move(intake)) {}
+CheckingService::CheckingService(FolderLock lock, PlanIntake intake,
+                                 std::unique_ptr<ServiceFollowUps> follow_ups)
+    : lock_(std::move(lock)), intake_(std::move(intake)), follow_ups_(std::move(follow_ups)) {
+  if (follow_ups_) intake_.set_follow_ups(follow_ups_.get());
+}
 
 Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSettings& settings,
                                                                  PlanProcessor processor, ServiceLog& log) {
@@ -35,13 +41,22 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
   for (const auto& dir : {folders->inbox, folders->results, folders->quarantine, folders->checked_plans}) {
     cleared += remove_stale_temporaries(dir);
   }
-  const fs::path history_file = settings.history_file.value_or(default_history_file(settings.results));
-  auto history = History::open(history_file, HistoryAccess::read_write);
-  if (!history) return history.error();
+  const store::StoreLocation location = store_location(settings);
+  auto store = store::Store::open(location, store::Access::read_write);
+  if (!store) return store.error();
+  std::unique_ptr<ServiceFollowUps> follow_ups;
+  if (settings.follow_ups.any()) {
+    auto started = ServiceFollowUps::start(settings.follow_ups, folders->results, log);
+    if (!started) return started.error();
+    follow_ups = std::move(started.value());
+    // Before any new check: what a crash or stop left undone goes first.
+    follow_ups->resume(*store.value());
+  }
 
   std::unique_ptr<CheckingService> service{new CheckingService(
       std::move(lock.value()),
-      PlanIntake{folders.value(), std::move(history.value()), std::move(processor), log, settings.intake})};
+      PlanIntake{folders.value(), std::move(store.value()), std::move(processor), log, settings.intake},
+      std::move(follow_ups))};
   auto watcher = FolderWatcher::open(service->intake_, settings.watch);
   if (!watcher) return watcher.error();
   service->watcher_.emplace(std::move(watcher.value()));
@@ -49,7 +64,7 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
       "watching " + folders->inbox.string() +
       (settings.watch.subfolders == dicom::Subfolders::include ? " and its subfolders" : "") +
       "; results in " + folders->results.string() + ", quarantine " + folders->quarantine.string() +
-      ", history " + history_file.string();
+      ", history " + location.describe();
   if (cleared > 0)
     started += "; removed " + std::to_string(cleared) + " temporary file(s) of an interrupted run";
   log.line(started);

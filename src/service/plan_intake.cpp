@@ -2,12 +2,12 @@
 #include <countersign/service/private_files.hpp>
 
 #include <countersign/beamdata/sha256.hpp>
-#include <countersign/dicom/plan_files.hpp>
-#include <countersign/util/text.hpp>
 #include <countersign/dicom/canonical_dataset.hpp>
-#include <countersign/util/version.hpp>
-
+#include <countersign/dicom/plan_files.hpp>
 #include <countersign/service/unique_fd.hpp>
+#include <countersign/store/audit.hpp>
+#include <countersign/util/text.hpp>
+#include <countersign/util/version.hpp>
 
 #include <fcntl.h>
 #include <sys/stat.h>
@@ -25,6 +25,8 @@ namespace countersign::service {
 
 namespace fs = std::filesystem;
 using Clock = std::chrono::system_clock;
+using store::CheckRecord;
+using store::utc_timestamp_now;
 
 namespace {
 
@@ -166,10 +168,17 @@ struct PlanIntake::Pending {
   IntakeCandidate candidate;
   std::string name;
   std::string content_sha256;
+  std::string plan_sha256;  // the file's bytes as they arrived
   PlanOutcome outcome;
   Clock::time_point started;
   std::size_t index = 0;  // of the candidate in the batch
 };
+
+std::string station_name() {
+  char name[256] = {};
+  if (::gethostname(name, sizeof name - 1) != 0 || name[0] == '\0') return "unknown-station";
+  return name;
+}
 
 bool is_safe_uid(std::string_view uid) {
   if (uid.empty() || uid.size() > 64 || uid.front() == '.' || uid.back() == '.') return false;
@@ -204,13 +213,17 @@ Expected<ServiceFolders> ServiceFolders::prepare(const fs::path& inbox, const fs
   return folders;
 }
 
-PlanIntake::PlanIntake(ServiceFolders folders, History history, PlanProcessor processor, ServiceLog& log,
-                       IntakeOptions options)
+PlanIntake::PlanIntake(ServiceFolders folders, std::unique_ptr<store::Store> store, PlanProcessor processor,
+                       ServiceLog& log, IntakeOptions options)
     : folders_(std::move(folders)),
-      history_(std::move(history)),
+      store_(std::move(store)),
       processor_(std::move(processor)),
       log_(log),
-      options_(options) {}
+      options_(options),
+      station_(station_name()) {
+  std::error_code ec;
+  results_folder_ = fs::weakly_canonical(fs::absolute(folders_.results, ec), ec).string();
+}
 
 std::chrono::milliseconds PlanIntake::back_off(int attempt) const {
   auto wait = options_.first_retry;
@@ -272,14 +285,16 @@ Expected<fs::path> PlanIntake::move_to_checked(const fs::path& file, const std::
 }
 
 IntakeResult PlanIntake::finish_duplicate(const fs::path& file, const CheckRecord& record,
-                                          const std::string& content_sha256) {
+                                          const std::string& content_sha256, std::string_view how) {
   auto moved = move_to_checked(file, record.sop_instance_uid, content_sha256);
   if (!moved) return fail(file, moved.error().message(), 1);
   IntakeResult result;
   result.status = IntakeStatus::duplicate;
   result.message = "already checked " + shown_name(folders_.inbox, file) + ": same content as check #" +
                    std::to_string(record.id) + " of " + record.sop_instance_uid + " (" +
-                   std::string{to_string(record.verdict)} + "), not checked again";
+                   std::string{to_string(record.verdict)} +
+                   (record.station != station_ ? ", at " + record.station : "") + ")" + std::string{how} +
+                   ", not checked again";
   result.record = record;
   log_.line(result.message);
   return result;
@@ -349,11 +364,22 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   }
   // Exactly once: these bytes were checked before (a second copy, or a restart after a crash that
   // came between the record and the move).
-  auto earlier = history_.find_by_content(content_sha256);
+  auto earlier = store_->find_by_content(content_sha256);
   if (!earlier) return fail(file, earlier.error().message(), candidate.attempt);
   if (earlier.value()) return finish_duplicate(file, *earlier.value(), content_sha256);
 
   if (read.bytes.empty()) return quarantine(file, content_sha256, "empty file: not an RT Plan");
+  // Another service sharing the store may be checking the same content right now: it is left to
+  // that one, and looked at again shortly (it is then found recorded).
+  auto claimed = store_->try_claim(content_sha256);
+  if (!claimed) return fail(file, claimed.error().message(), candidate.attempt);
+  if (!claimed.value()) {
+    IntakeResult result;
+    result.status = IntakeStatus::not_ready;
+    result.retry_at = started + options_.busy_retry;
+    result.message = "being checked by another service sharing the history";
+    return result;
+  }
 
   std::optional<Expected<PlanOutcome>> processed;
   try {
@@ -374,6 +400,8 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   checked.candidate = candidate;
   checked.name = shown_name(folders_.inbox, file);
   checked.content_sha256 = content_sha256;
+  checked.plan_sha256 = beamdata::sha256_hex(
+      std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
   checked.outcome = std::move(outcome);
   checked.started = started;
   checked.index = index;
@@ -403,6 +431,7 @@ std::vector<IntakeResult> PlanIntake::take_batch(std::span<const IntakeCandidate
     if (results[i].status != IntakeStatus::not_ready) observed_.erase(candidates[i].file);
   }
   if (!pending.empty()) commit(pending, results);
+  store_->release_claims();
   // Copies: their plan is now recorded (or not, if the commit failed), so each is decided as any
   // other file is, normally as already checked.
   for (const std::size_t i : copies)
@@ -410,67 +439,156 @@ std::vector<IntakeResult> PlanIntake::take_batch(std::span<const IntakeCandidate
   return results;
 }
 
+// The record of a pending check under the id reserved for it: its files, their hashes, the inputs.
+store::NewCheck PlanIntake::new_check(const Pending& p, std::int64_t id) const {
+  const PlanOutcome& outcome = p.outcome;
+  store::NewCheck check;
+  check.id = id;
+  check.sop_instance_uid = outcome.sop_instance_uid;
+  check.content_sha256 = p.content_sha256;
+  check.patient_id = outcome.patient_id;
+  check.plan_label = outcome.plan_label;
+  check.verdict = outcome.verdict;
+  check.beams = outcome.beams;
+  check.software_version = version_string;
+  check.source_name = p.name;
+  check.station = station_;
+  check.results_folder = results_folder_;
+  const std::string stem = outcome.sop_instance_uid + "/" + std::to_string(id);
+  check.files.result_json = stem + ".json";
+  check.hashes.result_sha256 = beamdata::sha256_hex(outcome.json_text);
+  if (outcome.html_text) {
+    check.files.record_html = stem + ".html";
+    check.hashes.record_sha256 = beamdata::sha256_hex(*outcome.html_text);
+  }
+  if (outcome.sr_bytes) {
+    check.files.result_sr = stem + ".sr.dcm";
+    check.hashes.sr_sha256 = beamdata::sha256_hex(*outcome.sr_bytes);
+  }
+  check.files.plan = "plans/" + outcome.sop_instance_uid + "." + p.content_sha256.substr(0, 16) + ".dcm";
+  check.hashes.plan_sha256 = p.plan_sha256;
+  check.hashes.beamdata_sha256 = outcome.beamdata_sha256;
+  check.hashes.policy_sha256 = outcome.policy_sha256;
+  return check;
+}
+
+// The head of the audit trail, kept outside the database too: `audit verify` then notices entries
+// deleted from the end of the trail. A head that cannot be written is logged, never fatal.
+void PlanIntake::record_head(const std::vector<store::Recorded>& recorded) {
+  std::optional<store::AuditHead> head;
+  for (const auto& one : recorded) {
+    if (!one.already_recorded && one.record.audit_seq && (!head || *one.record.audit_seq > head->seq))
+      head = store::AuditHead{*one.record.audit_seq, one.entry_hash};
+  }
+  if (!head) return;
+  const auto written = write_file_atomically(store::audit_head_file(folders_.results),
+                                             store::audit_head_text(*head), DirectorySync::deferred);
+  if (!written) log_.line("the audit head could not be written: " + written.error().message());
+}
+
+namespace {
+
+std::string inputs_changed_text(const CheckRecord& record) {
+  std::string text;
+  for (const auto& change : record.inputs_changed) {
+    const std::string input = change.input == "beam_data"          ? "beam data"
+                              : change.input == "tolerance_policy" ? "tolerance policy"
+                                                                   : "software";
+    const auto brief = [&](const std::string& value) {
+      return change.input == "software_version" ? value : value.substr(0, 8) + "\u2026";
+    };
+    text += (text.empty() ? "" : ", ") + input + " " + brief(change.from) + " \u2192 " + brief(change.to);
+  }
+  return text;
+}
+
+std::string checked_line(const std::string& name, const PlanOutcome& outcome, const CheckRecord& record,
+                         const fs::path& results, Clock::duration took) {
+  std::size_t outside = 0;
+  std::size_t not_checked = 0;
+  for (const auto& beam : outcome.beams) {
+    outside += beam.verdict == BeamVerdict::outside_tolerance ? 1 : 0;
+    not_checked += beam.verdict == BeamVerdict::not_checked ? 1 : 0;
+  }
+  std::string line = "checked " + name + ": " + outcome.sop_instance_uid + " patient " + outcome.patient_id +
+                     " verdict " + std::string{to_string(outcome.verdict)} + " (" +
+                     std::to_string(outcome.beams.size()) + " beams, " + std::to_string(outside) +
+                     " outside, " + std::to_string(not_checked) + " not checked) check #" +
+                     std::to_string(record.id);
+  if (record.replaces_check_id) line += " replaces #" + std::to_string(*record.replaces_check_id);
+  if (!record.inputs_changed.empty()) line += " (inputs changed: " + inputs_changed_text(record) + ")";
+  line += " -> " + (results / record.files.result_json).string() + " in " + format_milliseconds(took);
+  if (!outcome.sr_problem.empty()) line += "; no structured result (SR): " + outcome.sr_problem;
+  return line;
+}
+
+}  // namespace
+
 // Results of every pending plan flushed together, then one transaction records them all: the commit
 // point. Only then do the files leave the inbox.
 void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results) {
   const auto fail_all = [&](const std::string& reason) {
     for (const Pending& p : pending) results[p.index] = fail(p.candidate.file, reason, p.candidate.attempt);
   };
+  // Numbers first, so that every file has a name of its own before anything is written.
+  auto ids = store_->reserve_check_ids(pending.size());
+  if (!ids) return fail_all(ids.error().message());
   AtomicFileGroup files;
-  std::vector<NewCheck> checks;
+  std::vector<store::NewCheck> checks;
+  std::vector<std::vector<fs::path>> written(pending.size());
   checks.reserve(pending.size());
-  for (const Pending& p : pending) {
-    const fs::path json_file = folders_.results / (p.outcome.sop_instance_uid + ".json");
-    if (auto added = files.add(json_file, p.outcome.json_text); !added)
-      return fail_all(added.error().message());
-    if (p.outcome.html_text) {
-      auto added = files.add(folders_.results / (p.outcome.sop_instance_uid + ".html"), *p.outcome.html_text);
-      if (!added) return fail_all(added.error().message());
+  for (std::size_t k = 0; k < pending.size(); ++k) {
+    const PlanOutcome& outcome = pending[k].outcome;
+    store::NewCheck check = new_check(pending[k], ids.value()[k]);
+    std::vector<std::pair<fs::path, std::string_view>> contents{
+        {folders_.results / check.files.result_json, outcome.json_text}};
+    if (outcome.html_text)
+      contents.emplace_back(folders_.results / check.files.record_html, *outcome.html_text);
+    if (outcome.sr_bytes) contents.emplace_back(folders_.results / check.files.result_sr, *outcome.sr_bytes);
+    std::vector<std::pair<fs::path, std::string>> markers;
+    if (follow_ups_ != nullptr) markers = follow_ups_->markers(check);
+    for (const auto& [file, text] : markers) contents.emplace_back(file, text);
+    for (const auto& [file, text] : contents) {
+      if (auto added = files.add(file, text); !added) return fail_all(added.error().message());
+      written[k].push_back(file);
     }
-    NewCheck check;
-    check.content_sha256 = p.content_sha256;
-    check.source_name = p.name;
-    check.result_file = json_file.string();
-    check.software_version = version_string;
-    check.outcome = p.outcome;
-    check.outcome.json_text.clear();
-    check.outcome.html_text.reset();
     checks.push_back(std::move(check));
   }
   // 1. Results, atomically and on disk. A crash after this and before the record redoes the
-  //    checks, which write the same results again and record once.
-  if (auto written = files.commit(); !written) return fail_all(written.error().message());
+  //    checks, under new numbers: these files then belong to no record (audit verify names them).
+  if (auto flushed = files.commit(); !flushed) return fail_all(flushed.error().message());
   // 2. The records: the commit point of the batch.
-  auto recorded = history_.record_batch(checks, utc_timestamp_now());
+  auto recorded = store_->record_checks(checks, utc_timestamp_now());
   if (!recorded) return fail_all(recorded.error().message());
+  record_head(recorded.value());
   // 3. Out of the inbox. A crash before this finds the records on restart and only moves the files.
+  std::vector<CheckRecord> followed;
   for (std::size_t k = 0; k < pending.size(); ++k) {
     const Pending& p = pending[k];
+    store::Recorded& stored = recorded.value()[k];
+    if (stored.already_recorded) {
+      // Another service sharing the store recorded this content first: these files belong to no
+      // record and are taken back; the plan is one already checked.
+      for (const fs::path& file : written[k]) {
+        [[maybe_unused]] const auto removed = remove_file_durably(file, DirectorySync::deferred);
+      }
+      results[p.index] =
+          finish_duplicate(p.candidate.file, stored.record, p.content_sha256, " by another service");
+      continue;
+    }
     auto moved = move_to_checked(p.candidate.file, p.outcome.sop_instance_uid, p.content_sha256);
     IntakeResult& result = results[p.index];
     result.status = IntakeStatus::checked;
-    result.record = std::move(recorded.value()[k]);
-    std::size_t outside = 0;
-    std::size_t not_checked = 0;
-    for (const auto& beam : p.outcome.beams) {
-      outside += beam.verdict == BeamVerdict::outside_tolerance ? 1 : 0;
-      not_checked += beam.verdict == BeamVerdict::not_checked ? 1 : 0;
-    }
-    result.message = "checked " + p.name + ": " + p.outcome.sop_instance_uid + " patient " +
-                     p.outcome.patient_id + " verdict " + std::string{to_string(p.outcome.verdict)} + " (" +
-                     std::to_string(p.outcome.beams.size()) + " beams, " + std::to_string(outside) +
-                     " outside, " + std::to_string(not_checked) + " not checked) check #" +
-                     std::to_string(result.record->id);
-    if (result.record->replaces_check_id) {
-      result.message += " replaces #" + std::to_string(*result.record->replaces_check_id);
-    }
-    result.message +=
-        " -> " + result.record->result_file + " in " + format_milliseconds(Clock::now() - p.started);
+    result.record = stored.record;
+    result.message =
+        checked_line(p.name, p.outcome, stored.record, folders_.results, Clock::now() - p.started);
     if (!moved) {
       result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
     }
     log_.line(result.message);
+    followed.push_back(stored.record);
   }
+  if (follow_ups_ != nullptr && !followed.empty()) follow_ups_->recorded(followed);
 }
 
 IntakeResult PlanIntake::take(const fs::path& file, Arrival arrival, int attempt) {

@@ -130,6 +130,12 @@ AtomicFileGroup::~AtomicFileGroup() {
 
 Expected<fs::path> AtomicFileGroup::add(const fs::path& target, std::string_view content) {
   const fs::path dir = parent_or_dot(target);
+  std::error_code ec;
+  if (!fs::is_directory(dir, ec)) {
+    // A folder of its own per plan: made now (0750), its entry made durable at commit.
+    if (auto made = ensure_private_directory(dir); !made) return made.error();
+    created_.push_back(dir);
+  }
   std::string pattern = (dir / ("." + target.filename().string() + ".XXXXXX")).string();
   const UniqueFd fd{::mkstemp(pattern.data())};
   if (!fd.valid()) return io_error(target, "cannot create a temporary file", errno);
@@ -143,19 +149,35 @@ Expected<fs::path> AtomicFileGroup::add(const fs::path& target, std::string_view
   return temporary;
 }
 
-Expected<std::size_t> AtomicFileGroup::commit() {
-  std::vector<fs::path> dirs;
-  for (const Staged& staged : files_) {
-    const fs::path dir = parent_or_dot(staged.target);
-    if (std::find(dirs.begin(), dirs.end(), dir) == dirs.end()) dirs.push_back(dir);
-  }
-  // One flush of the whole file system writes every temporary's data: far cheaper than an fsync
-  // per file, each of which commits the file system journal on its own.
+namespace {
+
+// One syncfs per file system the directories are on: every dirty page and entry of it reaches the
+// disk, far cheaper than an fsync per file (each commits the file system journal on its own).
+Expected<std::size_t> sync_file_systems(const std::vector<fs::path>& dirs) {
+  std::vector<dev_t> done;
   for (const fs::path& dir : dirs) {
     const UniqueFd fd{::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC)};
     if (!fd.valid()) return io_error(dir, "cannot open directory", errno);
+    struct stat info {};
+    if (::fstat(fd.get(), &info) != 0) return io_error(dir, "cannot inspect directory", errno);
+    if (std::find(done.begin(), done.end(), info.st_dev) != done.end()) continue;
     if (::syncfs(fd.get()) != 0) return io_error(dir, "cannot flush to disk", errno);
+    done.push_back(info.st_dev);
   }
+  return done.size();
+}
+
+}  // namespace
+
+Expected<std::size_t> AtomicFileGroup::commit() {
+  std::vector<fs::path> dirs;
+  const auto note = [&dirs](const fs::path& dir) {
+    if (std::find(dirs.begin(), dirs.end(), dir) == dirs.end()) dirs.push_back(dir);
+  };
+  for (const Staged& staged : files_) note(parent_or_dot(staged.target));
+  for (const fs::path& dir : created_) note(parent_or_dot(dir));  // the new folder's own entry
+  // The data of every temporary, in one flush.
+  if (auto synced = sync_file_systems(dirs); !synced) return synced.error();
   std::size_t committed = 0;
   for (const Staged& staged : files_) {
     if (::rename(staged.temporary.c_str(), staged.target.c_str()) != 0) {
@@ -164,6 +186,13 @@ Expected<std::size_t> AtomicFileGroup::commit() {
     ++committed;
   }
   files_.clear();
+  created_.clear();
+  // The renames: a few directories are flushed one by one, many (a folder per plan) in one go.
+  constexpr std::size_t few_directories = 4;
+  if (dirs.size() > few_directories) {
+    if (auto synced = sync_file_systems(dirs); !synced) return synced.error();
+    return committed;
+  }
   for (const fs::path& dir : dirs) {
     if (auto synced = sync_directory(dir); !synced) return synced.error();
   }

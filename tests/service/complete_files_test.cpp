@@ -5,12 +5,13 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/beamdata/sha256.hpp>
-#include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom/canonical_dataset.hpp>
+#include <countersign/dicom/read_plan.hpp>
 #include <countersign/service/check_processor.hpp>
 #include <countersign/service/folder_watcher.hpp>
 #include <countersign/service/stop_signals.hpp>
 
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <gtest/gtest.h>
@@ -50,7 +51,7 @@ TEST(CompleteFiles, APlanWrittenInChunksIsNeverCheckedTruncated) {
   auto library = beamdata::load_library(test::source_dir() / "beamdata");
   ASSERT_TRUE(library) << library.error().message();
   auto folders = ServiceFolders::prepare(dir / "inbox", dir / "results", std::nullopt);
-  auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_write);
+  auto history = test::open_history(dir / "results" / "history.sqlite", store::Access::read_write);
   ASSERT_TRUE(folders && history);
   std::ostringstream log_text;
   ServiceLog log{log_text};
@@ -81,16 +82,17 @@ TEST(CompleteFiles, APlanWrittenInChunksIsNeverCheckedTruncated) {
   EXPECT_EQ(summary.quarantined, 0U) << log_text.str();
   EXPECT_TRUE(fs::is_empty(dir / "results" / "quarantine"));
   EXPECT_FALSE(fs::exists(file));
-  auto stored = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_only);
+  auto stored = test::open_history(dir / "results" / "history.sqlite", store::Access::read_only);
   ASSERT_TRUE(stored);
-  auto records = stored->list(HistoryFilter{});
+  auto records = stored.value()->list_checks({});
   ASSERT_TRUE(records);
   ASSERT_EQ(records->size(), 1U);
   // The key is the hash of the whole plan's canonical dataset: a truncated plan would hash otherwise.
   const auto whole = dicom::canonical_dataset_bytes(
       std::span{reinterpret_cast<const std::byte*>(plan.data()), plan.size()}, file.string());
   ASSERT_TRUE(whole);
-  EXPECT_EQ(records->front().content_sha256, beamdata::sha256_hex(whole.value())) << "a truncated plan was checked";
+  EXPECT_EQ(records->front().content_sha256, beamdata::sha256_hex(whole.value()))
+      << "a truncated plan was checked";
   fs::remove_all(dir);
 }
 

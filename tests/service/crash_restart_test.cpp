@@ -6,6 +6,7 @@
 #include <countersign/service/stop_signals.hpp>
 
 #include "service/fake_plans.hpp"
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <fcntl.h>
@@ -45,7 +46,7 @@ int run_service(const fs::path& dir, RunUntil until) {
   std::ostringstream sink;
   ServiceLog log{sink};
   auto folders = ServiceFolders::prepare(dir / "inbox", dir / "results", std::nullopt);
-  auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_write);
+  auto history = test::open_history(dir / "results" / "history.sqlite", store::Access::read_write);
   if (!folders || !history) return 10;
   const fs::path calls_log = dir / "calls.log";
   auto inner = test::fake_processor(nullptr, 3ms);
@@ -96,15 +97,15 @@ void kill_service_after(const fs::path& dir, std::size_t kill_after, const std::
 // Every plan recorded exactly once, every result written, the inbox empty, nothing quarantined; and
 // the computations repeated because a kill came before their batch's commit, at most one batch per kill.
 void expect_each_plan_exactly_once(const fs::path& dir, int plans, std::size_t kills) {
-  auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_only);
+  auto history = test::open_history(dir / "results" / "history.sqlite", store::Access::read_only);
   ASSERT_TRUE(history);
-  auto records = history->list(HistoryFilter{});
+  auto records = history.value()->list_checks({});
   ASSERT_TRUE(records);
   std::map<std::string, int> recorded;
   for (const auto& record : *records) ++recorded[record.sop_instance_uid];
   EXPECT_EQ(records->size(), static_cast<std::size_t>(plans));
   for (int i = 0; i < plans; ++i) EXPECT_EQ(recorded[test::demo_uid(i)], 1) << "plan " << i;
-  EXPECT_EQ(count_suffix(dir / "results", ".json"), static_cast<std::size_t>(plans));
+  EXPECT_EQ(test::count_results(dir / "results", ".json"), static_cast<std::size_t>(plans));
   EXPECT_EQ(count_suffix(dir / "inbox", ".dcm"), 0U);
   EXPECT_EQ(count_suffix(dir / "results" / "quarantine", ""), 0U);
 

@@ -3,6 +3,7 @@
 #include <countersign/service/stop_signals.hpp>
 
 #include "service/fake_plans.hpp"
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <gtest/gtest.h>
@@ -59,7 +60,7 @@ class FolderWatcherTest : public ::testing::Test {
   void make_intake(std::chrono::milliseconds quiet, std::chrono::milliseconds delay = 0ms) {
     auto folders = ServiceFolders::prepare(inbox(), results(), std::nullopt);
     ASSERT_TRUE(folders) << folders.error().message();
-    auto history = History::open(results() / "history.sqlite", HistoryAccess::read_write);
+    auto history = test::open_history(results() / "history.sqlite", store::Access::read_write);
     ASSERT_TRUE(history) << history.error().message();
     IntakeOptions options;
     options.quiet_period = quiet;
@@ -87,9 +88,9 @@ class FolderWatcherTest : public ::testing::Test {
   }
 
   std::size_t recorded() const {
-    auto history = History::open(results() / "history.sqlite", HistoryAccess::read_only);
+    auto history = test::open_history(results() / "history.sqlite", store::Access::read_only);
     if (!history) return 0;
-    auto all = history->list(HistoryFilter{});
+    auto all = history.value()->list_checks({});
     return all ? all->size() : 0;
   }
 
@@ -118,7 +119,7 @@ TEST_F(FolderWatcherTest, FilesThatArrivedWhileDownAreCheckedAtStart) {
   const auto summary = watcher->run(RunUntil::one_pass, {});
   ASSERT_TRUE(summary) << summary.error().message();
   EXPECT_EQ(summary->checked, 5U);
-  EXPECT_EQ(count_files(results(), ".json"), 5U);
+  EXPECT_EQ(test::count_results(results(), ".json"), 5U);
   EXPECT_EQ(count_files(inbox(), ".dcm"), 0U);
 }
 
@@ -140,7 +141,7 @@ TEST_F(FolderWatcherTest, TwoHundredPlansDroppedAtOnceAreEachCheckedOnce) {
             << " ms (fake processor: service overhead only)\n";
   EXPECT_EQ(calls_->total.load(), plans);
   for (int i = 0; i < plans; ++i) EXPECT_EQ(calls_->count(test::demo_uid(i)), 1) << i;
-  EXPECT_EQ(count_files(results(), ".json"), static_cast<std::size_t>(plans));
+  EXPECT_EQ(test::count_results(results(), ".json"), static_cast<std::size_t>(plans));
   EXPECT_EQ(recorded(), static_cast<std::size_t>(plans));
   EXPECT_EQ(summary_.checked, static_cast<std::size_t>(plans));
   EXPECT_EQ(count_files(results() / "quarantine", ""), 0U);
@@ -159,7 +160,8 @@ TEST_F(FolderWatcherTest, ASlowWriterClosingBetweenHalvesIsRetriedNotRejected) {
     std::ofstream out(inbox() / "slow.dcm", std::ios::binary | std::ios::app);
     out << text.substr(text.size() / 2);
   }
-  ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (uid + ".json")); }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return fs::exists(test::result_file(results(), uid, ".json")); }, 10s))
+      << log_text();
   stop();
   EXPECT_EQ(calls_->count(uid), 1);
   EXPECT_EQ(summary_.quarantined, 0U);
@@ -177,7 +179,8 @@ TEST_F(FolderWatcherTest, ASlowWriterHoldingTheFileOpenIsWaitedFor) {
     std::this_thread::sleep_for(1s);
     out << text.substr(text.size() / 2);
   }
-  ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (uid + ".json")); }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return fs::exists(test::result_file(results(), uid, ".json")); }, 10s))
+      << log_text();
   stop();
   EXPECT_EQ(calls_->count(uid), 1);
   EXPECT_EQ(summary_.quarantined, 0U);
@@ -194,7 +197,7 @@ TEST_F(FolderWatcherTest, BadFilesAreQuarantinedAndTheServiceKeepsGoing) {
   ASSERT_TRUE(wait_until([&] { return count_files(results() / "quarantine", ".reason.txt") == 3; }, 10s))
       << log_text();
   test::write_text(inbox() / "good-3.dcm", test::fake_plan_text(test::demo_uid(403), "FERN-DEMO-013"));
-  ASSERT_TRUE(wait_until([&] { return count_files(results(), ".json") == 3; }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return test::count_results(results(), ".json") == 3; }, 10s)) << log_text();
   stop();
   for (const std::string bad : {"garbage.dcm", "empty.dcm", "cut.dcm"}) {
     EXPECT_TRUE(fs::exists(results() / "quarantine" / bad)) << bad;
@@ -257,7 +260,8 @@ TEST_F(FolderWatcherTest, AFileMovedInIsTakenAtOnceAndOneWrittenInPlaceOnlyWhenQ
   test::write_text(dir_ / "staging.dcm", test::fake_plan_text(moved_uid, "FERN-DEMO-016"));
   test::write_text(inbox() / "in-place.dcm", test::fake_plan_text(test::demo_uid(701), "FERN-DEMO-016"));
   fs::rename(dir_ / "staging.dcm", inbox() / "moved.dcm");
-  ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (moved_uid + ".json")); }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return fs::exists(test::result_file(results(), moved_uid, ".json")); }, 10s))
+      << log_text();
   std::this_thread::sleep_for(500ms);
   stop();
   EXPECT_EQ(calls_->count(moved_uid), 1);
@@ -308,10 +312,10 @@ TEST_F(FolderWatcherTest, WithRecursiveSubfoldersAreWatchedToo) {
 
 TEST_F(FolderWatcherTest, OnePassEndsAndNamesTheFilesItCouldNotTake) {
   // Issue 10, item 3: `--once` never ended while a file kept failing. The results folder is made
-  // unusable (a file stands where the plan's result must go), a failure of our own for every plan.
+  // unusable (a file stands where the plan's folder of results must go), a failure of our own.
   make_intake(100ms);
   test::write_text(inbox() / "good.dcm", test::fake_plan_text(test::demo_uid(730), "FERN-DEMO-019"));
-  fs::create_directories(results() / (test::demo_uid(730) + ".json"));  // a folder in the way
+  test::write_text(results() / test::demo_uid(730), "in the way");  // a file where its folder must go
   make_old(inbox() / "good.dcm");
   auto watcher = FolderWatcher::open(*intake_);
   ASSERT_TRUE(watcher);

@@ -5,6 +5,7 @@
 // image), which must be refused and logged. Fails when Orthanc or curl is missing.
 
 #include "service/receiver_support.hpp"
+#include "service/result_files.hpp"
 #include "support/orthanc.hpp"
 
 #include <gtest/gtest.h>
@@ -40,7 +41,8 @@ TEST(OrthancSendsToTheReceiver, APlanForwardedByThePacsIsReceivedAndChecked) {
   EXPECT_TRUE(ok) << receiver.log() << orthanc->log();
   const std::string answer = orthanc->post("/modalities/checker/store", instance, &ok);
   EXPECT_TRUE(ok) << answer << receiver.log() << orthanc->log();
-  EXPECT_TRUE(test::wait_for([&] { return fs::exists(receiver.results() / (uid + ".json")); }, 20s))
+  EXPECT_TRUE(
+      test::wait_for([&] { return fs::exists(test::result_file(receiver.results(), uid, ".json")); }, 20s))
       << receiver.log();
   EXPECT_TRUE(receiver.log_has("received RT Plan " + uid + " from AE \"FERN-PACS\" at 127.0.0.1:"))
       << receiver.log();

@@ -2,6 +2,7 @@
 #include <countersign/service/plan_intake.hpp>
 
 #include "service/fake_plans.hpp"
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <countersign/service/folder_watcher.hpp>
@@ -42,7 +43,7 @@ class PlanIntakeTest : public ::testing::Test {
     dir_ = test::make_temp_dir("countersign-intake");
     auto folders = ServiceFolders::prepare(dir_ / "inbox", dir_ / "results", std::nullopt);
     ASSERT_TRUE(folders) << folders.error().message();
-    auto history = History::open(dir_ / "results" / "history.sqlite", HistoryAccess::read_write);
+    auto history = test::open_history(dir_ / "results" / "history.sqlite", store::Access::read_write);
     ASSERT_TRUE(history) << history.error().message();
     IntakeOptions options;
     options.quiet_period = 2s;
@@ -65,8 +66,8 @@ TEST_F(PlanIntakeTest, ChecksWritesRecordsAndMovesThePlanOut) {
   test::write_text(inbox() / "plan.dcm", test::fake_plan_text(uid, "FERN-DEMO-001"));
   const IntakeResult result = intake_->take(inbox() / "plan.dcm");
   ASSERT_EQ(result.status, IntakeStatus::checked) << result.message;
-  EXPECT_NE(slurp(results() / (uid + ".json")).find(uid), std::string::npos);
-  EXPECT_TRUE(fs::exists(results() / (uid + ".html")));
+  EXPECT_NE(slurp(test::result_file(results(), uid, ".json")).find(uid), std::string::npos);
+  EXPECT_TRUE(fs::exists(test::result_file(results(), uid, ".html")));
   EXPECT_FALSE(fs::exists(inbox() / "plan.dcm"));
   ASSERT_TRUE(result.record);
   EXPECT_EQ(result.record->content_sha256.size(), 64U);
@@ -88,7 +89,7 @@ TEST_F(PlanIntakeTest, TheSameBytesUnderAnotherNameAreNotCheckedAgain) {
   EXPECT_EQ(second.status, IntakeStatus::duplicate) << second.message;
   EXPECT_FALSE(fs::exists(inbox() / "copy of a.dcm"));
   EXPECT_EQ(calls_->total.load(), 1);
-  auto all = intake_->history().list(HistoryFilter{});
+  auto all = intake_->store().list_checks({});
   ASSERT_TRUE(all);
   EXPECT_EQ(all->size(), 1U);
 }
@@ -219,7 +220,7 @@ TEST_F(PlanIntakeTest, AStopRequestDefersTheRestOfTheBatchAndCommitsWhatWasDone)
   EXPECT_EQ(results[2].status, IntakeStatus::deferred);
   EXPECT_EQ(results[3].status, IntakeStatus::deferred);
   EXPECT_TRUE(fs::exists(inbox() / "p2.dcm"));
-  auto all = intake_->history().list(HistoryFilter{});
+  auto all = intake_->store().list_checks({});
   ASSERT_TRUE(all);
   EXPECT_EQ(all->size(), 2U);
 }
@@ -271,7 +272,7 @@ TEST(UnreadableFiles, AreRetriedWithGrowingWaitsThenQuarantinedWithTheReason) {
         std::ofstream log_file(dir / "service.log");
         ServiceLog log{log_file};
         auto folders = ServiceFolders::prepare(dir / "inbox", dir / "results", std::nullopt);
-        auto history = History::open(dir / "results" / "history.sqlite", HistoryAccess::read_write);
+        auto history = test::open_history(dir / "results" / "history.sqlite", store::Access::read_write);
         if (!folders || !history) return 95;
         IntakeOptions options;
         options.first_retry = 100ms;

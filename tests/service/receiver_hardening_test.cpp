@@ -4,6 +4,7 @@
 // transfer syntax, the bind address and the association limit. All data is invented.
 
 #include "service/receiver_support.hpp"
+#include "service/result_files.hpp"
 
 #include <gtest/gtest.h>
 
@@ -223,7 +224,8 @@ TEST(ReceiverHardening, TheSamePlanInAnotherTransferSyntaxIsRecognisedAsTheSameP
       0);
 
   EXPECT_EQ(store(receiver, plan).exit_code, 0);
-  ASSERT_TRUE(test::wait_for([&] { return fs::exists(receiver.results() / (uid + ".json")); }, 10s))
+  ASSERT_TRUE(
+      test::wait_for([&] { return fs::exists(test::result_file(receiver.results(), uid, ".json")); }, 10s))
       << receiver.log();
   // Sent again in implicit VR and in big endian (storescu proposes the file's own transfer syntax).
   EXPECT_EQ(store(receiver, implicit, "-xi").exit_code, 0);

@@ -3,6 +3,7 @@
 // names of the fictional Fernhollow Radiotherapy Unit); they are valid for one day.
 
 #include "service/receiver_support.hpp"
+#include "service/result_files.hpp"
 
 #include <gtest/gtest.h>
 
@@ -67,7 +68,8 @@ TEST_F(ReceiverTlsTest, EchoAndStoreWithVerifiedCertificates) {
   const auto stored = test::run_command("storescu -to 10 " + tls_client() + " -aet FERN-TPS " + peer() + " " +
                                         test::quote(plan.string()));
   EXPECT_EQ(stored.exit_code, 0) << stored.err << receiver_.log();
-  EXPECT_TRUE(test::wait_for([&] { return fs::exists(receiver_.results() / (uid + ".json")); }, 10s))
+  EXPECT_TRUE(
+      test::wait_for([&] { return fs::exists(test::result_file(receiver_.results(), uid, ".json")); }, 10s))
       << receiver_.log();
   EXPECT_TRUE(receiver_.log_has("(TLS)")) << receiver_.log();
 }

@@ -2,9 +2,8 @@
 // (strict reader, engine, bundled beam data), on the invented demo plans in testdata/plans. DCMTK's
 // storescu is the sending peer; SIGTERM and SIGKILL are real signals to a real process.
 
-#include <countersign/service/history.hpp>
-
 #include "service/dicom_plans.hpp"
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <arpa/inet.h>
@@ -136,9 +135,9 @@ std::uint16_t free_port() {
 }
 
 std::size_t recorded(const fs::path& results) {
-  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  auto history = test::open_history(results / "history.sqlite", store::Access::read_only);
   if (!history) return 0;
-  auto all = history->list(HistoryFilter{});
+  auto all = history.value()->list_checks({});
   return all ? all->size() : 0;
 }
 
@@ -163,8 +162,8 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
                                      test::quote(results.string()) + " --once --settle-seconds 0.2");
   // One pass that had to quarantine a file ends with exit 3 and names it.
   ASSERT_EQ(run.exit_code, 3) << run.out << run.err;
-  EXPECT_EQ(count_suffix(results, ".json"), plans.size()) << run.out;
-  EXPECT_EQ(count_suffix(results, ".html"), plans.size());
+  EXPECT_EQ(test::count_results(results, ".json"), plans.size()) << run.out;
+  EXPECT_EQ(test::count_results(results, ".html"), plans.size());
   EXPECT_EQ(count_suffix(dir_ / "inbox", ".dcm"), 0U);
   EXPECT_EQ(recorded(results), plans.size());
   // One log line per plan.
@@ -187,7 +186,7 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
     ASSERT_NE(uid_at, std::string::npos) << checked.out;
     const auto uid_begin = uid_at + std::string{"\"sop_instance_uid\": \""}.size();
     const std::string uid = checked.out.substr(uid_begin, checked.out.find('"', uid_begin) - uid_begin);
-    const std::string written = slurp(results / (uid + ".json"));
+    const std::string written = slurp(test::result_file(results, uid, ".json"));
     ASSERT_FALSE(written.empty()) << uid;
     const auto status_of = [](const std::string& json) {
       const auto at = json.rfind("\"exit_code\": ");
@@ -249,7 +248,7 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
     Program watcher{arguments, dir_ / "run1.log"};
     ASSERT_TRUE(watcher.running());
     deliver(60);
-    ASSERT_TRUE(wait_until([&] { return count_suffix(results, ".json") >= 20; }, 60s))
+    ASSERT_TRUE(wait_until([&] { return test::count_results(results, ".json") >= 20; }, 60s))
         << slurp(dir_ / "run1.log");
     deliver(100);  // still arriving
     watcher.signal(SIGKILL);
@@ -272,15 +271,15 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
         << slurp(dir_ / "run2.log");
   }
 
-  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  auto history = test::open_history(results / "history.sqlite", store::Access::read_only);
   ASSERT_TRUE(history);
-  auto records = history->list(HistoryFilter{});
+  auto records = history.value()->list_checks({});
   ASSERT_TRUE(records);
   std::map<std::string, int> per_uid;
   for (const auto& record : *records) ++per_uid[record.sop_instance_uid];
   EXPECT_EQ(records->size(), static_cast<std::size_t>(total));
   for (const auto& uid : uids) EXPECT_EQ(per_uid[uid], 1) << uid;
-  EXPECT_EQ(count_suffix(results, ".json"), static_cast<std::size_t>(total));
+  EXPECT_EQ(test::count_results(results, ".json"), static_cast<std::size_t>(total));
   EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U);
 }
 
@@ -307,7 +306,7 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
                                           test::quote(plans.back().string()));
   EXPECT_NE(stranger.exit_code, 0);
   ASSERT_TRUE(wait_until([&] { return recorded(results) == 1; }, 20s)) << slurp(dir_ / "receive.log");
-  EXPECT_EQ(count_suffix(results, ".json"), 1U);
+  EXPECT_EQ(test::count_results(results, ".json"), 1U);
 
   receiver.signal(SIGTERM);
   const int status = receiver.wait();
@@ -334,9 +333,9 @@ std::string copy_with_name(const fs::path& source, const fs::path& target, const
 
 std::vector<std::string> history_uids(const fs::path& results) {
   std::vector<std::string> uids;
-  auto history = History::open(results / "history.sqlite", HistoryAccess::read_only);
+  auto history = test::open_history(results / "history.sqlite", store::Access::read_only);
   if (!history) return uids;
-  if (auto all = history->list(HistoryFilter{})) {
+  if (auto all = history.value()->list_checks({})) {
     for (const auto& record : *all) uids.push_back(record.sop_instance_uid);
   }
   std::sort(uids.begin(), uids.end());
@@ -357,9 +356,10 @@ TEST_F(ServiceProgramTest, AValidPlanWithALatin1NameIsCheckedNotQuarantined) {
                                      test::quote(results.string()) + " --once --quiet-seconds 0");
   ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
   EXPECT_EQ(history_uids(results), std::vector<std::string>{uid});
-  EXPECT_NE(slurp(results / (uid + ".json")).find("\"patient_name\": \"M\xC3\xBCller^J\xC3\xB6rg\""),
-            std::string::npos);
-  EXPECT_NE(slurp(results / (uid + ".html")).find("M\xC3\xBCller"), std::string::npos);
+  EXPECT_NE(
+      slurp(test::result_file(results, uid, ".json")).find("\"patient_name\": \"M\xC3\xBCller^J\xC3\xB6rg\""),
+      std::string::npos);
+  EXPECT_NE(slurp(test::result_file(results, uid, ".html")).find("M\xC3\xBCller"), std::string::npos);
 }
 
 TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
@@ -388,7 +388,8 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
   receiver.signal(SIGTERM);
   EXPECT_TRUE(WIFEXITED(receiver.wait()));
   EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U) << slurp(dir_ / "receive.log");
-  EXPECT_NE(slurp(results / (uid + ".json")).find("M\xC3\xBCller^J\xC3\xB6rg"), std::string::npos);
+  EXPECT_NE(slurp(test::result_file(results, uid, ".json")).find("M\xC3\xBCller^J\xC3\xB6rg"),
+            std::string::npos);
 }
 
 TEST_F(ServiceProgramTest, CheckFolderAndWatchTakeTheSameFilesByContentWhateverTheirNames) {

@@ -6,6 +6,7 @@
 #include <countersign/service/storage_receiver.hpp>
 
 #include "service/dicom_plans.hpp"
+#include "service/result_files.hpp"
 #include "support/paths.hpp"
 
 #include <arpa/inet.h>
@@ -125,7 +126,8 @@ TEST_F(StorageReceiverTest, AnAllowedSenderIsAnsweredAndItsPlanIsStoredAndChecke
   ASSERT_TRUE(test::write_demo_rt_plan(dir_ / "plan.dcm", uid, "FERN-DEMO-030"));
   const auto stored = store("FERN-TPS", dir_ / "plan.dcm");
   EXPECT_EQ(stored.exit_code, 0) << stored.err << log_text();
-  ASSERT_TRUE(wait_until([&] { return fs::exists(results() / (uid + ".json")); }, 10s)) << log_text();
+  ASSERT_TRUE(wait_until([&] { return fs::exists(test::result_file(results(), uid, ".json")); }, 10s))
+      << log_text();
   EXPECT_EQ(calls_->load(), 1);
   EXPECT_NE(log_text().find("received RT Plan " + uid + " from AE \"FERN-TPS\""), std::string::npos)
       << log_text();
@@ -157,7 +159,7 @@ TEST_F(StorageReceiverTest, AnUnknownCallingAeTitleIsRefused) {
   EXPECT_NE(log_text().find("refused association from AE \"INTRUDER\""), std::string::npos) << log_text();
   std::this_thread::sleep_for(300ms);
   EXPECT_EQ(count_entries(results() / "incoming"), 0U);
-  EXPECT_FALSE(fs::exists(results() / (uid + ".json")));
+  EXPECT_FALSE(fs::exists(test::result_file(results(), uid, ".json")));
   EXPECT_EQ(calls_->load(), 0);
 }
 
@@ -205,8 +207,9 @@ TEST_F(StorageReceiverTest, SeveralSendersAtOnceAreAllServed) {
     EXPECT_EQ(output.exit_code, 0) << output.err;
   }
   const auto all_checked = [&] {
-    return std::all_of(uids.begin(), uids.end(),
-                       [&](const std::string& uid) { return fs::exists(results() / (uid + ".json")); });
+    return std::all_of(uids.begin(), uids.end(), [&](const std::string& uid) {
+      return fs::exists(test::result_file(results(), uid, ".json"));
+    });
   };
   ASSERT_TRUE(wait_until(all_checked, 20s)) << calls_->load() << "\n" << log_text();
   EXPECT_EQ(calls_->load(), senders * plans_each);

@@ -30,6 +30,9 @@ void add_watch_command(CLI::App& app, CommandContext& context);
 void add_receive_command(CLI::App& app, CommandContext& context);
 void add_history_command(CLI::App& app, CommandContext& context);
 void add_explain_command(CLI::App& app, CommandContext& context);
+void add_review_command(CLI::App& app, CommandContext& context);
+void add_audit_command(CLI::App& app, CommandContext& context);
+void add_send_command(CLI::App& app, CommandContext& context);
 
 // Parses the arguments, runs the chosen subcommand and returns the process exit code.
 [[nodiscard]] int run(int argc, const char* const* argv, Io io);

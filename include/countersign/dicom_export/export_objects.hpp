@@ -52,4 +52,12 @@ struct ExportedObject {
                                                         const std::filesystem::path& output,
                                                         const ExportOptions& options = {});
 
+// The same for a record kept from an earlier check (the services keep the record and the plan
+// file of every check): only the plan's label is needed besides the files.
+[[nodiscard]] Expected<ExportedObject> write_record_pdf(const std::string& plan_label,
+                                                        const std::filesystem::path& plan_file,
+                                                        const std::filesystem::path& pdf_file,
+                                                        const std::filesystem::path& output,
+                                                        const ExportOptions& options = {});
+
 }  // namespace countersign::dicom_export

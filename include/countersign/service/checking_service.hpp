@@ -2,15 +2,18 @@
 
 // One running checking service, as `countersign watch` and `countersign receive` use it: it locks
 // the results folder (one service per folder), prepares the folders, clears what an interrupted run
-// left behind, opens the history and watches the inbox. The processor (the checking pipeline, with
-// its beam-data library loaded once) is given by the caller.
+// left behind, opens the history store (SQLite in the results folder, or a shared PostgreSQL
+// database), starts the follow-ups (alerts, sending to the archive) and resumes those an earlier run
+// left, and watches the inbox. The processor (the checking pipeline, with its beam-data library
+// loaded once) is given by the caller.
 
 #include <countersign/service/folder_watcher.hpp>
-#include <countersign/service/history.hpp>
+#include <countersign/service/follow_ups.hpp>
 #include <countersign/service/plan_intake.hpp>
 #include <countersign/service/plan_outcome.hpp>
 #include <countersign/service/private_files.hpp>
 #include <countersign/service/service_log.hpp>
+#include <countersign/store/store.hpp>
 #include <countersign/util/error.hpp>
 
 #include <filesystem>
@@ -23,14 +26,15 @@ namespace countersign::service {
 struct ServiceSettings {
   std::filesystem::path inbox;
   std::filesystem::path results;
-  std::optional<std::filesystem::path> quarantine;    // default RESULTS/quarantine
-  std::optional<std::filesystem::path> history_file;  // default RESULTS/history.sqlite
+  std::optional<std::filesystem::path> quarantine;  // default RESULTS/quarantine
+  std::optional<std::string> store;  // --db: a file or postgresql://…; default RESULTS/history.sqlite
   IntakeOptions intake;
   WatchOptions watch;
+  FollowUpSettings follow_ups;
 };
 
-// The history file a service with these results uses.
-[[nodiscard]] std::filesystem::path default_history_file(const std::filesystem::path& results);
+// Where the history of a service with these settings is.
+[[nodiscard]] store::StoreLocation store_location(const ServiceSettings& settings);
 
 class CheckingService {
  public:
@@ -44,13 +48,14 @@ class CheckingService {
   [[nodiscard]] Expected<WatchSummary> run(RunUntil until, std::span<const int> stop_fds);
 
   [[nodiscard]] const ServiceFolders& folders() const { return intake_.folders(); }
-  [[nodiscard]] const History& history() const { return intake_.history(); }
+  [[nodiscard]] store::Store& store() const { return intake_.store(); }
 
  private:
-  CheckingService(FolderLock lock, PlanIntake intake);
+  CheckingService(FolderLock lock, PlanIntake intake, std::unique_ptr<ServiceFollowUps> follow_ups);
 
   FolderLock lock_;
   PlanIntake intake_;
+  std::unique_ptr<ServiceFollowUps> follow_ups_;  // after the intake: stopped first
   std::optional<FolderWatcher> watcher_;
 };
 

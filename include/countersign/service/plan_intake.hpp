@@ -1,22 +1,25 @@
 #pragma once
 
 // The one path every arriving plan file takes, from the folder watcher and the DICOM receiver alike:
-// read it once, whole and only when complete; skip it if exactly these bytes were checked before;
-// check it; write the results atomically; record the check; only then move the file out of the
-// inbox. Files are taken in batches: the results of a batch are flushed to disk together and its
-// checks recorded in one transaction, the commit point of the whole batch. A crash at any step
-// leaves the files in the inbox, and the next attempt either finds their records (and finishes the
-// moves) or redoes the checks, so no plan is lost and none is recorded twice.
+// read it once, whole and only when complete; skip it if exactly these bytes were checked before
+// (by this service or another sharing the store); check it; write its record files under names of
+// its own (RESULTS/<UID>/<check id>.json, .html, .sr.dcm: never a name used before, nothing
+// replaced); record the check; only then move the file out of the inbox. Files are taken in
+// batches: the results of a batch are flushed to disk together and its checks recorded in one
+// transaction, the commit point of the whole batch. A crash at any step leaves the files in the
+// inbox, and the next attempt either finds their records (and finishes the moves) or redoes the
+// checks under new numbers, so no plan is lost and none is recorded twice.
 
-#include <countersign/service/history.hpp>
 #include <countersign/service/plan_outcome.hpp>
 #include <countersign/service/service_log.hpp>
+#include <countersign/store/store.hpp>
 #include <countersign/util/error.hpp>
 
 #include <chrono>
 #include <filesystem>
 #include <functional>
 #include <map>
+#include <memory>
 #include <optional>
 #include <span>
 #include <string>
@@ -27,7 +30,7 @@ namespace countersign::service {
 
 struct ServiceFolders {
   std::filesystem::path inbox;          // where plan files arrive
-  std::filesystem::path results;        // <UID>.json, <UID>.html
+  std::filesystem::path results;        // <UID>/<check id>.json, .html, .sr.dcm
   std::filesystem::path quarantine;     // bad files and their <name>.reason.txt
   std::filesystem::path checked_plans;  // each plan file after its check, as <UID>.<hash prefix>.dcm
 
@@ -74,7 +77,7 @@ enum class IntakeStatus {
 struct IntakeResult {
   IntakeStatus status = IntakeStatus::ignored;
   std::string message;                               // what happened (logged, except for not_ready)
-  std::optional<CheckRecord> record;                 // checked: the new record; duplicate: the earlier one
+  std::optional<store::CheckRecord> record;          // checked: the new record; duplicate: the earlier one
   std::chrono::system_clock::time_point retry_at{};  // not_ready and failed
 };
 
@@ -87,10 +90,26 @@ struct IntakeCandidate {
 // True for a non-empty UID of digits and dots of at most 64 characters: safe as a file name.
 [[nodiscard]] bool is_safe_uid(std::string_view uid);
 
+// Work that follows a check once it is recorded: an alert for a flagged plan, the results sent to
+// an archive. Its markers are written with the check's files, before the commit, so that a crash
+// after the commit loses nothing: the service resumes them at its next start.
+class FollowUpSink {
+ public:
+  virtual ~FollowUpSink() = default;
+  // Marker files (path, content) to write with the files of `check`; none when nothing follows.
+  [[nodiscard]] virtual std::vector<std::pair<std::filesystem::path, std::string>> markers(
+      const store::NewCheck& check) = 0;
+  // The checks are recorded and their plan files moved: start the work (never blocks for long).
+  virtual void recorded(const std::vector<store::CheckRecord>& checks) = 0;
+};
+
+// The name this machine gives itself (gethostname), recorded with every check as its station.
+[[nodiscard]] std::string station_name();
+
 class PlanIntake {
  public:
-  PlanIntake(ServiceFolders folders, History history, PlanProcessor processor, ServiceLog& log,
-             IntakeOptions options);
+  PlanIntake(ServiceFolders folders, std::unique_ptr<store::Store> store, PlanProcessor processor,
+             ServiceLog& log, IntakeOptions options);
 
   // Takes the candidates as one batch and returns one result each, in order. Every file is logged
   // once when it leaves the inbox or fails (not_ready, deferred and ignored files are not logged).
@@ -102,8 +121,11 @@ class PlanIntake {
   [[nodiscard]] IntakeResult take(const std::filesystem::path& file, Arrival arrival = Arrival::complete,
                                   int attempt = 1);
 
+  // Follow-ups of recorded checks (not owned; must outlive the intake), or none.
+  void set_follow_ups(FollowUpSink* sink) { follow_ups_ = sink; }
+
   [[nodiscard]] const ServiceFolders& folders() const { return folders_; }
-  [[nodiscard]] const History& history() const { return history_; }
+  [[nodiscard]] store::Store& store() const { return *store_; }
   [[nodiscard]] const IntakeOptions& options() const { return options_; }
   [[nodiscard]] ServiceLog& log() const { return log_; }
 
@@ -120,8 +142,10 @@ class PlanIntake {
   std::optional<IntakeResult> wait_for_quiet(const IntakeCandidate& candidate, const std::string& signature,
                                              std::chrono::system_clock::time_point modified);
   void commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results);
-  IntakeResult finish_duplicate(const std::filesystem::path& file, const CheckRecord& record,
-                                const std::string& content_sha256);
+  IntakeResult finish_duplicate(const std::filesystem::path& file, const store::CheckRecord& record,
+                                const std::string& content_sha256, std::string_view how = "");
+  [[nodiscard]] store::NewCheck new_check(const Pending& pending, std::int64_t id) const;
+  void record_head(const std::vector<store::Recorded>& recorded);
   IntakeResult quarantine(const std::filesystem::path& file, std::string_view content_sha256,
                           const std::string& reason);
   IntakeResult fail(const std::filesystem::path& file, const std::string& reason, int attempt);
@@ -130,10 +154,13 @@ class PlanIntake {
                                                   const std::string& content_sha256);
 
   ServiceFolders folders_;
-  History history_;
+  std::unique_ptr<store::Store> store_;
   PlanProcessor processor_;
   ServiceLog& log_;
   IntakeOptions options_;
+  FollowUpSink* follow_ups_ = nullptr;
+  std::string station_;
+  std::string results_folder_;  // absolute, as recorded with each check
   // Files written in place whose modification time is in the future (another clock, a time set by
   // the writer): their quiet period is measured from when we first saw them as they are.
   std::map<std::filesystem::path, Observed> observed_;

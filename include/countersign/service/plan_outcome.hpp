@@ -5,6 +5,7 @@
 // Error. The watcher, the receiver and the history are written and tested against this seam, so
 // they depend on no engine internals.
 
+#include <countersign/store/verdict.hpp>
 #include <countersign/util/error.hpp>
 
 #include <cstddef>
@@ -18,29 +19,14 @@
 
 namespace countersign::service {
 
-// The plan-level verdict, spelled as in the JSON report (DESIGN.md §6).
-enum class PlanVerdict { within_tolerance, outside_tolerance, not_checked };
-
-// A beam's verdict; setup beams and beams without MU are listed as skipped, never flagged.
-enum class BeamVerdict { within_tolerance, outside_tolerance, not_checked, skipped };
-
-[[nodiscard]] std::string_view to_string(PlanVerdict verdict);
-[[nodiscard]] std::string_view to_string(BeamVerdict verdict);
-[[nodiscard]] std::optional<PlanVerdict> plan_verdict_from_string(std::string_view word);
-[[nodiscard]] std::optional<BeamVerdict> beam_verdict_from_string(std::string_view word);
-
-// The history fields of one beam.
-struct BeamOutcome {
-  int beam_number = 0;              // Beam Number (300A,00C0)
-  std::string beam_name;            // Beam Name (300A,00C2)
-  std::string machine;              // Treatment Machine Name (300A,00B2)
-  std::optional<double> energy_mv;  // Nominal Beam Energy (300A,0114), absent when the plan lacks it
-  std::string technique;            // how the beam was calculated, the pipeline's own words
-  BeamVerdict verdict = BeamVerdict::not_checked;
-  std::optional<double> deviation_percent;  // 100 (computed - planned) / planned; absent when not checked
-  std::optional<double> tolerance_percent;  // the tolerance that was applied, when one was
-  std::string reason;                       // why not checked or skipped (reason code), else empty
-};
+// The verdict words and the history fields of a beam are the store's (plain values shared with the
+// command line and the web view).
+using store::beam_verdict_from_string;
+using store::BeamOutcome;
+using store::BeamVerdict;
+using store::plan_verdict_from_string;
+using store::PlanVerdict;
+using store::to_string;
 
 // Everything the services keep about one checked plan.
 struct PlanOutcome {
@@ -48,10 +34,16 @@ struct PlanOutcome {
   std::string patient_id;        // Patient ID (0010,0020)
   std::string plan_label;        // RT Plan Label (300A,0002)
   PlanVerdict verdict = PlanVerdict::not_checked;
-  std::string json_text;                 // the machine-readable report, written as <UID>.json
-  std::optional<std::string> html_text;  // the printable record, written as <UID>.html when present
+  std::string json_text;  // the machine-readable report, written as <UID>/<check id>.json
+  std::optional<std::string>
+      html_text;  // the printable record, written as <UID>/<check id>.html when present
+  // The structured result as a DICOM SR file (<UID>/<check id>.sr.dcm), kept with the record so that
+  // it can be sent, and sent again, as it was made; absent when it could not be made (sr_problem says why).
+  std::optional<std::string> sr_bytes;
+  std::string sr_problem;
   std::vector<BeamOutcome> beams;
   std::string beamdata_sha256;  // hash of the beam-data library used
+  std::string policy_sha256;    // hash of the tolerance policy in force (every key and value)
 };
 
 // Turns one complete plan file into an outcome. `file` names it for messages; `bytes` is its whole

@@ -49,11 +49,12 @@ enum class OnExisting { pick_free_name, replace };
 [[nodiscard]] Expected<std::filesystem::path> sync_directory(const std::filesystem::path& dir);
 
 // Files replaced atomically and made durable together, for a batch of results: add() writes each to
-// a hidden temporary file beside its target (0640, not yet flushed); commit() flushes them all with
-// one syncfs of their file system, renames them into place in the order added (a later file of the
-// same target wins) and syncs each directory once. A reader sees each target old or new, never a
-// part. Temporaries not committed are removed on destruction; those a crash leaves are removed by
-// remove_stale_temporaries.
+// a hidden temporary file beside its target (0640, not yet flushed; a missing folder of the target
+// is created 0750); commit() flushes them all with one syncfs of their file system, renames them
+// into place in the order added (a later file of the same target wins) and makes the renames
+// durable (an fsync of each of a few directories, or one more syncfs for many). A reader sees each target old
+// or new, never a part. Temporaries not committed are removed on destruction; those a crash leaves are
+// removed by remove_stale_temporaries.
 class AtomicFileGroup {
  public:
   AtomicFileGroup() = default;
@@ -75,6 +76,7 @@ class AtomicFileGroup {
     std::filesystem::path target;
   };
   std::vector<Staged> files_;
+  std::vector<std::filesystem::path> created_;  // folders made by add(), to be made durable
 };
 
 // An exclusive lock on a folder for as long as this object lives (flock on "<dir>/.countersign.lock";

@@ -1,11 +1,11 @@
-#include <countersign/service/trend.hpp>
+#include <countersign/store/trend.hpp>
 
 #include <algorithm>
 #include <cmath>
 #include <map>
 #include <tuple>
 
-namespace countersign::service {
+namespace countersign::store {
 
 namespace {
 
@@ -35,8 +35,7 @@ std::optional<long long> energy_key(const std::optional<double>& energy_mv) {
 
 }  // namespace
 
-std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
-                                         const HistoryFilter& filter) {
+std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks, const CheckFilter& filter) {
   using Key = std::tuple<std::string, std::optional<long long>, std::string>;
   std::map<Key, std::pair<TrendGroup, Accumulator>> groups;
 
@@ -83,4 +82,4 @@ std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
   return result;
 }
 
-}  // namespace countersign::service
+}  // namespace countersign::store

@@ -4,14 +4,15 @@
 // the mean and standard deviation of their differences, and the share outside tolerance. AAPM TG-114
 // (2011) recommends that a clinic derive its own action levels from such a distribution.
 
-#include <countersign/service/history.hpp>
+#include <countersign/store/filter.hpp>
+#include <countersign/store/records.hpp>
 
 #include <cstddef>
 #include <optional>
 #include <string>
 #include <vector>
 
-namespace countersign::service {
+namespace countersign::store {
 
 struct TrendGroup {
   std::string machine;
@@ -30,6 +31,6 @@ struct TrendGroup {
 // Groups the beams of `checks` that pass `filter.beam_matches`, sorted by machine, energy, technique.
 // Skipped beams (setup fields, beams without MU) are not counted at all.
 [[nodiscard]] std::vector<TrendGroup> summarize_trends(const std::vector<CheckRecord>& checks,
-                                                       const HistoryFilter& filter);
+                                                       const CheckFilter& filter);
 
-}  // namespace countersign::service
+}  // namespace countersign::store

@@ -1,9 +1,9 @@
-#include <countersign/service/plan_outcome.hpp>
+#include <countersign/store/verdict.hpp>
 
 #include <array>
 #include <utility>
 
-namespace countersign::service {
+namespace countersign::store {
 
 namespace {
 constexpr std::array<std::pair<PlanVerdict, std::string_view>, 3> plan_words{{
@@ -43,4 +43,10 @@ std::optional<BeamVerdict> beam_verdict_from_string(std::string_view word) {
   return std::nullopt;
 }
 
-}  // namespace countersign::service
+bool is_flagged(PlanVerdict verdict) { return verdict != PlanVerdict::within_tolerance; }
+
+bool is_flagged(BeamVerdict verdict) {
+  return verdict == BeamVerdict::outside_tolerance || verdict == BeamVerdict::not_checked;
+}
+
+}  // namespace countersign::store
