@@ -380,6 +380,11 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
     result.message = "being checked by another service sharing the history";
     return result;
   }
+  // Claimed now; another service may have recorded it between the look above and the claim (claims
+  // are released only after the commit), so look once more before computing it again.
+  auto recorded_meanwhile = store_->find_by_content(content_sha256);
+  if (!recorded_meanwhile) return fail(file, recorded_meanwhile.error().message(), candidate.attempt);
+  if (recorded_meanwhile.value()) return finish_duplicate(file, *recorded_meanwhile.value(), content_sha256);
 
   std::optional<Expected<PlanOutcome>> processed;
   try {
