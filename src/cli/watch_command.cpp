@@ -11,6 +11,7 @@
 #include "service_startup.hpp"
 #include "shared_options.hpp"
 
+#include <chrono>
 #include <memory>
 #include <ostream>
 #include <string>
@@ -67,6 +68,9 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
       return ExitCode::bad_input;
     }
     for (const std::string& file : summary->not_taken) log.line("not taken: " + file);
+    // One pass: its alerts and deliveries get their first attempts before it ends; retries wait
+    // (marker files, the outbox) for the next run.
+    if (options.once) opened->service->wait_for_follow_ups(std::chrono::seconds{60});
     log.line(stopped_line(*summary, signals.take()));
     // One pass: a file left in the inbox or moved to quarantine needs a person.
     if (options.once && (!summary->not_taken.empty() || summary->quarantined > 0)) return ExitCode::bad_input;

@@ -71,6 +71,10 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
   return service;
 }
 
+void CheckingService::wait_for_follow_ups(std::chrono::seconds timeout) {
+  if (follow_ups_) follow_ups_->wait_idle(std::chrono::steady_clock::now() + timeout);
+}
+
 Expected<WatchSummary> CheckingService::run(RunUntil until, std::span<const int> stop_fds) {
   return watcher_->run(until, stop_fds);
 }

@@ -46,6 +46,16 @@ void FlagAlerts::add(AlertJob job) {
   wake_.notify_all();
 }
 
+void FlagAlerts::wait_idle(SteadyClock::time_point deadline) {
+  std::unique_lock lock{mutex_};
+  const auto idle = [&] {
+    return !busy_ &&
+           std::all_of(queue_.begin(), queue_.end(), [&](const Pending& p) { return p.due > deadline; });
+  };
+  while (!idle() && SteadyClock::now() < deadline)
+    wake_.wait_until(lock, std::min(deadline, SteadyClock::now() + std::chrono::milliseconds{100}));
+}
+
 void FlagAlerts::loop() {
   std::unique_lock lock{mutex_};
   while (!stopping_) {
@@ -61,10 +71,13 @@ void FlagAlerts::loop() {
     }
     Pending pending = std::move(*due);
     queue_.erase(due);
+    busy_ = true;
     lock.unlock();
     raise(pending);  // the program runs without the lock: new alerts queue meanwhile
     lock.lock();
+    busy_ = false;
     if (pending.attempt > 0) queue_.push_back(std::move(pending));  // to be tried again
+    wake_.notify_all();
   }
 }
 

@@ -56,6 +56,11 @@ ServiceFollowUps::~ServiceFollowUps() {
   delivery_.reset();
 }
 
+void ServiceFollowUps::wait_idle(std::chrono::steady_clock::time_point deadline) {
+  if (alerts_) alerts_->wait_idle(deadline);
+  if (delivery_) delivery_->wait_idle(deadline);
+}
+
 fs::path ServiceFollowUps::alert_marker(std::int64_t check_id) const {
   return folder() / "alert" / std::to_string(check_id);
 }

@@ -130,16 +130,35 @@ SteadyClock::time_point ResultDelivery::next_wake() const {
   return wake;
 }
 
+void ResultDelivery::wait_idle(SteadyClock::time_point deadline) {
+  const auto wall_deadline = net::WallClock::now() + std::chrono::duration_cast<net::WallClock::duration>(
+                                                         deadline - SteadyClock::now());
+  for (;;) {
+    {
+      const std::scoped_lock lock{mutex_};
+      const std::vector<net::OutboxEntry> pending = outbox_.pending();
+      const bool nothing_due =
+          std::all_of(pending.begin(), pending.end(),
+                      [&](const net::OutboxEntry& entry) { return entry.next_attempt > wall_deadline; });
+      if (!busy_ && jobs_.empty() && nothing_due) return;
+    }
+    if (SteadyClock::now() >= deadline) return;
+    std::this_thread::sleep_for(std::chrono::milliseconds{100});
+  }
+}
+
 void ResultDelivery::loop() {
   std::unique_lock lock{mutex_};
   while (!stopping_) {
     std::vector<DeliveryJob> jobs;
     jobs.swap(jobs_);
+    busy_ = true;
     lock.unlock();
     for (const DeliveryJob& job : jobs) queue_objects(job);
     deliver_due();
     const auto wake = next_wake();
     lock.lock();
+    busy_ = false;
     if (jobs_.empty() && !stopping_)
       wake_.wait_until(lock, wake, [this] { return stopping_ || !jobs_.empty(); });
   }

@@ -103,7 +103,8 @@ TEST(SharedHistory, TwoWatchersOnOnePostgresqlDatabaseCheckTheSame200PlansEachEx
   for (int i = 0; i < plans; ++i) EXPECT_EQ(calls->count(test::demo_uid(2000 + i)), 1) << i;
   EXPECT_EQ(calls->total.load(), plans);
   EXPECT_EQ(stations[0]->summary.checked + stations[1]->summary.checked, static_cast<std::size_t>(plans));
-  EXPECT_EQ(stations[0]->summary.duplicates + stations[1]->summary.duplicates, static_cast<std::size_t>(plans));
+  EXPECT_EQ(stations[0]->summary.duplicates + stations[1]->summary.duplicates,
+            static_cast<std::size_t>(plans));
   EXPECT_GT(stations[0]->summary.checked, 0U) << "one site did all the work: the test shows no sharing";
   EXPECT_GT(stations[1]->summary.checked, 0U) << "one site did all the work: the test shows no sharing";
 

@@ -16,6 +16,7 @@
 #include <countersign/store/store.hpp>
 #include <countersign/util/error.hpp>
 
+#include <chrono>
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -49,6 +50,8 @@ class CheckingService {
 
   [[nodiscard]] const ServiceFolders& folders() const { return intake_.folders(); }
   [[nodiscard]] store::Store& store() const { return intake_.store(); }
+  // Waits up to `timeout` for the follow-ups (alerts, sending) in hand; see ServiceFollowUps::wait_idle.
+  void wait_for_follow_ups(std::chrono::seconds timeout);
 
  private:
   CheckingService(FolderLock lock, PlanIntake intake, std::unique_ptr<ServiceFollowUps> follow_ups);

@@ -45,6 +45,8 @@ class FlagAlerts {
   ~FlagAlerts();  // stops a running program; what is left keeps its marker for the next start
 
   void add(AlertJob job);
+  // Waits until no alert is running or due before `deadline` (a one-pass run ends after its alerts).
+  void wait_idle(std::chrono::steady_clock::time_point deadline);
 
  private:
   struct Pending {
@@ -61,6 +63,7 @@ class FlagAlerts {
   std::mutex mutex_;
   std::condition_variable wake_;
   std::vector<Pending> queue_;
+  bool busy_ = false;  // a program is running
   std::atomic<bool> stopping_{false};
   std::thread thread_;
 };

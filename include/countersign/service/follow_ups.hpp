@@ -47,6 +47,10 @@ class ServiceFollowUps final : public FollowUpSink {
       const store::NewCheck& check) override;
   void recorded(const std::vector<store::CheckRecord>& checks) override;
 
+  // Waits (up to `deadline`) for the alerts and deliveries in hand: a one-pass run ends after them;
+  // what is left keeps its marker or outbox entry for the next run.
+  void wait_idle(std::chrono::steady_clock::time_point deadline);
+
   // Resumes the markers an earlier run left (their checks read from `store`); returns how many.
   std::size_t resume(store::Store& store);
 

@@ -51,6 +51,8 @@ class ResultDelivery {
   ~ResultDelivery();  // finishes the object in hand, then stops
 
   void add(DeliveryJob job);
+  // Waits until the jobs are queued and no outbox entry is due before `deadline`.
+  void wait_idle(std::chrono::steady_clock::time_point deadline);
   [[nodiscard]] const std::filesystem::path& outbox_folder() const { return outbox_.folder(); }
 
  private:
@@ -70,6 +72,7 @@ class ResultDelivery {
   std::mutex mutex_;
   std::condition_variable wake_;
   std::vector<DeliveryJob> jobs_;
+  bool busy_ = false;  // jobs taken, not yet queued and delivered once
   std::atomic<bool> stopping_{false};
   std::thread thread_;
 };
