@@ -49,7 +49,8 @@ TEST(FlagAlerts, AFailingProgramIsLoggedAndRetriedUntilItSucceeds) {
 TEST(ProgramRunner, WordsAreSplitWithoutAShell) {
   auto words = split_command_words("notify --to 'physics desk' \"a \\\"b\\\"\" $HOME;rm", "--on-flag");
   ASSERT_TRUE(words) << words.error().message();
-  EXPECT_EQ(words.value(), (std::vector<std::string>{"notify", "--to", "physics desk", "a \"b\"", "$HOME;rm"}));
+  EXPECT_EQ(words.value(),
+            (std::vector<std::string>{"notify", "--to", "physics desk", "a \"b\"", "$HOME;rm"}));
   EXPECT_FALSE(split_command_words("notify 'open", "--on-flag"));
   EXPECT_FALSE(split_command_words("   ", "--on-flag"));
   EXPECT_FALSE(find_program("no-such-program-countersign", "--on-flag"));
