@@ -208,7 +208,7 @@ TEST_P(RecordsCli, BadFilterValuesAreErrorsNotEmptyLists) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Stores, RecordsCli, ::testing::Values("sqlite", "postgresql"),
-                         [](const ::testing::TestParamInfo<std::string>& info) { return info.param; });
+                         [](const ::testing::TestParamInfo<std::string>& backend) { return backend.param; });
 
 }  // namespace
 }  // namespace countersign::test

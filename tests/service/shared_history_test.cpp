@@ -42,7 +42,7 @@ struct Station {
 
 std::size_t files_in(const fs::path& dir) {
   std::size_t n = 0;
-  for (const auto& entry : fs::directory_iterator{dir}) n += entry.is_regular_file() ? 1 : 0;
+  for (const auto& entry : fs::directory_iterator{dir}) n += entry.is_regular_file() ? 1U : 0U;
   return n;
 }
 

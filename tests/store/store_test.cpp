@@ -359,7 +359,7 @@ TEST_P(StoreTest, TrendStatisticsPerMachineEnergyAndTechnique) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Backends, StoreTest, ::testing::Values("sqlite", "postgresql"),
-                         [](const ::testing::TestParamInfo<std::string>& info) { return info.param; });
+                         [](const ::testing::TestParamInfo<std::string>& backend) { return backend.param; });
 
 TEST(TimeBound, AcceptsPrefixesOfAnIsoTimeAndRefusesAnythingElse) {
   EXPECT_EQ(parse_time_bound("2026", "--since").value(), "2026");
