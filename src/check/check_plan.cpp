@@ -1,4 +1,5 @@
 #include <countersign/check/check_plan.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -85,8 +86,8 @@ std::string describe_extrapolation(const engine::Factor& factor) {
 
 FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (c.features.modulated) return FieldCategory::modulated;
-  const bool off_axis = c.point.off_axis_mm > policy.simple_max_off_axis_cm * 10.0;
-  const bool asymmetric = c.features.jaw_centre_offset_mm > policy.simple_max_jaw_offset_cm * 10.0;
+  const bool off_axis = c.point.off_axis_mm > util::cm_to_mm(policy.simple_max_off_axis_cm);
+  const bool asymmetric = c.features.jaw_centre_offset_mm > util::cm_to_mm(policy.simple_max_jaw_offset_cm);
   const bool shaped = c.features.open_to_jaw_area_ratio < policy.simple_min_open_fraction;
   return (off_axis || asymmetric || shaped || c.features.blocks) ? FieldCategory::complex
                                                                  : FieldCategory::simple;
@@ -114,37 +115,37 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
               "the dose point ({:.1f}, {:.1f}) mm at the isocentre plane is outside the field opening",
               c.point.iso_plane_x_mm, c.point.iso_plane_y_mm)};
     }
-    if (c.edge_distance_mm < policy.min_edge_distance_cm * 10.0) {
+    if (c.edge_distance_mm < util::cm_to_mm(policy.min_edge_distance_cm)) {
       return Finding{
           Reason::point_near_field_edge,
           fmt::format("the dose point is {:.1f} mm from the nearest field edge (policy minimum {:.1f} mm)",
-                      c.edge_distance_mm, policy.min_edge_distance_cm * 10.0)};
+                      c.edge_distance_mm, util::cm_to_mm(policy.min_edge_distance_cm))};
     }
   } else if (std::none_of(c.segments.begin(), c.segments.end(),
                           [](const engine::Segment& s) { return s.point_in_opening; })) {
     return Finding{Reason::point_outside_field,
                    "the dose point is under the leaves or jaws in every segment"};
   }
-  if (c.features.wedged && c.point.off_axis_mm > policy.wedge_max_off_axis_cm * 10.0) {
+  if (c.features.wedged && c.point.off_axis_mm > util::cm_to_mm(policy.wedge_max_off_axis_cm)) {
     return Finding{
         Reason::unsupported_geometry,
         fmt::format("wedged field with the point {:.1f} cm off axis: the open-field OAR does not apply "
                     "(policy limit {:.1f} cm)",
-                    c.point.off_axis_mm / 10.0, policy.wedge_max_off_axis_cm)};
+                    util::mm_to_cm(c.point.off_axis_mm), policy.wedge_max_off_axis_cm)};
   }
   const bool plan_depth_used = c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&
                                c.depth.source != engine::DepthSource::derived_from_dose_point_ssd;
   if (plan_depth_used && c.depth.spd_minus_ssd_mm &&
-      c.point.off_axis_mm <= policy.depth_check_max_off_axis_cm * 10.0) {
+      c.point.off_axis_mm <= util::cm_to_mm(policy.depth_check_max_off_axis_cm)) {
     const double discrepancy_mm = c.depth.depth_mm - *c.depth.spd_minus_ssd_mm;
-    if (std::abs(discrepancy_mm) > policy.max_depth_discrepancy_cm * 10.0) {
+    if (std::abs(discrepancy_mm) > util::cm_to_mm(policy.max_depth_discrepancy_cm)) {
       return Finding{
           Reason::inconsistent_depth,
           fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
                       "{:.1f} mm): check the SSD and the dose point",
                       c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
-                      policy.max_depth_discrepancy_cm * 10.0)};
+                      util::cm_to_mm(policy.max_depth_discrepancy_cm))};
     }
   }
   return std::nullopt;

@@ -1,6 +1,7 @@
 #include <countersign/engine/beam_dose.hpp>
 
 #include <countersign/beamdata/conversions.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -221,7 +222,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
   r.angles = {*cp0.gantry_deg, *cp0.collimator_deg, *cp0.couch_deg};
   r.isocenter_mm = *cp0.isocenter_mm;
 
-  r.sad_mm = r.machine->sad_cm * 10.0;
+  r.sad_mm = util::cm_to_mm(r.machine->sad_cm);
   if (beam.sad_mm && std::abs(*beam.sad_mm - r.sad_mm) > sad_match_mm) {
     return fail({Reason::sad_mismatch,
                  fmt::format("Source-Axis Distance (300A,00B4) is {:.1f} mm but machine {} has {:.1f} mm",
@@ -427,14 +428,14 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     DoseInputs& in = s.inputs;
     in.method = r.method;
     in.meterset_mu = s.meterset_mu;
-    in.depth_cm = s.depth_mm / 10.0;
-    in.spd_cm = s.point.spd_mm / 10.0;
-    in.ssd_cm = s.ssd_mm / 10.0;
-    in.sad_cm = r.sad_mm / 10.0;
-    in.off_axis_cm = s.point.off_axis_mm / 10.0;
+    in.depth_cm = util::mm_to_cm(s.depth_mm);
+    in.spd_cm = util::mm_to_cm(s.point.spd_mm);
+    in.ssd_cm = util::mm_to_cm(s.ssd_mm);
+    in.sad_cm = util::mm_to_cm(r.sad_mm);
+    in.off_axis_cm = util::mm_to_cm(s.point.off_axis_mm);
     in.collimator_field_cm =
-        beamdata::equivalent_square_cm(s.jaws.width_mm() / 10.0, s.jaws.length_mm() / 10.0);
-    in.field_at_isocentre_cm = aperture->equivalent_square_mm() / 10.0;
+        beamdata::equivalent_square_cm(util::mm_to_cm(s.jaws.width_mm()), util::mm_to_cm(s.jaws.length_mm()));
+    in.field_at_isocentre_cm = util::mm_to_cm(aperture->equivalent_square_mm());
     in.wedge = wedge;
     in.tray = tray;
     const bool counts = !r.features.modulated || s.point_in_opening || s.point_in_jaws;
@@ -447,7 +448,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
       if (!data.oar && s.point.off_axis_mm > on_axis_limit_mm) {
         return fail({Reason::missing_beam_data,
                      fmt::format("beam {} has no OAR table and the point is {:.1f} cm off axis", data.id,
-                                 s.point.off_axis_mm / 10.0)});
+                                 util::mm_to_cm(s.point.off_axis_mm))});
       }
       s.dose = compute_point_dose(data, in);
       total_cgy += s.dose.dose_cgy;
@@ -459,7 +460,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
 
   r.inputs = r.segments.front().inputs;
   r.dose = r.segments.front().dose;
-  r.computed_dose_gy = total_cgy / 100.0;
+  r.computed_dose_gy = util::cgy_to_gy(total_cgy);
   r.dose_computed = true;
 
   if (r.features.modulated) {
@@ -493,12 +494,12 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     r.approximations.push_back(
         "Block shapes are not modelled: the field inside the jaws and MLC is used for Sp and TMR/PDD.");
   }
-  if (r.method == Method::pdd && std::abs(ssd0_mm / 10.0 - data.pdd_ssd_cm) > 0.05) {
+  if (r.method == Method::pdd && std::abs(util::mm_to_cm(ssd0_mm) - data.pdd_ssd_cm) > 0.05) {
     r.approximations.push_back(
         fmt::format("PDD at SSD {:.1f} cm from the table at {:.1f} cm by the Mayneord F factor, which "
                     "ignores the change in "
                     "phantom scatter (about half a percent).",
-                    ssd0_mm / 10.0, data.pdd_ssd_cm));
+                    util::mm_to_cm(ssd0_mm), data.pdd_ssd_cm));
   }
   return r;
 }

@@ -1,6 +1,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 
 #include <countersign/report/html_escape.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -214,7 +215,7 @@ std::string text(PaperMm at, std::string_view content, std::string_view anchor, 
 double scale_bar_cm(double scale) {
   double best = 1.0;
   for (const double cm : {1.0, 2.0, 5.0, 10.0, 20.0, 50.0}) {
-    if (cm * 10.0 * scale <= 50.0 + 1e-9) best = cm;
+    if (util::cm_to_mm(cm) * scale <= 50.0 + 1e-9) best = cm;
   }
   return best;
 }
@@ -324,7 +325,7 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
 
   // Scale bar, bottom left, and the scale in words, bottom right.
   const double bar_cm = scale_bar_cm(m.scale());
-  const double bar_mm = bar_cm * 10.0 * m.scale();
+  const double bar_mm = util::cm_to_mm(bar_cm) * m.scale();
   const double bx = 5.0;
   const double by = h - 5.0;
   const std::string_view bar = "stroke=\"#000\" stroke-width=\"0.4\"";

@@ -1,4 +1,5 @@
 #include <countersign/report/check_text.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -19,7 +20,7 @@ std::string depth_label(const check::BeamCheck& b) {
   if (d.source == engine::DepthSource::derived_spd_minus_ssd) tag = "SPD-SSD";
   if (d.source == engine::DepthSource::derived_from_dose_point_ssd) tag = "ray-SSD";
   if (d.kind == engine::DepthChoice::equivalent) tag = "equiv";
-  return fmt::format("{:.1f} {}", d.depth_mm / 10.0, tag);
+  return fmt::format("{:.1f} {}", util::mm_to_cm(d.depth_mm), tag);
 }
 
 }  // namespace

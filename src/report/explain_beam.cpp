@@ -1,4 +1,5 @@
 #include <countersign/report/explain_report.hpp>
+#include <countersign/util/units.hpp>
 
 namespace countersign::report {
 
@@ -55,7 +56,7 @@ BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::Sensiti
   } else if (!(*beam.planned_dose_gy > 0.0)) {
     e.sensitivity_note = "the planned Beam Dose (300A,0084) is not positive";
   } else {
-    e.sensitivity = engine::reconcile(*c.beam_data, e.parts, *beam.planned_dose_gy * 100.0, limits);
+    e.sensitivity = engine::reconcile(*c.beam_data, e.parts, util::gy_to_cgy(*beam.planned_dose_gy), limits);
   }
   return e;
 }

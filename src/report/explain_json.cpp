@@ -3,6 +3,7 @@
 #include <countersign/geometry/patient_position.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/util/units.hpp>
 
 namespace countersign::report {
 
@@ -60,7 +61,7 @@ json fields_json(const engine::FieldSizes& s) {
 
 json formalism_json(const FormalismDose& f) {
   return {{"method", engine::to_code(f.method)},
-          {"dose_gy", f.dose_cgy / 100.0},
+          {"dose_gy", util::cgy_to_gy(f.dose_cgy)},
           {"first_part_dose_per_mu_cgy", f.first_part.dose_per_mu_cgy},
           {"first_part_factors", factors_json(f.first_part)}};
 }
@@ -108,8 +109,8 @@ json geometry_json(const engine::BeamDose& c) {
                {"y2_mm", j.y2_mm},
                {"x_from_mlc_envelope", j.x_source == geometry::JawSource::mlc_envelope},
                {"y_from_mlc_envelope", j.y_source == geometry::JawSource::mlc_envelope}};
-  g["aperture_area_cm2"] = c.aperture.area_mm2() / 100.0;
-  g["aperture_perimeter_cm"] = c.aperture.perimeter_mm() / 10.0;
+  g["aperture_area_cm2"] = util::mm2_to_cm2(c.aperture.area_mm2());
+  g["aperture_perimeter_cm"] = util::mm_to_cm(c.aperture.perimeter_mm());
   g["shaped_by_mlc"] = c.aperture.shaped_by_mlc();
   g["field_sizes"] = c.dose_computed ? fields_json(c.dose.fields) : json(nullptr);
   return g;
@@ -162,8 +163,8 @@ json sensitivity_json(const BeamExplanation& e) {
                         {"needed_value", row.role == "divides" ? value / ratio : value * ratio}});
     }
   }
-  return {{"target_dose_gy", s.target_dose_cgy / 100.0},
-          {"baseline_dose_gy", s.baseline_dose_cgy / 100.0},
+  return {{"target_dose_gy", util::cgy_to_gy(s.target_dose_cgy)},
+          {"baseline_dose_gy", util::cgy_to_gy(s.baseline_dose_cgy)},
           {"planned_to_computed_ratio", ratio},
           {"changes", changes},
           {"factor_needed", needed},

@@ -4,6 +4,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_escape.hpp>
+#include <countersign/util/units.hpp>
 
 #include "html_parts.hpp"
 
@@ -43,7 +44,7 @@ std::string setup_facts(const engine::BeamDose& c) {
   out += fact("Jaws Y1 / Y2 mm",
               fmt::format("{:.1f} / {:.1f}{}", j.y1_mm, j.y2_mm,
                           j.y_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
-  out += fact("Opening (cp 0)", fmt::format("{:.1f} cm\u00B2{}", c.aperture.area_mm2() / 100.0,
+  out += fact("Opening (cp 0)", fmt::format("{:.1f} cm\u00B2{}", util::mm2_to_cm2(c.aperture.area_mm2()),
                                             c.aperture.shaped_by_mlc() ? ", shaped by MLC" : ", jaws only"));
   if (c.ssd_mm) out += fact("SSD", fmt::format("{:.1f} mm", *c.ssd_mm));
   out += fact("Source to point plane (SPD)", fmt::format("{:.1f} mm", c.point.spd_mm));
@@ -94,7 +95,7 @@ std::string factor_table(const engine::BeamDose& c) {
   out += fmt::format(
       "<tr class=\"total\"><td>Independent dose (cGy)</td><td class=\"num\">{:.2f}</td><td "
       "colspan=\"2\"></td></tr>\n",
-      c.computed_dose_gy * 100.0);
+      util::gy_to_cgy(c.computed_dose_gy));
   out += "</tbody></table>\n";
   return out;
 }
@@ -135,7 +136,7 @@ std::string parts_table(const engine::BeamDose& c) {
   out += fmt::format(
       "<tr class=\"total\"><td colspan=\"2\">Beam</td><td class=\"num\">{:.2f}</td><td colspan=\"4\"></td>"
       "<td class=\"num\">{:.2f}</td></tr>\n</tbody></table>\n",
-      c.meterset_mu, c.computed_dose_gy * 100.0);
+      c.meterset_mu, util::gy_to_cgy(c.computed_dose_gy));
   return out;
 }
 
