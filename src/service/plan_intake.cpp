@@ -1,7 +1,7 @@
 #include <countersign/service/plan_intake.hpp>
 #include <countersign/service/private_files.hpp>
 
-#include <countersign/beamdata/sha256.hpp>
+#include <countersign/util/sha256.hpp>
 #include <countersign/util/version.hpp>
 
 #include <countersign/service/unique_fd.hpp>
@@ -248,8 +248,8 @@ IntakeResult PlanIntake::take(const fs::path& file) {
   }
   const bool may_be_growing = started - read.modified < options_.settle_time;
 
-  const std::string content_sha256 = beamdata::sha256_hex(
-      std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
+  const std::string content_sha256 =
+      util::sha256_hex(std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
 
   // Exactly once: these bytes were checked before (a second copy, or a restart after a crash that
   // came between the record and the move).
