@@ -209,8 +209,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
 namespace {
 
 bool is_treatment(const plan::Beam& beam) {
-  return beam.delivery_type.empty() || beam.delivery_type == "TREATMENT" ||
-         beam.delivery_type == "CONTINUATION";
+  return beam.delivery_type.absent() || beam.delivery_type == plan::DeliveryType::treatment ||
+         beam.delivery_type == plan::DeliveryType::continuation;
 }
 
 BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& group,
@@ -231,9 +231,9 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
   out.beam_name = beam->name;
   if (!is_treatment(*beam)) {
     out.status = Status::skipped;
-    out.reason = {
-        Reason::setup_beam,
-        fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged", beam->delivery_type)};
+    out.reason = {Reason::setup_beam,
+                  fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged",
+                              beam->delivery_type.text)};
     return out;
   }
   if (!rb.meterset_mu || !(*rb.meterset_mu > 0.0)) {
@@ -370,7 +370,7 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.options = options;
 
   for (const plan::FractionGroup& group : plan.fraction_groups) {
-    const bool beam_level = group.beam_dose_meaning != "FRACTION_LEVEL";
+    const bool beam_level = group.beam_dose_meaning != plan::BeamDoseMeaning::fraction_level;
     for (const plan::ReferencedBeam& rb : group.beams) {
       BeamCheck beam = check_one_beam(plan, group, rb, library, options);
       if (beam.calculation && !beam_level) {

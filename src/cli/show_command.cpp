@@ -21,14 +21,18 @@ struct ShowOptions {
 };
 
 std::string or_dash(const std::string& text) { return text.empty() ? "-" : text; }
+template <class Term>
+std::string or_dash(const plan::Coded<Term>& coded) {
+  return or_dash(coded.text);
+}
 
 std::string number_or_dash(const std::optional<double>& value, int decimals) {
   return value ? fmt::format("{:.{}f}", *value, decimals) : "-";
 }
 
 std::string jaws_text(const plan::ControlPoint& cp) {
-  auto pair = [&cp](const char* a, const char* b) -> std::string {
-    for (const char* type : {a, b}) {
+  auto pair = [&cp](plan::DeviceType a, plan::DeviceType b) -> std::string {
+    for (const plan::DeviceType type : {a, b}) {
       const auto* device = cp.device(type);
       if (device != nullptr && device->positions_mm.size() == 2) {
         return fmt::format("{:.1f}/{:.1f}", device->positions_mm[0], device->positions_mm[1]);
@@ -36,7 +40,8 @@ std::string jaws_text(const plan::ControlPoint& cp) {
     }
     return "-/-";
   };
-  return pair("X", "ASYMX") + " " + pair("Y", "ASYMY");
+  return pair(plan::DeviceType::x, plan::DeviceType::asymx) + " " +
+         pair(plan::DeviceType::y, plan::DeviceType::asymy);
 }
 
 const plan::ReferencedBeam* find_reference(const plan::Plan& plan, int beam_number, int& group_number) {
@@ -79,7 +84,7 @@ void print_summary(const plan::Plan& plan, std::ostream& out) {
     const plan::ReferencedBeam* ref = find_reference(plan, beam.number, group_number);
     int mlc_pairs = 0;
     for (const auto& d : beam.beam_limiting_devices) {
-      if (d.type == "MLCX" || d.type == "MLCY") mlc_pairs = d.pair_count;
+      if (d.type == plan::DeviceType::mlcx || d.type == plan::DeviceType::mlcy) mlc_pairs = d.pair_count;
     }
     std::string wedges;
     for (const auto& w : beam.wedges) wedges += (wedges.empty() ? "" : ",") + or_dash(w.id);

@@ -4,6 +4,7 @@
 // The first failure is recorded in a shared ErrorSink; later reads return empty values so a parser
 // can read a whole item and check the sink once. No DCMTK type leaves src/dicom.
 
+#include <countersign/plan/defined_terms.hpp>
 #include <countersign/util/error.hpp>
 
 #include <dcmtk/config/osconfig.h>
@@ -54,6 +55,11 @@ class ItemReader {
 
   // Text value with leading/trailing spaces removed; empty when absent (and an error if required).
   [[nodiscard]] std::string text(const DcmTagKey& tag, Need need) const;
+  // A code string with defined terms, parsed once here (the plan's text is kept beside the term).
+  template <class Term>
+  [[nodiscard]] plan::Coded<Term> term(const DcmTagKey& tag, Need need) const {
+    return plan::parse_term<Term>(text(tag, need));
+  }
   // One number (DS, IS, FL, FD, US, SS, UL, SL as stored), finite.
   [[nodiscard]] std::optional<double> number(const DcmTagKey& tag, Need need) const;
   // One integer (IS or binary integer VR).

@@ -40,12 +40,12 @@ std::optional<Finding> check_accessories(const plan::Beam& beam, const beamdata:
                      fmt::format("Wedge ID (300A,00D4) \"{}\" is not in the beam data of {} {}", w.id,
                                  data.id, data.radiation)};
     }
-    const bool plan_dynamic = w.type == "DYNAMIC";
+    const bool plan_dynamic = w.type == plan::WedgeType::dynamic;
     if (plan_dynamic != (wedge->kind == beamdata::WedgeKind::dynamic)) {
       return Finding{
           Reason::unknown_accessory,
           fmt::format("Wedge Type (300A,00D3) \"{}\" does not match the library's kind of wedge \"{}\"",
-                      w.type, w.id)};
+                      w.type.text, w.id)};
     }
   }
   std::string tray_id;
@@ -73,11 +73,11 @@ Reason reason_for_geometry_error(const Error& e) {
 }
 
 // Signed gantry (or other) rotation from a to b, following the stated direction when there is one.
-double rotation_step_deg(double from_deg, double to_deg, const std::string& direction) {
+double rotation_step_deg(double from_deg, double to_deg, plan::RotationDirection direction) {
   double step = std::fmod(to_deg - from_deg, 360.0);
-  if (direction == "CW") {
+  if (direction == plan::RotationDirection::cw) {
     if (step < 0.0) step += 360.0;
-  } else if (direction == "CC") {
+  } else if (direction == plan::RotationDirection::cc) {
     if (step > 0.0) step -= 360.0;
   } else {
     if (step > 180.0) step -= 360.0;
@@ -95,17 +95,17 @@ double wrap_deg(double angle_deg) {
 plan::ControlPoint interpolate(const plan::ControlPoint& a, const plan::ControlPoint& b, double t) {
   plan::ControlPoint c = a;
   if (a.gantry_deg && b.gantry_deg) {
-    c.gantry_deg =
-        wrap_deg(*a.gantry_deg + t * rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation));
+    c.gantry_deg = wrap_deg(*a.gantry_deg +
+                            t * rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation.value));
   }
   if (a.collimator_deg && b.collimator_deg) {
     c.collimator_deg =
         wrap_deg(*a.collimator_deg +
-                 t * rotation_step_deg(*a.collimator_deg, *b.collimator_deg, a.collimator_rotation));
+                 t * rotation_step_deg(*a.collimator_deg, *b.collimator_deg, a.collimator_rotation.value));
   }
   if (a.couch_deg && b.couch_deg) {
     c.couch_deg =
-        wrap_deg(*a.couch_deg + t * rotation_step_deg(*a.couch_deg, *b.couch_deg, a.couch_rotation));
+        wrap_deg(*a.couch_deg + t * rotation_step_deg(*a.couch_deg, *b.couch_deg, a.couch_rotation.value));
   }
   for (plan::DevicePositions& d : c.devices) {
     const plan::DevicePositions* other = b.device(d.type);
@@ -157,15 +157,15 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     return r;
   };
 
-  if (beam.radiation_type != "PHOTON") {
+  if (beam.radiation_type != plan::RadiationType::photon) {
     return fail({Reason::unsupported_radiation,
                  fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON beams are checked",
-                             beam.radiation_type)});
+                             beam.radiation_type.text)});
   }
-  if (!beam.primary_dosimeter_unit.empty() && beam.primary_dosimeter_unit != "MU") {
+  if (!beam.primary_dosimeter_unit.absent() && beam.primary_dosimeter_unit != plan::DosimeterUnit::mu) {
     return fail({Reason::unsupported_technique,
                  fmt::format("Primary Dosimeter Unit (300A,00B3) is \"{}\"; only MU is supported",
-                             beam.primary_dosimeter_unit)});
+                             beam.primary_dosimeter_unit.text)});
   }
   if (beam.control_points.empty())
     return fail(missing("Control Point Sequence (300A,0111)", "from the beam"));
@@ -175,7 +175,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
   r.meterset_mu = *referenced.meterset_mu;
 
   const beamdata::BeamMatch match =
-      library.match(beam.machine_name, beam.radiation_type, *cp0.nominal_energy_mv);
+      library.match(beam.machine_name, beam.radiation_type.text, *cp0.nominal_energy_mv);
   r.machine = match.machine;
   if (match.beam == nullptr) {
     Reason reason = Reason::unknown_energy;
@@ -185,7 +185,8 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
         {reason,
          fmt::format("Treatment Machine Name (300A,00B2) \"{}\", Radiation Type (300A,00C6) {}, Nominal "
                      "Beam Energy (300A,0114) {:g} MV: {}",
-                     beam.machine_name, beam.radiation_type, *cp0.nominal_energy_mv, match.explanation)});
+                     beam.machine_name, beam.radiation_type.text, *cp0.nominal_energy_mv,
+                     match.explanation)});
   }
   r.beam_data = match.beam;
   const beamdata::BeamData& data = *match.beam;
@@ -207,11 +208,11 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     return fail(missing("Patient Setup (300A,0180) referenced by Referenced Patient Setup Number (300C,006A)",
                         "from the plan"));
   }
-  r.patient_position = geometry::parse_patient_position(setup->patient_position);
+  r.patient_position = geometry::supported_patient_position(setup->patient_position.value);
   if (!r.patient_position) {
     return fail({Reason::unsupported_patient_position,
                  fmt::format("Patient Position (0018,5100) \"{}\" is not supported (HFS, HFP, FFS, FFP are)",
-                             setup->patient_position)});
+                             setup->patient_position.text)});
   }
 
   if (!cp0.gantry_deg) return fail(missing("Gantry Angle (300A,011E)", "at control point 0"));
@@ -312,15 +313,15 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
       r.method_reason = "fixed-SSD (PDD) form, chosen by the user";
       break;
     case MethodChoice::by_setup_technique:
-      if (setup->setup_technique == "FIXED_SSD") {
+      if (setup->setup_technique == plan::SetupTechnique::fixed_ssd) {
         r.method = Method::pdd;
         r.method_reason = "fixed-SSD (PDD) form: Setup Technique (300A,01B0) is FIXED_SSD";
       } else {
         r.method = Method::tmr;
         r.method_reason =
-            setup->setup_technique.empty()
+            setup->setup_technique.absent()
                 ? "isocentric (TMR) form: Setup Technique (300A,01B0) is absent"
-                : "isocentric (TMR) form: Setup Technique (300A,01B0) is " + setup->setup_technique;
+                : "isocentric (TMR) form: Setup Technique (300A,01B0) is " + setup->setup_technique.text;
       }
       break;
   }
@@ -351,7 +352,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
     const double weight = *b.cumulative_meterset_weight - *a.cumulative_meterset_weight;
     if (weight <= 1e-9 * final_weight) continue;
     const double gantry_step = (a.gantry_deg && b.gantry_deg)
-                                   ? rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation)
+                                   ? rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation.value)
                                    : 0.0;
     if (std::abs(gantry_step) > 1e-6) moving = true;
     const int steps =
@@ -371,7 +372,7 @@ BeamDose compute_beam_dose(const plan::Plan& plan, const plan::Beam& beam,
 
   if (r.features.modulated && !data.mlc_transmission) {
     const bool needs_transmission = std::any_of(parts.begin(), parts.end(), [](const PartPlan& p) {
-      return (p.interpolated ? *p.interpolated : *p.control_point).device("MLCX") != nullptr;
+      return (p.interpolated ? *p.interpolated : *p.control_point).device(plan::DeviceType::mlcx) != nullptr;
     });
     if (needs_transmission) {
       return fail({Reason::missing_beam_data,

@@ -125,7 +125,7 @@ TEST_F(Fixture, AsymmetricJaws) {
 
 TEST_F(Fixture, WedgeFromTheLibrary) {
   plan::Beam beam = static_beam(1, 0);
-  beam.wedges.push_back({1, "STANDARD", "W30", 30.0, std::nullopt, 0.0});
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), "W30", 30.0, std::nullopt, 0.0});
   const BeamDose wedged = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
   const BeamDose open = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}));
   ASSERT_FALSE(wedged.problem);
@@ -135,7 +135,7 @@ TEST_F(Fixture, WedgeFromTheLibrary) {
 
 TEST_F(Fixture, UnknownWedgeOrTrayIsUnknownAccessory) {
   plan::Beam beam = static_beam(1, 0);
-  beam.wedges.push_back({1, "STANDARD", "W99", 30.0, std::nullopt, 0.0});
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), "W99", 30.0, std::nullopt, 0.0});
   EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_accessory);
   plan::Beam tray = static_beam(1, 0);
   tray.blocks.push_back({1, "NO-SUCH-TRAY", "SHIELDING"});
@@ -161,10 +161,10 @@ TEST_F(Fixture, UnknownMachineEnergyAndRadiation) {
   for (plan::ControlPoint& cp : energy.control_points) cp.nominal_energy_mv = 18.0;
   EXPECT_EQ(run(make_plan({{energy, 100.0, 1.0, 100.0}})).problem->reason, Reason::unknown_energy);
   plan::Beam electron = static_beam(1, 0);
-  electron.radiation_type = "ELECTRON";
+  electron.radiation_type = plan::parse_term<plan::RadiationType>("ELECTRON");
   EXPECT_EQ(run(make_plan({{electron, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_radiation);
   plan::Beam minutes = static_beam(1, 0);
-  minutes.primary_dosimeter_unit = "MINUTE";
+  minutes.primary_dosimeter_unit = plan::parse_term<plan::DosimeterUnit>("MINUTE");
   EXPECT_EQ(run(make_plan({{minutes, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_technique);
 }
 
@@ -193,7 +193,7 @@ TEST_F(Fixture, MissingGantryAngle) {
 
 TEST_F(Fixture, MlcyIsUnsupportedGeometry) {
   plan::Beam beam = static_beam(1, 0);
-  beam.control_points[0].devices.push_back({"MLCY", {0.0, 0.0}});
+  beam.control_points[0].devices.push_back({plan::term(plan::DeviceType::mlcy), {0.0, 0.0}});
   EXPECT_EQ(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem->reason, Reason::unsupported_geometry);
 }
 
@@ -235,7 +235,7 @@ TEST_F(Fixture, MethodFollowsSetupTechniqueUnlessChosen) {
 // cover the point. Expected: 50 MU open + 50 MU x transmission 0.015 with the jaw field (hand).
 TEST_F(Fixture, StepAndShootSumsSegmentsWithTransmission) {
   plan::Beam beam = static_beam(1, 0);
-  plan::BeamLimitingDevice mlc{"MLCX", std::nullopt, 10, {}};
+  plan::BeamLimitingDevice mlc{plan::term(plan::DeviceType::mlcx), std::nullopt, 10, {}};
   for (int i = 0; i <= 10; ++i) mlc.leaf_boundaries_mm.push_back(-100.0 + 20.0 * i);
   beam.beam_limiting_devices.push_back(mlc);
   std::vector<double> open(20), closed(20);
@@ -246,7 +246,7 @@ TEST_F(Fixture, StepAndShootSumsSegmentsWithTransmission) {
     closed[10 + i] = 60.0;
   }
   plan::ControlPoint c0 = beam.control_points[0];
-  c0.devices.push_back({"MLCX", open});
+  c0.devices.push_back({plan::term(plan::DeviceType::mlcx), open});
   plan::ControlPoint c1 = c0;
   c1.index = 1;
   c1.cumulative_meterset_weight = 0.5;
@@ -275,9 +275,9 @@ TEST_F(Fixture, StepAndShootSumsSegmentsWithTransmission) {
 // static dose with the full meterset; 180 / 5 = 36 steps.
 TEST_F(Fixture, ArcIsSplitIntoGantrySteps) {
   plan::Beam beam = static_beam(1, 90);
-  beam.beam_type = "DYNAMIC";
+  beam.beam_type = plan::parse_term<plan::BeamType>("DYNAMIC");
   test_fixtures::set_ssd(beam, 900.0);
-  beam.control_points[0].gantry_rotation = "CW";
+  beam.control_points[0].gantry_rotation = plan::parse_term<plan::RotationDirection>("CW");
   beam.control_points[1].gantry_deg = 270.0;
   const BeamDose r = run(make_plan({{beam, 200.0, 1.0, std::nullopt}}));
   ASSERT_FALSE(r.problem) << r.problem->sentence;
@@ -372,10 +372,10 @@ TEST(ModulatedBeam, WithoutMlcTransmissionIsMissingBeamData) {
   beamdata::Library library = test_fixtures::test_library();
   library.machines.front().beams.front().mlc_transmission.reset();
   plan::Beam beam = test_fixtures::static_beam(1, 0);
-  plan::BeamLimitingDevice mlc{"MLCX", std::nullopt, 2, {-50.0, 0.0, 50.0}};
+  plan::BeamLimitingDevice mlc{plan::term(plan::DeviceType::mlcx), std::nullopt, 2, {-50.0, 0.0, 50.0}};
   beam.beam_limiting_devices.push_back(mlc);
   plan::ControlPoint c0 = beam.control_points[0];
-  c0.devices.push_back({"MLCX", {-50, -50, 50, 50}});
+  c0.devices.push_back({plan::term(plan::DeviceType::mlcx), {-50, -50, 50, 50}});
   plan::ControlPoint c1 = c0;
   c1.index = 1;
   c1.cumulative_meterset_weight = 0.5;

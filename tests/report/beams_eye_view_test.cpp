@@ -119,14 +119,16 @@ TEST(BeamsEyeView, MlcLeavesAreDrawnOnlyWhereTheyBlockInsideTheJaws) {
 
 TEST(BeamsEyeView, SweptOpeningOfStepAndShootIsTheUnionOfItsSegments) {
   plan::Beam beam;
-  beam.beam_limiting_devices = {{"ASYMX", std::nullopt, 1, {}},
-                                {"ASYMY", std::nullopt, 1, {}},
-                                {"MLCX", std::nullopt, 2, {-20.0, 0.0, 20.0}}};
+  beam.beam_limiting_devices = {{plan::term(plan::DeviceType::asymx), std::nullopt, 1, {}},
+                                {plan::term(plan::DeviceType::asymy), std::nullopt, 1, {}},
+                                {plan::term(plan::DeviceType::mlcx), std::nullopt, 2, {-20.0, 0.0, 20.0}}};
   const auto cp = [](int index, double weight, std::vector<double> leaves) {
     plan::ControlPoint p;
     p.index = index;
     p.cumulative_meterset_weight = weight;
-    p.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-20.0, 20.0}}, {"MLCX", std::move(leaves)}};
+    p.devices = {{plan::term(plan::DeviceType::asymx), {-50.0, 50.0}},
+                 {plan::term(plan::DeviceType::asymy), {-20.0, 20.0}},
+                 {plan::term(plan::DeviceType::mlcx), std::move(leaves)}};
     return p;
   };
   // Segment 1: pairs open -30..-10 and -30..-10; segment 2: 10..30 and 10..30 (disjoint).
@@ -145,10 +147,12 @@ TEST(BeamsEyeView, SweptOpeningOfStepAndShootIsTheUnionOfItsSegments) {
 
 TEST(BeamsEyeView, SweptOpeningOfMovingLeavesCoversTheirPath) {
   plan::Beam beam;
-  beam.beam_limiting_devices = {{"MLCX", std::nullopt, 1, {-5.0, 5.0}}};
+  beam.beam_limiting_devices = {{plan::term(plan::DeviceType::mlcx), std::nullopt, 1, {-5.0, 5.0}}};
   plan::ControlPoint a;
   a.cumulative_meterset_weight = 0.0;
-  a.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-5.0, 5.0}}, {"MLCX", {-40.0, -30.0}}};
+  a.devices = {{plan::term(plan::DeviceType::asymx), {-50.0, 50.0}},
+               {plan::term(plan::DeviceType::asymy), {-5.0, 5.0}},
+               {plan::term(plan::DeviceType::mlcx), {-40.0, -30.0}}};
   plan::ControlPoint b = a;
   b.index = 1;
   b.cumulative_meterset_weight = 1.0;
