@@ -197,9 +197,9 @@ Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check,
                                           const std::filesystem::path& chromium, const HtmlOptions& options) {
   auto work = TemporaryFolder::create("countersign-html-");
   if (!work) return pdf_error(pdf_file, "cannot create a temporary folder for the HTML record");
-  auto html = write_html(check, work->path() / "record.html", options);
-  if (!html) return html.error();
-  return print_pdf(*html, pdf_file, chromium);
+  std::filesystem::path html;
+  TRY_ASSIGN(html, write_html(check, work->path() / "record.html", options));
+  return print_pdf(html, pdf_file, chromium);
 }
 
 }  // namespace countersign::report

@@ -282,7 +282,7 @@ IntakeResult PlanIntake::take(const fs::path& file) {
     processed.emplace(processor_(file, std::span<const std::byte>{read.bytes}));
   } catch (const std::exception& e) {
     // A defect in the checking code must not stop the service; the file is kept for investigation.
-    processed.emplace(Error{ErrorKind::inconsistent, file.string(), "", "",
+    processed.emplace(Error{ErrorKind::internal, file.string(), "", "",
                             std::string{"internal error while checking: "} + e.what()});
   }
   if (!processed->has_value()) {
