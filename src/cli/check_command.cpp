@@ -30,10 +30,7 @@ namespace fs = std::filesystem;
 
 struct CheckCommandOptions {
   std::vector<std::string> paths;
-  std::string beamdata;
-  std::string policy;
-  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
-  engine::DepthChoice depth = engine::DepthChoice::planned;
+  CheckFlags flags;
   bool json = false;
   std::string html;  // --html FILE: the printable record
   std::string pdf;   // --pdf FILE: the same record as PDF (needs Chromium)
@@ -48,17 +45,17 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
-  auto configured = check_options_from(options.method, options.depth, options.policy);
+  auto configured = check_options_from(options.flags);
   if (!configured) {
     io.err << "countersign check: " << configured.error().message() << "\n";
-    return ExitCode::bad_input;
+    return exit_code_for(configured.error());
   }
   const check::CheckOptions& check_options = configured.value();
-  const fs::path library_dir = beamdata_folder(options.beamdata);
+  const fs::path library_dir = beamdata_folder(options.flags.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign check: " << library.error().message() << "\n";
-    return ExitCode::bad_input;
+    return exit_code_for(library.error());
   }
 
   // Fail before checking when a PDF is asked for and cannot be made.
@@ -149,13 +146,7 @@ void add_check_command(CLI::App& app, CommandContext& context) {
       "checked; "
       "3: bad input or usage; 4: a record asked for with --html or --pdf could not be written.");
   command->add_option("plans", options->paths, "RT Plan files, or folders of .dcm files")->required();
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
-  add_method_option(*command, options->method,
-                    "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd");
-  add_depth_option(*command, options->depth,
-                   "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
-                   "(the plan's radiological depth)");
+  add_check_flags(*command, options->flags);
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

@@ -1,7 +1,5 @@
 #include "service_startup.hpp"
 
-#include "shared_options.hpp"
-
 #include <countersign/service/check_processor.hpp>
 
 #include <chrono>
@@ -11,17 +9,18 @@ namespace countersign::cli {
 namespace fs = std::filesystem;
 
 Expected<OpenedService> open_checking_service(service::ServiceSettings settings, double settle_s,
-                                              const std::string& beamdata_option,
-                                              const std::string& policy_option, service::ServiceLog& log) {
+                                              const CheckFlags& flags, service::ServiceLog& log) {
   OpenedService opened;
-  opened.beamdata_dir = beamdata_folder(beamdata_option);
-  auto processor = service::load_check_processor(
-      opened.beamdata_dir, policy_option.empty() ? std::nullopt : std::optional<fs::path>{policy_option});
-  if (!processor) return processor.error();
+  opened.beamdata_dir = beamdata_folder(flags.beamdata);
+  check::CheckOptions options;
+  TRY_ASSIGN(options, check_options_from(flags));
+  opened.settings_line = "beam data " + opened.beamdata_dir.string() + ", method " +
+                         std::string{flag_text(flags.method)} + ", depth " +
+                         std::string{engine::to_code(flags.depth)} + ", policy " + options.policy.source;
+  service::PlanProcessor processor;
+  TRY_ASSIGN(processor, service::load_check_processor(opened.beamdata_dir, std::move(options)));
   settings.intake.settle_time = std::chrono::milliseconds{static_cast<long long>(settle_s * 1000.0)};
-  auto service = service::CheckingService::open(settings, std::move(processor.value()), log);
-  if (!service) return service.error();
-  opened.service = std::move(service.value());
+  TRY_ASSIGN(opened.service, service::CheckingService::open(settings, std::move(processor), log));
   return opened;
 }
 

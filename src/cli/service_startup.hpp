@@ -8,6 +8,8 @@
 #include <countersign/service/service_log.hpp>
 #include <countersign/util/error.hpp>
 
+#include "shared_options.hpp"
+
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -17,14 +19,14 @@ namespace countersign::cli {
 
 struct OpenedService {
   std::filesystem::path beamdata_dir;  // the library in use, for the log
+  std::string settings_line;           // "beam data DIR, method auto, depth planned, policy ...", for the log
   std::unique_ptr<service::CheckingService> service;
 };
 
-// settle_s: how long an unreadable inbox file must stay unchanged before it is quarantined.
+// settle_s: how long an unreadable inbox file must stay unchanged before it is quarantined. The
+// check options come from the same flags, built the same way, as `check` uses.
 [[nodiscard]] Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
-                                                            double settle_s,
-                                                            const std::string& beamdata_option,
-                                                            const std::string& policy_option,
+                                                            double settle_s, const CheckFlags& flags,
                                                             service::ServiceLog& log);
 
 // "stopped on signal 15: 3 checked, 1 already checked, 0 quarantined, 0 failed attempts".

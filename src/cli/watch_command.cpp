@@ -24,8 +24,7 @@ struct WatchCommandOptions {
   std::string inbox;
   std::string results;
   std::string quarantine;
-  std::string beamdata;
-  std::string policy;
+  CheckFlags flags;
   double settle_s = 10.0;
   bool once = false;
 };
@@ -40,12 +39,12 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     settings.inbox = options.inbox;
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
-    auto opened = open_checking_service(settings, options.settle_s, options.beamdata, options.policy, log);
+    auto opened = open_checking_service(settings, options.settle_s, options.flags, log);
     if (!opened) {
       io.err << "countersign watch: " << opened.error().message() << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(opened.error());
     }
-    log.line("beam data " + opened->beamdata_dir.string() + "; " +
+    log.line(opened->settings_line + "; " +
              (options.once ? "checking what is there, then stopping" : "stop with SIGTERM or SIGINT"));
 
     const int stop_fds[] = {signals.fd()};
@@ -53,7 +52,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
         opened->service->run(options.once ? service::RunUntil::idle : service::RunUntil::stopped, stop_fds);
     if (!summary) {
       io.err << "countersign watch: " << summary.error().message() << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(summary.error());
     }
     log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
@@ -79,8 +78,7 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
   command->add_option("--quarantine", options->quarantine,
                       "folder for bad files (default: RESULTS/quarantine)");
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
+  add_check_flags(*command, options->flags);
   command
       ->add_option("--settle-seconds", options->settle_s,
                    "a file that does not read as a plan is retried until it has been unchanged this long, "

@@ -81,7 +81,7 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
   return [library = std::move(library), options = std::move(options)](
              const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
-    if (!plan) return plan.error();
+    if (!plan) return std::move(plan).error();
     const check::PlanCheck check = check::check_plan(plan.value(), *library, options);
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
@@ -94,16 +94,10 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
 }
 
 Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
-                                             const std::optional<std::filesystem::path>& policy_file) {
-  check::CheckOptions options;
-  if (policy_file) {
-    auto policy = check::load_policy(*policy_file);
-    if (!policy) return policy.error();
-    options.policy = std::move(policy.value());
-  }
+                                             check::CheckOptions options) {
   auto library = beamdata::load_library(beamdata_dir);
-  if (!library) return library.error();
-  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library.value())),
+  if (!library) return std::move(library).error();
+  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library).value()),
                               std::move(options));
 }
 
