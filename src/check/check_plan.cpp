@@ -1,4 +1,5 @@
 #include <countersign/check/check_plan.hpp>
+#include <countersign/util/assert.hpp>
 #include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
@@ -7,9 +8,6 @@
 #include <cmath>
 
 namespace countersign::check {
-
-using engine::Finding;
-using engine::Reason;
 
 std::string_view to_code(Status status) {
   switch (status) {
@@ -73,7 +71,7 @@ void set_not_checked(BeamCheck& beam, Reason reason, std::string sentence) {
 }
 
 std::string describe_extrapolation(const engine::Factor& factor) {
-  const beamdata::Lookup& lookup = *factor.lookup;
+  const beamdata::Lookup& lookup = util::checked(factor.lookup);  // an extrapolated factor has a lookup
   std::string where;
   for (const beamdata::AxisBracket& axis : lookup.axes) {
     if (!axis.extrapolated) continue;
@@ -157,7 +155,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   if (!beam.calculation) return;
   const engine::BeamDose& c = *beam.calculation;
   if (c.problem) {
-    set_not_checked(beam, c.problem->reason, c.problem->sentence);
+    Finding finding = finding_for(*c.problem);
+    set_not_checked(beam, finding.reason, std::move(finding.sentence));
     return;
   }
   beam.computed_dose_gy = c.computed_dose_gy;
@@ -177,7 +176,7 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
-  const double tolerance = *beam.tolerance_percent;
+  const double tolerance = util::checked(beam.tolerance_percent);
   const double deviation = *beam.deviation_percent;
   if (std::abs(deviation) <= tolerance) {
     beam.status = Status::within_tolerance;
@@ -250,6 +249,7 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
     return out;
   }
   out.calculation = engine::compute_beam_dose(plan, *beam, rb, *point, library, options.engine);
+  out.words = describe_calculation(*out.calculation);
   return out;
 }
 
@@ -324,9 +324,9 @@ void total_dose_references(const plan::Plan& plan, const beamdata::Library& libr
             const engine::DosePoint point{*ref.point_mm, engine::DosePointSource::dose_reference, ref.number};
             fresh = engine::compute_beam_dose(plan, *beam, rb, point, library, options.engine);
           }
-          const engine::BeamDose& computed = fresh ? *fresh : *own->calculation;
+          const engine::BeamDose& computed = fresh ? *fresh : util::checked(own->calculation);
           if (computed.problem) {
-            part.problem = computed.problem;
+            part.problem = finding_for(*computed.problem);
           } else if (const engine::Factor* f = computed.first_extrapolated()) {
             part.problem = Finding{Reason::table_extrapolated, describe_extrapolation(*f)};
           } else {

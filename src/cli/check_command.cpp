@@ -96,7 +96,6 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
     exit_code = worst(exit_code, result.exit_code());
     report::HtmlOptions record_options;
-    record_options.plan = &plan.value();
     if (!options.html.empty()) {
       auto written =
           report::write_html(result, record_file(options.html, file, files.size()), record_options);

@@ -96,7 +96,7 @@ json segment_json(const engine::Segment& s) {
               {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)}};
 }
 
-void add_calculation(json& j, const engine::BeamDose& c) {
+void add_calculation(json& j, const engine::BeamDose& c, const check::CalculationWords& words) {
   j["machine"] = c.machine != nullptr ? json(c.machine->name) : json(nullptr);
   j["beam_data_id"] = c.beam_data != nullptr ? json(c.beam_data->id) : json(nullptr);
   j["energy_mv"] = c.beam_data != nullptr ? json(c.beam_data->energy_mv) : json(nullptr);
@@ -107,7 +107,7 @@ void add_calculation(json& j, const engine::BeamDose& c) {
                          {"z_mm", c.dose_point.point_mm[2]}};
   if (!c.dose_computed) return;
   j["method"] = std::string(engine::to_code(c.method));
-  j["method_reason"] = c.method_reason;
+  j["method_reason"] = words.method_reason;
   j["patient_position"] =
       c.patient_position ? json(std::string(geometry::to_code(*c.patient_position))) : json(nullptr);
   j["gantry_deg"] = c.angles.gantry_deg;
@@ -116,7 +116,7 @@ void add_calculation(json& j, const engine::BeamDose& c) {
   j["depth_cm"] = util::mm_to_cm(c.depth.depth_mm);
   j["depth_source"] = std::string(engine::to_code(c.depth.source));
   j["depth_kind"] = std::string(engine::to_code(c.depth.kind));
-  j["depth_description"] = c.depth.description;
+  j["depth_description"] = words.depth_description;
   j["plan_depth_cm"] = optional_mm_to_cm(c.depth.plan_depth_mm);
   j["plan_equivalent_depth_cm"] = optional_mm_to_cm(c.depth.plan_equivalent_depth_mm);
   j["spd_minus_ssd_cm"] = optional_mm_to_cm(c.depth.spd_minus_ssd_mm);
@@ -140,7 +140,7 @@ void add_calculation(json& j, const engine::BeamDose& c) {
     j["provenance"] = provenance_json(c.dose);
     j["segments"] = json::array();
   }
-  j["approximations"] = c.approximations;
+  j["approximations"] = words.approximations;
 }
 
 }  // namespace
@@ -169,7 +169,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"beam_number", b.beam_number},
          {"beam_name", b.beam_name},
          {"status", std::string(check::to_code(b.status))},
-         {"reason", std::string(engine::reason_code(b.reason.reason))},
+         {"reason", std::string(check::reason_code(b.reason.reason))},
          {"explanation", b.reason.sentence},
          {"planned_dose_gy", optional_json(b.planned_dose_gy)},
          {"computed_dose_gy", optional_json(b.computed_dose_gy)},
@@ -198,7 +198,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
                           "segments",         "approximations"}) {
     j[key] = nullptr;
   }
-  if (b.calculation) add_calculation(j, *b.calculation);
+  if (b.calculation) add_calculation(j, *b.calculation, b.words);
   return j;
 }
 
@@ -214,7 +214,7 @@ json check_to_json(const check::PlanCheck& c) {
           {"coefficient", p.coefficient},
           {"planned_dose_gy", p.planned_dose_gy},
           {"computed_dose_gy", optional_json(p.computed_dose_gy)},
-          {"reason", p.problem ? json(std::string(engine::reason_code(p.problem->reason))) : json(nullptr)},
+          {"reason", p.problem ? json(std::string(check::reason_code(p.problem->reason))) : json(nullptr)},
           {"explanation", p.problem ? json(p.problem->sentence) : json(nullptr)}});
     }
     references.push_back(json{{"fraction_group_number", r.fraction_group_number},
@@ -247,7 +247,7 @@ json check_to_json(const check::PlanCheck& c) {
               {"plan_label", c.plan_label},
               {"approval_status", c.approval_status},
               {"status", std::string(check::to_code(c.status))},
-              {"reason", std::string(engine::reason_code(c.reason.reason))},
+              {"reason", std::string(check::reason_code(c.reason.reason))},
               {"explanation", c.reason.sentence},
               {"exit_code", static_cast<int>(c.exit_code())},
               {"beams", std::move(beams)},

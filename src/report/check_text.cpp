@@ -47,13 +47,13 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   bool header = false;
   for (const check::BeamCheck& b : c.beams) {
     if (b.status == check::Status::within_tolerance &&
-        b.reason.reason == engine::Reason::deviation_within_tolerance) {
+        b.reason.reason == check::Reason::deviation_within_tolerance) {
       continue;
     }
     if (!header) out << "\n";
     header = true;
     out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, b.beam_name, check::to_code(b.status),
-                       engine::reason_code(b.reason.reason), b.reason.sentence);
+                       check::reason_code(b.reason.reason), b.reason.sentence);
   }
   if (!c.dose_references.empty()) {
     out << "\nDose references (sum of contributions):\n";
@@ -64,7 +64,7 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
                          r.note.empty() ? "" : " (" + r.note + ")");
     }
   }
-  out << fmt::format("\nPlan: {} ({}): {}\n", check::to_code(c.status), engine::reason_code(c.reason.reason),
+  out << fmt::format("\nPlan: {} ({}): {}\n", check::to_code(c.status), check::reason_code(c.reason.reason),
                      c.reason.sentence);
 }
 

@@ -66,7 +66,7 @@ json formalism_json(const FormalismDose& f) {
           {"first_part_factors", factors_json(f.first_part)}};
 }
 
-json geometry_json(const engine::BeamDose& c) {
+json geometry_json(const engine::BeamDose& c, const check::CalculationWords& words) {
   json g;
   g["patient_position"] = c.patient_position ? json(geometry::to_code(*c.patient_position)) : json(nullptr);
   if (c.patient_position) {
@@ -93,7 +93,7 @@ json geometry_json(const engine::BeamDose& c) {
   g["depth_mm"] = c.depth.depth_mm;
   g["depth_kind"] = engine::to_code(c.depth.kind);
   g["depth_source"] = engine::to_code(c.depth.source);
-  g["depth_description"] = c.depth.description;
+  g["depth_description"] = words.depth_description;
   g["plan_depth_mm"] = optional_json(c.depth.plan_depth_mm);
   g["plan_equivalent_depth_mm"] = optional_json(c.depth.plan_equivalent_depth_mm);
   g["spd_minus_ssd_mm"] = optional_json(c.depth.spd_minus_ssd_mm);
@@ -148,7 +148,7 @@ json sensitivity_json(const BeamExplanation& e) {
                        {"search_min_change_cm", r.search_min_change_cm},
                        {"search_max_change_cm", r.search_max_change_cm},
                        {"extrapolated", r.extrapolated},
-                       {"sentence", r.sentence}});
+                       {"sentence", reconciliation_sentence(r)}});
   }
   // If a single factor alone were wrong: the value it would need (the calculation is a product).
   json needed = json::array();
@@ -204,7 +204,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
                {"name", beam.beam_name},
                {"fraction_group_number", beam.fraction_group_number}};
   j["status"] = check::to_code(beam.status);
-  j["reason"] = {{"code", engine::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
+  j["reason"] = {{"code", check::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
   j["meterset_mu"] = optional_json(beam.meterset_mu);
   j["planned_dose_gy"] = optional_json(beam.planned_dose_gy);
   j["computed_dose_gy"] = optional_json(beam.computed_dose_gy);
@@ -216,14 +216,15 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["tolerance_policy"] = check.options.policy.source;
 
   const engine::BeamDose* c = beam.calculation ? &*beam.calculation : nullptr;
+  const auto& problem = beam.words.problem;
   j["calculation_problem"] =
-      c != nullptr && c->problem
-          ? json({{"code", engine::reason_code(c->problem->reason)}, {"sentence", c->problem->sentence}})
+      c != nullptr && problem
+          ? json({{"code", check::reason_code(problem->reason)}, {"sentence", problem->sentence}})
           : json(nullptr);
   j["beam_data"] = c != nullptr ? beam_data_json(check, *c) : json(nullptr);
-  j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c) : json(nullptr);
+  j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c, beam.words) : json(nullptr);
   if (c != nullptr && c->dose_computed) {
-    j["method"] = {{"used", engine::to_code(c->method)}, {"reason", c->method_reason}};
+    j["method"] = {{"used", engine::to_code(c->method)}, {"reason", beam.words.method_reason}};
     j["factors"] = factors_json(c->dose);
     j["dose_per_mu_cgy"] = c->dose.dose_per_mu_cgy;
     j["parts"] = parts_json(*c);
@@ -241,7 +242,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
     j["formalisms"] = nullptr;
   }
   j["sensitivity"] = sensitivity_json(e);
-  j["approximations"] = c != nullptr ? json(c->approximations) : json::array();
+  j["approximations"] = c != nullptr ? json(beam.words.approximations) : json::array();
   j["caution"] = caution_text();
   return j;
 }

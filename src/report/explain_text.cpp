@@ -77,7 +77,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     return out;
   }
   const engine::BeamDose& c = *beam.calculation;
-  if (c.problem) out += fmt::format("  calculation stopped: {}\n", c.problem->sentence);
+  const check::CalculationWords& words = beam.words;
+  if (words.problem) out += fmt::format("  calculation stopped: {}\n", words.problem->sentence);
 
   out += "\nBeam data\n";
   out += fmt::format("  library {}  SHA-256 {}\n", check.beamdata_root, check.beamdata_sha256);
@@ -113,7 +114,7 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
         fmt::format("  point in collimator coordinates ({:.1f}, {:.1f}, {:.1f}) mm\n", p.x(), p.y(), p.z());
     out += fmt::format("  SPD {:.1f} mm, ray length {:.1f} mm, SSD {}\n", c.point.spd_mm,
                        c.point.ray_length_mm, opt(c.ssd_mm, 1, " mm"));
-    out += fmt::format("  depth {:.1f} mm: {}\n", c.depth.depth_mm, c.depth.description);
+    out += fmt::format("  depth {:.1f} mm: {}\n", c.depth.depth_mm, words.depth_description);
     out += fmt::format("    plan depth {}, plan equivalent depth {}, SPD - SSD {}\n",
                        opt(c.depth.plan_depth_mm, 1, " mm"), opt(c.depth.plan_equivalent_depth_mm, 1, " mm"),
                        opt(c.depth.spd_minus_ssd_mm, 1, " mm"));
@@ -138,7 +139,7 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
   }
 
   if (c.dose_computed) {
-    out += fmt::format("\nFactors ({}; {})\n", engine::to_code(c.method), c.method_reason);
+    out += fmt::format("\nFactors ({}; {})\n", engine::to_code(c.method), words.method_reason);
     if (c.segments.size() > 1) out += "  (first part of the beam; every part is listed below)\n";
     factor_lines(out, c.dose);
     out += fmt::format("    x {:.2f} MU = {:.3f} cGy for the beam\n", c.meterset_mu,
@@ -201,7 +202,7 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
           *beam.meterset_mu, *beam.independent_mu);
     }
     out += "  each change alone, every other input as calculated:\n";
-    for (const auto& r : s.changes) out += fmt::format("  - {}\n", r.sentence);
+    for (const auto& r : s.changes) out += fmt::format("  - {}\n", reconciliation_sentence(r));
     if (ratio > 0.0 && !e.parts.empty() && e.tmr && e.pdd) {
       const engine::PointDose& used =
           e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
@@ -214,9 +215,9 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     }
   }
 
-  if (!c.approximations.empty()) {
+  if (!words.approximations.empty()) {
     out += "\nApproximations\n";
-    for (const auto& a : c.approximations) out += "  - " + a + "\n";
+    for (const auto& a : words.approximations) out += "  - " + a + "\n";
   }
   out += fmt::format("\n{}\n", caution_text());
   return out;

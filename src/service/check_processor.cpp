@@ -1,8 +1,8 @@
 #include <countersign/service/check_processor.hpp>
 
+#include <countersign/check/reason.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/engine/point_dose.hpp>
-#include <countersign/engine/reason.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/html_report.hpp>
 
@@ -69,7 +69,7 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
       beam.deviation_percent = beam_check.deviation_percent;
       beam.tolerance_percent = beam_check.tolerance_percent;
     } else {
-      beam.reason = std::string{engine::reason_code(beam_check.reason.reason)};
+      beam.reason = std::string{check::reason_code(beam_check.reason.reason)};
     }
     outcome.beams.push_back(std::move(beam));
   }
@@ -86,9 +86,7 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
         report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())).dump(2) + "\n";
-    report::HtmlOptions html;
-    html.plan = &plan.value();
-    outcome.html_text = report::html_report(check, html);
+    outcome.html_text = report::html_report(check);
     return outcome;
   };
 }

@@ -10,7 +10,6 @@
 namespace countersign::check {
 namespace {
 
-using engine::Reason;
 using test_fixtures::BeamSpec;
 using test_fixtures::make_plan;
 using test_fixtures::static_beam;

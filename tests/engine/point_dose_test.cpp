@@ -107,16 +107,17 @@ TEST(PointDose, ExtendedSsdUsesMayneordAndInverseSquare) {
   EXPECT_NEAR(d.dose_per_mu_cgy, 1.0 * 1.0 * sp * 0.668 * 1.025933 * (101.5 / 121.5) * (101.5 / 121.5), 1e-6);
 }
 
+// Hand calculation: the isocentric case above, 1.000 · 1.020 · 1.010 · 0.800 · (101.5/100)², times the
+// wedge factor 0.700, the tray factor 0.970 and a transmission of 0.015 (TG-71: each multiplies).
 TEST(PointDose, WedgeTrayAndTransmissionMultiply) {
   const beamdata::BeamData b = hand_beam();
   DoseInputs in = isocentric_15x15_at_10cm();
-  const double open = compute_point_dose(b, in).dose_per_mu_cgy;
   in.wedge = b.wedge("W30");
   in.tray = b.tray("TRAY-T");
   in.transmission = 0.015;
   const PointDose d = compute_point_dose(b, in);
   EXPECT_EQ(d.factors.wedge.basis, FactorBasis::manifest_constant);
-  EXPECT_NEAR(d.dose_per_mu_cgy, open * 0.700 * 0.970 * 0.015, 1e-12);
+  EXPECT_NEAR(d.dose_per_mu_cgy, 1.020 * 1.010 * 0.800 * 1.015 * 1.015 * 0.700 * 0.970 * 0.015, 1e-12);
 }
 
 TEST(PointDose, WedgeFactorTableIsLookedUp) {

@@ -127,8 +127,6 @@ TEST(Sensitivity, SaysWhenNoChangeInRangeReconciles) {
   ASSERT_FALSE(s.changes[0].change_cm);
   EXPECT_NEAR(s.changes[0].search_min_change_cm, -9.9, 1e-12);
   EXPECT_NEAR(s.changes[0].search_max_change_cm, 10.0, 1e-12);
-  EXPECT_NE(s.changes[0].sentence.find("no depth change between -9.90 cm and +10.00 cm"), std::string::npos)
-      << s.changes[0].sentence;
 }
 
 TEST(Sensitivity, AgreeingDosesNeedNoChange) {
@@ -164,7 +162,6 @@ TEST(Sensitivity, MarksAReconcilingValueOutsideTheTables) {
   EXPECT_NEAR(10.0 + *s.changes[0].change_cm, 31.597794, 1e-5);
   EXPECT_GT(10.0 + *s.changes[0].change_cm, 30.0);
   EXPECT_TRUE(s.changes[0].extrapolated);
-  EXPECT_NE(s.changes[0].sentence.find("outside the beam-data tables"), std::string::npos);
 }
 
 }  // namespace

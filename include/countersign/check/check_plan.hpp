@@ -11,9 +11,10 @@
 // not_checked (with a reason) or outside_tolerance. Setup beams and beams without MU are skipped.
 
 #include <countersign/beamdata/library.hpp>
+#include <countersign/check/calculation_words.hpp>
+#include <countersign/check/reason.hpp>
 #include <countersign/check/tolerance_policy.hpp>
 #include <countersign/engine/beam_dose.hpp>
-#include <countersign/engine/reason.hpp>
 #include <countersign/plan/plan.hpp>
 #include <countersign/util/exit_code.hpp>
 
@@ -37,7 +38,7 @@ struct BeamCheck {
   int beam_number = 0;
   std::string beam_name;
   Status status = Status::not_checked;
-  engine::Finding reason;  // code and sentence, for every status
+  Finding reason;  // code and sentence, for every status
   std::optional<double> meterset_mu;
   std::optional<double> planned_dose_gy;    // Beam Dose (300A,0084)
   std::optional<double> computed_dose_gy;   // set whenever the engine computed a dose
@@ -48,6 +49,7 @@ struct BeamCheck {
   Medium medium = Medium::homogeneous;
   std::optional<double> point_total_planned_dose_gy;  // all beams of the fraction group at this point
   std::optional<engine::BeamDose> calculation;        // absent when no calculation was attempted
+  CalculationWords words;  // the calculation's sentences (method, depth, approximations), for reports
 };
 
 // One beam's part of a dose reference total.
@@ -56,7 +58,7 @@ struct Contribution {
   double coefficient = 0.0;                // final Cumulative Dose Reference Coefficient (300A,010C)
   double planned_dose_gy = 0.0;            // Beam Dose x coefficient
   std::optional<double> computed_dose_gy;  // this beam's computed dose at the reference point
-  std::optional<engine::Finding> problem;  // why it could not be computed
+  std::optional<Finding> problem;          // why it could not be computed
 };
 
 struct DoseReferenceCheck {
@@ -79,7 +81,7 @@ struct PlanCheck {
   std::string plan_label;
   std::string approval_status;
   Status status = Status::not_checked;
-  engine::Finding reason;
+  Finding reason;
   std::vector<BeamCheck> beams;
   std::vector<DoseReferenceCheck> dose_references;
   std::string beamdata_root;

@@ -16,8 +16,7 @@
 namespace countersign::report {
 
 struct HtmlOptions {
-  std::string generated_at;          // date and time printed in the header; empty: now, local time
-  const plan::Plan* plan = nullptr;  // optional: gives modulated beams their swept opening in the drawing
+  std::string generated_at;  // date and time printed in the header; empty: now, local time
 };
 
 // The page as a string (UTF-8).
