@@ -42,6 +42,8 @@ std::string kind_name(ErrorKind kind) {
       return "bad_configuration";
     case ErrorKind::usage:
       return "usage";
+    case ErrorKind::internal:
+      return "internal";
   }
   return "?";
 }
