@@ -1,7 +1,7 @@
 // `countersign check PLAN.dcm|FOLDER ...`: every beam of each plan recomputed from the beam-data
 // library and judged against the planned dose; a table on the terminal or JSON (--json).
-// The bundled library is the source tree's beamdata/ (its path is compiled in as
-// COUNTERSIGN_BUNDLED_BEAMDATA); --beamdata names another.
+// The bundled demo library is share/countersign/beamdata beside the program (bundled_data.hpp);
+// --beamdata names another.
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/check_plan.hpp>
@@ -47,6 +47,8 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
 
 // What one run of the command shares: the options, the library, where records go, the results.
 struct CheckRun {
+  CheckRun(const CheckCommandOptions& command_options, Io& streams) : options(command_options), io(streams) {}
+
   const CheckCommandOptions& options;
   Io& io;
   check::CheckOptions check_options;

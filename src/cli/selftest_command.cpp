@@ -7,6 +7,7 @@
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
 
+#include "bundled_data.hpp"
 #include "shared_options.hpp"
 
 #include <fmt/format.h>

@@ -1,11 +1,10 @@
 #include "shared_options.hpp"
 
+#include "bundled_data.hpp"
+
 #include <algorithm>
 #include <map>
 
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -30,7 +29,7 @@ std::vector<fs::path> plan_files(const std::vector<std::string>& paths) {
 }
 
 fs::path beamdata_folder(const std::string& option_value) {
-  return option_value.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{option_value};
+  return option_value.empty() ? bundled_beamdata() : fs::path{option_value};
 }
 
 Expected<check::CheckOptions> check_options_from(const CheckFlags& flags) {
@@ -41,14 +40,10 @@ Expected<check::CheckOptions> check_options_from(const CheckFlags& flags) {
   return options;
 }
 
-fs::path bundled_demo_plans() {
-  return fs::path{COUNTERSIGN_BUNDLED_BEAMDATA}.parent_path() / "testdata" / "plans";
-}
-
 void add_beamdata_option(CLI::App& command, std::string& value) {
   command.add_option(
       "--beamdata", value,
-      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+      "beam-data library folder (default: the bundled demo library, " + bundled_beamdata().string() + ")");
 }
 
 std::string_view flag_text(engine::MethodChoice method) {

@@ -17,11 +17,8 @@ namespace countersign::cli {
 // The files named, folders expanded to their .dcm files (sorted, so output order is stable).
 [[nodiscard]] std::vector<std::filesystem::path> plan_files(const std::vector<std::string>& paths);
 
-// The library folder to use: the option's value, else the bundled demo library.
+// The library folder to use: the option's value, else the bundled demo library (bundled_data.hpp).
 [[nodiscard]] std::filesystem::path beamdata_folder(const std::string& option_value);
-
-// The bundled demo plans (testdata/plans beside the bundled beamdata/).
-[[nodiscard]] std::filesystem::path bundled_demo_plans();
 
 // What every command that checks plans (check, explain, watch, receive) takes on its command line.
 struct CheckFlags {

@@ -1,0 +1,21 @@
+#include "bundled_data.hpp"
+
+#include <system_error>
+
+namespace countersign::cli {
+
+namespace fs = std::filesystem;
+
+fs::path bundled_data_folder() {
+  std::error_code ec;
+  const fs::path program = fs::read_symlink("/proc/self/exe", ec);
+  // Without /proc (not Linux), relative to the working folder: share/countersign.
+  const fs::path bin = ec ? fs::path{"bin"} : program.parent_path();
+  return (bin.parent_path() / "share" / "countersign").lexically_normal();
+}
+
+fs::path bundled_beamdata() { return bundled_data_folder() / "beamdata"; }
+
+fs::path bundled_demo_plans() { return bundled_data_folder() / "demo-plans"; }
+
+}  // namespace countersign::cli
