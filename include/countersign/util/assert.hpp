@@ -6,7 +6,6 @@
 
 #include <countersign/util/error.hpp>
 
-#include <source_location>
 #include <stdexcept>
 #include <utility>
 
@@ -21,27 +20,37 @@ class InternalError : public std::logic_error {
   Error error_;
 };
 
+// Where an invariant is checked (the __builtin_ forms work in GCC and clang alike, as default
+// arguments they name the caller).
+struct CheckedAt {
+  const char* file = "";
+  int line = 0;
+  const char* function = "";
+};
+
 // Throws InternalError naming the condition and where it was checked.
-[[noreturn]] void invariant_failed(const char* condition, std::source_location where);
+[[noreturn]] void invariant_failed(const char* condition, const CheckedAt& where);
 
 // The value of an optional that the caller's logic guarantees is present (checked).
 template <class Optional>
-[[nodiscard]] decltype(auto) checked(Optional&& optional,
-                                     std::source_location where = std::source_location::current()) {
-  if (!optional.has_value()) invariant_failed("value present", where);
+[[nodiscard]] decltype(auto) checked(Optional&& optional, const char* file = __builtin_FILE(),
+                                     int line = __builtin_LINE(), const char* function = __builtin_FUNCTION()) {
+  if (!optional.has_value()) invariant_failed("value present", CheckedAt{file, line, function});
   return *std::forward<Optional>(optional);
 }
 
 // The object a pointer that the caller's logic guarantees is set points to (checked).
 template <class T>
-[[nodiscard]] T& checked(T* pointer, std::source_location where = std::source_location::current()) {
-  if (pointer == nullptr) invariant_failed("pointer set", where);
+[[nodiscard]] T& checked(T* pointer, const char* file = __builtin_FILE(), int line = __builtin_LINE(),
+                         const char* function = __builtin_FUNCTION()) {
+  if (pointer == nullptr) invariant_failed("pointer set", CheckedAt{file, line, function});
   return *pointer;
 }
 
 }  // namespace countersign::util
 
 // Checks an invariant; see InternalError.
-#define COUNTERSIGN_ASSERT(condition_) \
-  ((condition_) ? static_cast<void>(0) \
-                : ::countersign::util::invariant_failed(#condition_, std::source_location::current()))
+#define COUNTERSIGN_ASSERT(condition_)                  \
+  ((condition_) ? static_cast<void>(0)                   \
+                : ::countersign::util::invariant_failed( \
+                      #condition_, ::countersign::util::CheckedAt{__FILE__, __LINE__, __func__}))
