@@ -1,5 +1,7 @@
 #include "bundled_data.hpp"
 
+#include <countersign/dicom/dictionary.hpp>
+
 #include <system_error>
 
 namespace countersign::cli {
@@ -17,5 +19,9 @@ fs::path bundled_data_folder() {
 fs::path bundled_beamdata() { return bundled_data_folder() / "beamdata"; }
 
 fs::path bundled_demo_plans() { return bundled_data_folder() / "demo-plans"; }
+
+void use_bundled_reader_dictionary() {
+  (void)dicom::use_reader_dictionary(bundled_data_folder() / "dicom" / "reader.dic");
+}
 
 }  // namespace countersign::cli

@@ -13,6 +13,7 @@
 #include <countersign/report/html_report.hpp>
 #include <countersign/util/assert.hpp>
 
+#include "bundled_data.hpp"
 #include "shared_options.hpp"
 
 #include <algorithm>
@@ -131,6 +132,7 @@ void finish(CheckRun& run) {
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
+  use_bundled_reader_dictionary();
   CheckRun run{options, io};
   if (auto prepared = prepare(run); !prepared) {
     io.err << "countersign check: " << prepared.error().message() << "\n";

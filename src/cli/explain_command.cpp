@@ -8,6 +8,7 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/explain_report.hpp>
 
+#include "bundled_data.hpp"
 #include "shared_options.hpp"
 
 #include <filesystem>
@@ -44,6 +45,7 @@ ExitCode beam_exit_code(check::Status status) {
 }
 
 ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
+  use_bundled_reader_dictionary();
   auto configured = check_options_from(options.flags);
   if (!configured) {
     io.err << "countersign explain: " << configured.error().message() << "\n";

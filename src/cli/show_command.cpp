@@ -4,6 +4,8 @@
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/report/plan_json.hpp>
 
+#include "bundled_data.hpp"
+
 #include <fmt/format.h>
 
 #include <memory>
@@ -111,6 +113,7 @@ void print_summary(const plan::Plan& plan, std::ostream& out) {
 }
 
 void run_show(const ShowOptions& options, CommandContext& context) {
+  use_bundled_reader_dictionary();
   std::vector<plan::Plan> plans;
   for (const auto& path : options.paths) {
     auto plan = dicom::read_plan_file(path);
