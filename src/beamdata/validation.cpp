@@ -118,7 +118,7 @@ class Checker {
     }
   }
 
-  // Every column of a two-axis table equals `expected` at row value `at_row` (BEAMDATA.md).
+  // Every column of a two-axis table equals `expected` at row value `at_row` (beamdata/FORMAT.md).
   void check_row_normalisation(const Table2D& t, double at_row, double expected, const std::string& what) {
     for (std::size_t c = 0; c < t.columns().size(); ++c) {
       const Lookup l = t.at(at_row, t.columns()[c]);
@@ -141,7 +141,7 @@ class Checker {
     }
   }
 
-  // A one-axis table equals 1 at 10 cm (BEAMDATA.md).
+  // A one-axis table equals 1 at 10 cm (beamdata/FORMAT.md).
   void check_unit_at_ten(const Table1D& t) {
     const Lookup l = t.at(10.0);
     const AxisBracket& b = l.axes.front();
@@ -168,7 +168,7 @@ class Checker {
     }
   }
 
-  // Measured TMR against TMR derived from PDD and Sp (DESIGN.md §5) at depths >= dmax; the
+  // Measured TMR against TMR derived from PDD and Sp (DEVELOPERS.md, "Physics") at depths >= dmax; the
   // build-up region is left out because electron contamination breaks the relation there
   // (common practice, no source).
   void check_consistency(const BeamData& beam) {

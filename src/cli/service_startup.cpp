@@ -6,8 +6,6 @@
 
 namespace countersign::cli {
 
-namespace fs = std::filesystem;
-
 Expected<OpenedService> open_checking_service(service::ServiceSettings settings, double settle_s,
                                               const CheckFlags& flags, service::ServiceLog& log) {
   OpenedService opened;

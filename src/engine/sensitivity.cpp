@@ -175,7 +175,7 @@ Sensitivity reconcile(const beamdata::BeamData& beam, std::span<const DoseInputs
     }
 
     if (r.change_cm) r.extrapolated = any_extrapolated(beam, parts, quantity, *r.change_cm);
-    result.changes.push_back(std::move(r));
+    result.changes.push_back(r);
   }
   return result;
 }

@@ -1,7 +1,7 @@
 // The per-beam calculation on hand-built plans (no files). Expected values are hand calculations from
 // the stated geometry and the fixture's tables (the analytic model in engine/fixtures.hpp, evaluated
 // at table nodes or interpolated linearly by hand), with the TG-71 isocentric form (AAPM TG-71, 2014,
-// as written in DESIGN.md §5). No expected value comes from the engine itself. The engine reports
+// as written in DEVELOPERS.md, "Physics"). No expected value comes from the engine itself. The engine reports
 // facts (a problem's kind, attribute and values); the sentences are the check module's.
 
 #include <countersign/engine/beam_dose.hpp>
@@ -260,7 +260,7 @@ TEST_F(Fixture, MethodFollowsSetupTechniqueUnlessChosen) {
   const BeamDose tmr = run(plan);
   EXPECT_EQ(tmr.method, Method::tmr);
   EXPECT_EQ(tmr.method_basis, MethodBasis::user_choice);
-  // Same point, consistent data: the formalisms agree within 1 % (DESIGN.md §5).
+  // Same point, consistent data: the formalisms agree within 1 % (DEVELOPERS.md, "Physics").
   EXPECT_NEAR(pdd.computed_dose_gy / tmr.computed_dose_gy, 1.0, 0.01);
 }
 

@@ -1,5 +1,5 @@
 // The point-dose formulas. Hand calculations: the formulas are those of AAPM TG-71 (2014) as
-// written in DESIGN.md §5; the table values are invented, of typical magnitude for 6 MV (from
+// written in DEVELOPERS.md, "Physics"; the table values are invented, of typical magnitude for 6 MV (from
 // memory), and placed on table nodes so the expected numbers are plain products.
 
 #include <countersign/engine/point_dose.hpp>
@@ -157,7 +157,7 @@ TEST(PointDose, CalibrationAtDepthReproducesTheOutput) {
 }
 
 // With PDD, TMR and Sp consistent (the fixture derives PDD from TMR and Sp), the two formalisms give
-// the same dose at the same point within 1 % (DESIGN.md §5; the remaining difference is
+// the same dose at the same point within 1 % (DEVELOPERS.md, "Physics"; the remaining difference is
 // interpolation and, off the table's SSD, the Mayneord approximation).
 TEST(PointDose, FormalismsAgreeForConsistentData) {
   const beamdata::BeamData b = test_fixtures::test_beam();

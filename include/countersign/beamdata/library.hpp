@@ -1,6 +1,6 @@
 #pragma once
 
-// A beam-data library (BEAMDATA.md): machines, their beams and tables, loaded and validated.
+// A beam-data library (beamdata/FORMAT.md): machines, their beams and tables, loaded and validated.
 
 #include <countersign/beamdata/problem.hpp>
 #include <countersign/beamdata/table.hpp>

@@ -1,6 +1,6 @@
 #pragma once
 
-// Validation of a beam-data library folder against BEAMDATA.md: structure, every table readable,
+// Validation of a beam-data library folder against beamdata/FORMAT.md: structure, every table readable,
 // normalisation, plausible ranges and PDD/TMR consistency. Returns every problem found, not just
 // the first; load_library() refuses a library with any problem of severity error.
 
@@ -13,7 +13,7 @@
 
 namespace countersign::beamdata {
 
-// Tolerances of the rules (percent). Normalisation from BEAMDATA.md ("within 0.5%"); the PDD/TMR
+// Tolerances of the rules (percent). Normalisation from beamdata/FORMAT.md ("within 0.5%"); the PDD/TMR
 // consistency tolerance is ours: 1 %, about the reproducibility of commissioning measurements
 // (common practice, no source).
 inline constexpr double normalisation_tolerance_percent = 0.5;

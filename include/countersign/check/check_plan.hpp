@@ -5,7 +5,7 @@
 // the entry point the CLI, the folder watcher and the DICOM receiver all call; reports (text,
 // JSON, HTML, `explain`) are written from the values it returns and need nothing else.
 //
-// Safety (DESIGN.md §4): a beam is within_tolerance only when its dose was computed, every factor
+// Safety (DEVELOPERS.md, "Safety"): a beam is within_tolerance only when its dose was computed, every factor
 // came from the tables without extrapolation, every geometric input was in the plan or derived by a
 // stated method, and the deviation is within the policy's tolerance. Anything else is
 // not_checked (with a reason) or outside_tolerance. Setup beams and beams without MU are skipped.
@@ -88,7 +88,7 @@ struct PlanCheck {
   std::string beamdata_sha256;
   CheckOptions options;  // what the check ran with (policy included)
 
-  // 0 within, 1 outside, 2 not checked (DESIGN.md §6).
+  // 0 within, 1 outside, 2 not checked (README, "Exit codes").
   [[nodiscard]] ExitCode exit_code() const;
 
   struct BeamCounts {

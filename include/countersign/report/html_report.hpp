@@ -30,7 +30,7 @@ struct HtmlOptions {
 // The current local date and time, "YYYY-MM-DD HH:MM:SS +hhmm".
 [[nodiscard]] std::string local_timestamp();
 
-// The caution every record carries (DESIGN.md §4).
+// The caution every record carries (DEVELOPERS.md, "Safety").
 [[nodiscard]] std::string_view caution_text();
 
 }  // namespace countersign::report

@@ -4,7 +4,7 @@
 
 namespace countersign {
 
-// Process exit codes (DESIGN.md §6). Scripts depend on these numbers: never renumber.
+// Process exit codes (README, "Exit codes"). Scripts depend on these numbers: never renumber.
 enum class ExitCode : int {
   all_within_tolerance = 0,  // every checked beam within tolerance (or nothing needed checking)
   outside_tolerance = 1,     // at least one beam outside tolerance

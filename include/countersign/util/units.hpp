@@ -1,6 +1,6 @@
 #pragma once
 
-// Unit conversions (DESIGN.md §3): plan geometry in millimetres as DICOM stores it, beam-data tables
+// Unit conversions (DEVELOPERS.md, "Units"): plan geometry in millimetres as DICOM stores it, beam-data tables
 // in centimetres as physicists keep them, doses in Gy in the plan and cGy in the tables' outputs.
 // Every change of unit goes through one of these, so a reader sees which way it goes; each is the
 // plain division or multiplication, so results are bit-for-bit those of the bare arithmetic.
