@@ -1,8 +1,8 @@
 #include <countersign/service/check_processor.hpp>
 
+#include <countersign/check/reason.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/engine/point_dose.hpp>
-#include <countersign/engine/reason.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/report/json_text.hpp>
@@ -70,7 +70,7 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
       beam.deviation_percent = beam_check.deviation_percent;
       beam.tolerance_percent = beam_check.tolerance_percent;
     } else {
-      beam.reason = std::string{engine::reason_code(beam_check.reason.reason)};
+      beam.reason = std::string{check::reason_code(beam_check.reason.reason)};
     }
     outcome.beams.push_back(std::move(beam));
   }
@@ -82,29 +82,21 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
   return [library = std::move(library), options = std::move(options)](
              const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
-    if (!plan) return plan.error();
+    if (!plan) return std::move(plan).error();
     const check::PlanCheck check = check::check_plan(plan.value(), *library, options);
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
         report::json_text(report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())));
-    report::HtmlOptions html;
-    html.plan = &plan.value();
-    outcome.html_text = report::html_report(check, html);
+    outcome.html_text = report::html_report(check);
     return outcome;
   };
 }
 
 Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
-                                             const std::optional<std::filesystem::path>& policy_file) {
-  check::CheckOptions options;
-  if (policy_file) {
-    auto policy = check::load_policy(*policy_file);
-    if (!policy) return policy.error();
-    options.policy = std::move(policy.value());
-  }
+                                             check::CheckOptions options) {
   auto library = beamdata::load_library(beamdata_dir);
-  if (!library) return library.error();
-  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library.value())),
+  if (!library) return std::move(library).error();
+  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library).value()),
                               std::move(options));
 }
 

@@ -1,10 +1,10 @@
 #include <countersign/service/plan_intake.hpp>
 #include <countersign/service/private_files.hpp>
 
-#include <countersign/beamdata/sha256.hpp>
-#include <countersign/dicom/plan_files.hpp>
-#include <countersign/util/text.hpp>
 #include <countersign/dicom/canonical_dataset.hpp>
+#include <countersign/dicom/plan_files.hpp>
+#include <countersign/util/sha256.hpp>
+#include <countersign/util/text.hpp>
 #include <countersign/util/version.hpp>
 
 #include <countersign/service/unique_fd.hpp>
@@ -154,9 +154,9 @@ std::string shown_name(const fs::path& inbox, const fs::path& file) {
 // DICOM (to be retried or quarantined) are hashed as they are.
 std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::path& file) {
   if (const auto canonical = dicom::canonical_dataset_bytes(bytes, file.string())) {
-    return beamdata::sha256_hex(*canonical);
+    return util::sha256_hex(*canonical);
   }
-  return beamdata::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
+  return util::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
 }
 
 }  // namespace
@@ -360,7 +360,7 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
     processed.emplace(processor_(file, std::span<const std::byte>{read.bytes}));
   } catch (const std::exception& e) {
     // A defect in the checking code must not stop the service; the file is kept for investigation.
-    processed.emplace(Error{ErrorKind::inconsistent, file.string(), "", "",
+    processed.emplace(Error{ErrorKind::internal, file.string(), "", "",
                             std::string{"internal error while checking: "} + e.what()});
   }
   if (!processed->has_value()) return quarantine(file, content_sha256, processed->error().message());

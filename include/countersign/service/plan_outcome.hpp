@@ -18,7 +18,7 @@
 
 namespace countersign::service {
 
-// The plan-level verdict, spelled as in the JSON report (DESIGN.md §6).
+// The plan-level verdict, spelled as in the JSON report (README, "Exit codes").
 enum class PlanVerdict { within_tolerance, outside_tolerance, not_checked };
 
 // A beam's verdict; setup beams and beams without MU are listed as skipped, never flagged.
