@@ -3,6 +3,7 @@
 
 #include "demo_inputs.hpp"
 
+#include <countersign/check/calculation_words.hpp>
 #include <countersign/engine/beam_dose.hpp>
 #include <countersign/engine/dose_point.hpp>
 #include <countersign/engine/point_dose.hpp>
@@ -43,7 +44,7 @@ void engine_beam(benchmark::State& state, const std::string& file_name, int beam
   for (auto _ : state) {
     engine::BeamDose dose =
         engine::compute_beam_dose(c.plan, *c.beam, *c.referenced, c.point, library, options);
-    if (dose.problem) state.SkipWithError(dose.problem->sentence.c_str());
+    if (dose.problem) state.SkipWithError(check::finding_for(*dose.problem).sentence.c_str());
     benchmark::DoNotOptimize(dose);
   }
   state.counters["segments"] = static_cast<double>(

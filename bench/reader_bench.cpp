@@ -17,7 +17,7 @@ void read_plan_bytes(benchmark::State& state, const std::string& file_name) {
     if (!plan) state.SkipWithError(plan.error().message().c_str());
     benchmark::DoNotOptimize(plan);
   }
-  state.SetBytesProcessed(static_cast<std::int64_t>(state.iterations() * bytes.size()));
+  state.SetBytesProcessed(static_cast<std::int64_t>(state.iterations()) * static_cast<std::int64_t>(bytes.size()));
 }
 BENCHMARK_CAPTURE(read_plan_bytes, two_arc, std::string{"fern_two_arc.dcm"})->Unit(benchmark::kMicrosecond);
 BENCHMARK_CAPTURE(read_plan_bytes, box_4field, std::string{"fern_box_4field.dcm"})

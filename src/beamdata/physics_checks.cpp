@@ -41,7 +41,7 @@ constexpr double effective_ssd_tolerance_percent = 15.0;
 bool present(const Table2D& t) { return !t.rows().empty(); }
 bool present(const Table1D& t) { return !t.axis().empty(); }
 
-// Measured TMR against TMR derived from PDD and Sp (DESIGN.md §5) at depths >= dmax; the build-up
+// Measured TMR against TMR derived from PDD and Sp (DEVELOPERS.md, "Physics") at depths >= dmax; the build-up
 // region is left out because electron contamination breaks the relation there (common practice,
 // no source).
 void check_consistency(TableChecker& checker, const BeamData& beam) {

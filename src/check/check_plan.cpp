@@ -1,4 +1,6 @@
 #include <countersign/check/check_plan.hpp>
+#include <countersign/util/assert.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -6,9 +8,6 @@
 #include <cmath>
 
 namespace countersign::check {
-
-using engine::Finding;
-using engine::Reason;
 
 std::string_view to_code(Status status) {
   switch (status) {
@@ -72,7 +71,7 @@ void set_not_checked(BeamCheck& beam, Reason reason, std::string sentence) {
 }
 
 std::string describe_extrapolation(const engine::Factor& factor) {
-  const beamdata::Lookup& lookup = *factor.lookup;
+  const beamdata::Lookup& lookup = util::checked(factor.lookup);  // an extrapolated factor has a lookup
   std::string where;
   for (const beamdata::AxisBracket& axis : lookup.axes) {
     if (!axis.extrapolated) continue;
@@ -85,8 +84,8 @@ std::string describe_extrapolation(const engine::Factor& factor) {
 
 FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (c.features.modulated) return FieldCategory::modulated;
-  const bool off_axis = c.point.off_axis_mm > policy.simple_max_off_axis_cm * 10.0;
-  const bool asymmetric = c.features.jaw_centre_offset_mm > policy.simple_max_jaw_offset_cm * 10.0;
+  const bool off_axis = c.point.off_axis_mm > util::cm_to_mm(policy.simple_max_off_axis_cm);
+  const bool asymmetric = c.features.jaw_centre_offset_mm > util::cm_to_mm(policy.simple_max_jaw_offset_cm);
   const bool shaped = c.features.open_to_jaw_area_ratio < policy.simple_min_open_fraction;
   return (off_axis || asymmetric || shaped || c.features.blocks) ? FieldCategory::complex
                                                                  : FieldCategory::simple;
@@ -114,37 +113,37 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
               "the dose point ({:.1f}, {:.1f}) mm at the isocentre plane is outside the field opening",
               c.point.iso_plane_x_mm, c.point.iso_plane_y_mm)};
     }
-    if (c.edge_distance_mm < policy.min_edge_distance_cm * 10.0) {
+    if (c.edge_distance_mm < util::cm_to_mm(policy.min_edge_distance_cm)) {
       return Finding{
           Reason::point_near_field_edge,
           fmt::format("the dose point is {:.1f} mm from the nearest field edge (policy minimum {:.1f} mm)",
-                      c.edge_distance_mm, policy.min_edge_distance_cm * 10.0)};
+                      c.edge_distance_mm, util::cm_to_mm(policy.min_edge_distance_cm))};
     }
   } else if (std::none_of(c.segments.begin(), c.segments.end(),
                           [](const engine::Segment& s) { return s.point_in_opening; })) {
     return Finding{Reason::point_outside_field,
                    "the dose point is under the leaves or jaws in every segment"};
   }
-  if (c.features.wedged && c.point.off_axis_mm > policy.wedge_max_off_axis_cm * 10.0) {
+  if (c.features.wedged && c.point.off_axis_mm > util::cm_to_mm(policy.wedge_max_off_axis_cm)) {
     return Finding{
         Reason::unsupported_geometry,
         fmt::format("wedged field with the point {:.1f} cm off axis: the open-field OAR does not apply "
                     "(policy limit {:.1f} cm)",
-                    c.point.off_axis_mm / 10.0, policy.wedge_max_off_axis_cm)};
+                    util::mm_to_cm(c.point.off_axis_mm), policy.wedge_max_off_axis_cm)};
   }
   const bool plan_depth_used = c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&
                                c.depth.source != engine::DepthSource::derived_from_dose_point_ssd;
   if (plan_depth_used && c.depth.spd_minus_ssd_mm &&
-      c.point.off_axis_mm <= policy.depth_check_max_off_axis_cm * 10.0) {
+      c.point.off_axis_mm <= util::cm_to_mm(policy.depth_check_max_off_axis_cm)) {
     const double discrepancy_mm = c.depth.depth_mm - *c.depth.spd_minus_ssd_mm;
-    if (std::abs(discrepancy_mm) > policy.max_depth_discrepancy_cm * 10.0) {
+    if (std::abs(discrepancy_mm) > util::cm_to_mm(policy.max_depth_discrepancy_cm)) {
       return Finding{
           Reason::inconsistent_depth,
           fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
                       "{:.1f} mm): check the SSD and the dose point",
                       c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
-                      policy.max_depth_discrepancy_cm * 10.0)};
+                      util::cm_to_mm(policy.max_depth_discrepancy_cm))};
     }
   }
   return std::nullopt;
@@ -156,7 +155,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   if (!beam.calculation) return;
   const engine::BeamDose& c = *beam.calculation;
   if (c.problem) {
-    set_not_checked(beam, c.problem->reason, c.problem->sentence);
+    Finding finding = finding_for(*c.problem);
+    set_not_checked(beam, finding.reason, std::move(finding.sentence));
     return;
   }
   beam.computed_dose_gy = c.computed_dose_gy;
@@ -176,7 +176,7 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
-  const double tolerance = *beam.tolerance_percent;
+  const double tolerance = util::checked(beam.tolerance_percent);
   const double deviation = *beam.deviation_percent;
   if (std::abs(deviation) <= tolerance) {
     beam.status = Status::within_tolerance;
@@ -208,8 +208,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
 namespace {
 
 bool is_treatment(const plan::Beam& beam) {
-  return beam.delivery_type.empty() || beam.delivery_type == "TREATMENT" ||
-         beam.delivery_type == "CONTINUATION";
+  return beam.delivery_type.absent() || beam.delivery_type == plan::DeliveryType::treatment ||
+         beam.delivery_type == plan::DeliveryType::continuation;
 }
 
 BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& group,
@@ -230,9 +230,9 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
   out.beam_name = beam->name;
   if (!is_treatment(*beam)) {
     out.status = Status::skipped;
-    out.reason = {
-        Reason::setup_beam,
-        fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged", beam->delivery_type)};
+    out.reason = {Reason::setup_beam,
+                  fmt::format("Treatment Delivery Type (300A,00CE) is {}: listed, not judged",
+                              beam->delivery_type.text)};
     return out;
   }
   if (!rb.meterset_mu || !(*rb.meterset_mu > 0.0)) {
@@ -249,6 +249,7 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
     return out;
   }
   out.calculation = engine::compute_beam_dose(plan, *beam, rb, *point, library, options.engine);
+  out.words = describe_calculation(*out.calculation);
   return out;
 }
 
@@ -323,9 +324,9 @@ void total_dose_references(const plan::Plan& plan, const beamdata::Library& libr
             const engine::DosePoint point{*ref.point_mm, engine::DosePointSource::dose_reference, ref.number};
             fresh = engine::compute_beam_dose(plan, *beam, rb, point, library, options.engine);
           }
-          const engine::BeamDose& computed = fresh ? *fresh : *own->calculation;
+          const engine::BeamDose& computed = fresh ? *fresh : util::checked(own->calculation);
           if (computed.problem) {
-            part.problem = computed.problem;
+            part.problem = finding_for(*computed.problem);
           } else if (const engine::Factor* f = computed.first_extrapolated()) {
             part.problem = Finding{Reason::table_extrapolated, describe_extrapolation(*f)};
           } else {
@@ -370,7 +371,7 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.options = options;
 
   for (const plan::FractionGroup& group : plan.fraction_groups) {
-    const bool beam_level = group.beam_dose_meaning != "FRACTION_LEVEL";
+    const bool beam_level = group.beam_dose_meaning != plan::BeamDoseMeaning::fraction_level;
     for (const plan::ReferencedBeam& rb : group.beams) {
       BeamCheck beam = check_one_beam(plan, group, rb, library, options);
       if (beam.calculation && !beam_level) {

@@ -39,7 +39,7 @@ double other_energy_mv(const plan::Beam& beam, double energy_mv, const beamdata:
   if (const beamdata::Machine* machine = library.machine(beam.machine_name)) {
     for (const beamdata::BeamData& data : machine->beams) {
       const double distance = std::abs(data.energy_mv - energy_mv);
-      if (data.radiation != beam.radiation_type || distance < 0.5 || distance >= best_distance) continue;
+      if (data.radiation != beam.radiation_type.text || distance < 0.5 || distance >= best_distance) continue;
       best = data.energy_mv;
       best_distance = distance;
     }
@@ -93,9 +93,11 @@ bool swap_jaws(plan::Beam& beam, std::string& description) {
   bool changed = false;
   for (plan::ControlPoint& cp : beam.control_points) {
     for (plan::DevicePositions& device : cp.devices) {
-      if ((device.type != "X" && device.type != "ASYMX") || device.positions_mm.size() != 2) continue;
+      if ((device.type != plan::DeviceType::x && device.type != plan::DeviceType::asymx) ||
+          device.positions_mm.size() != 2)
+        continue;
       if (!changed) {
-        description = fmt::format("{} jaws (300A,011C) {:.1f}\\{:.1f} -> {:.1f}\\{:.1f} mm", device.type,
+        description = fmt::format("{} jaws (300A,011C) {:.1f}\\{:.1f} -> {:.1f}\\{:.1f} mm", device.type.text,
                                   device.positions_mm[0], device.positions_mm[1], device.positions_mm[1],
                                   device.positions_mm[0]);
       }

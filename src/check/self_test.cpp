@@ -79,7 +79,7 @@ void judge_row(SelfTestRow& row, const BeamCheck& baseline, const BeamCheck& mod
       rule_note =
           fmt::format(" (it moves the computed-to-planned ratio by {:+.2f} %{})",
                       *modified.deviation_percent - *baseline.deviation_percent,
-                      modified.reason.reason == engine::Reason::deviation_within_tolerance_of_point_total
+                      modified.reason.reason == Reason::deviation_within_tolerance_of_point_total
                           ? "; a small contributor, judged against its point's total dose by the policy"
                           : "");
     }

@@ -1,6 +1,8 @@
 #include <countersign/cli/commands.hpp>
+#include <countersign/util/assert.hpp>
 #include <countersign/util/version.hpp>
 
+#include <exception>
 #include <ostream>
 
 namespace countersign::cli {
@@ -33,6 +35,14 @@ int run(int argc, const char* const* argv, Io io) {
     // --help and --version are "errors" with exit code 0 in CLI11.
     const int cli_code = app.exit(e, io.out, io.err);
     return cli_code == 0 ? 0 : static_cast<int>(ExitCode::bad_input);
+  } catch (const util::InternalError& e) {
+    // A defect of this program: said as such, with its own exit code, never as bad input.
+    io.err << "countersign: " << e.error().message() << "\n";
+    return static_cast<int>(ExitCode::internal_error);
+  } catch (const std::exception& e) {
+    io.err << "countersign: internal error: " << e.what()
+           << "; please report this with the input that caused it\n";
+    return static_cast<int>(ExitCode::internal_error);
   }
   return static_cast<int>(context.exit_code);
 }

@@ -1,7 +1,7 @@
 // `countersign check PLAN.dcm|FOLDER ...`: every beam of each plan recomputed from the beam-data
 // library and judged against the planned dose; a table on the terminal or JSON (--json).
-// The bundled library is the source tree's beamdata/ (its path is compiled in as
-// COUNTERSIGN_BUNDLED_BEAMDATA); --beamdata names another.
+// The bundled demo library is share/countersign/beamdata beside the program (bundled_data.hpp);
+// --beamdata names another.
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/check_plan.hpp>
@@ -12,8 +12,10 @@
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/report/json_text.hpp>
+#include <countersign/util/assert.hpp>
 #include <countersign/util/text.hpp>
 
+#include "bundled_data.hpp"
 #include "result_sender.hpp"
 #include "shared_options.hpp"
 
@@ -34,10 +36,7 @@ namespace fs = std::filesystem;
 
 struct CheckCommandOptions {
   std::vector<std::string> paths;
-  std::string beamdata;
-  std::string policy;
-  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
-  engine::DepthChoice depth = engine::DepthChoice::planned;
+  CheckFlags flags;
   bool json = false;
   std::string html;                  // --html FILE: the printable record
   std::string pdf;                   // --pdf FILE: the same record as PDF (needs Chromium)
@@ -88,78 +87,137 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
   return r.parent_path() / (r.stem().string() + "-" + plan_file.stem().string() + r.extension().string());
 }
 
-// Where the records of one plan go; an empty path: not asked for.
-struct RecordTarget {
-  fs::path html;
-  fs::path pdf;
+// What one run of the command shares: the options, the library, where records go, the results.
+struct CheckRun {
+  CheckRun(const CheckCommandOptions& command_options, Io& streams) : options(command_options), io(streams) {}
+
+  const CheckCommandOptions& options;
+  Io& io;
+  check::CheckOptions check_options;
+  beamdata::Library library;
+  std::optional<fs::path> chromium;     // set when a PDF is asked for
+  std::optional<ResultSender> sender;   // set with --send-to
+  std::vector<MadeObject> dicom_objects;
+  std::size_t plan_count = 0;
+  ExitCode exit_code = ExitCode::all_within_tolerance;
+  std::vector<check::PlanCheck> checks;
+  std::vector<std::string> errors;    // one line per file that could not be checked
+  std::vector<ExitCode> error_codes;  // and why: bad input, or an internal error
+  std::vector<std::string> skipped;   // files in a folder that hold no RT Plan
+
+  void fail(const std::string& message, ExitCode code) {
+    io.err << escape_control_characters(message) << "\n";
+    errors.push_back(message);
+    error_codes.push_back(code);
+    exit_code = worst(exit_code, code);
+  }
 };
 
-// The records asked for (--html, --pdf) and the DICOM results (--send-to) of one checked plan;
+// The check options, the library and the result sender, before any plan is read.
+Expected<void> prepare(CheckRun& run) {
+  TRY_ASSIGN(run.check_options, check_options_from(run.options.flags));
+  TRY_ASSIGN(run.library, beamdata::load_library(beamdata_folder(run.options.flags.beamdata)));
+  TRY_ASSIGN(run.sender, result_sender_for(run.options, run.io.err));
+  return {};
+}
+
+// The printable records asked for (--html, --pdf) and the DICOM results (--send-to) of one plan;
 // exit code 4 when one of them could not be made.
-ExitCode write_records(const check::PlanCheck& result, const plan::Plan& plan, const RecordTarget& target,
-                       const std::optional<fs::path>& chromium, ResultSender* sender,
-                       std::vector<MadeObject>& dicom_objects, std::ostream& err) {
-  ExitCode code = ExitCode::all_within_tolerance;
-  const auto failed = [&](const Error& error, const std::string& what) {
-    err << "countersign check: " << what << error.message() << "\n";
-    code = ExitCode::record_not_written;
+void write_records(CheckRun& run, const check::PlanCheck& result, const fs::path& file) {
+  const auto note = [&run](const Error& error, const std::string& what) {
+    run.io.err << "countersign check: " << what << escape_control_characters(error.message()) << "\n";
+    run.exit_code = worst(run.exit_code, ExitCode::record_not_written);
   };
-  report::HtmlOptions record_options;
-  record_options.plan = &plan;
-  if (!target.html.empty()) {
-    if (auto written = report::write_html(result, target.html, record_options); !written)
-      failed(written.error(), "");
+  const report::HtmlOptions record_options;
+  if (!run.options.html.empty()) {
+    auto written = report::write_html(result, record_file(run.options.html, file, run.plan_count), record_options);
+    if (!written) note(written.error(), "");
   }
   std::optional<fs::path> pdf;
-  if (chromium && !target.pdf.empty()) {
-    auto written = report::write_pdf(result, target.pdf, *chromium, record_options);
+  if (run.chromium) {
+    auto written = report::write_pdf(result, record_file(run.options.pdf, file, run.plan_count), *run.chromium,
+                                     record_options);
     if (written) pdf = written.value();
-    if (!written) failed(written.error(), "");
+    if (!written) note(written.error(), "");
   }
-  if (sender != nullptr) {
+  if (run.sender) {
     // The PDF just written is the one sent, when there is one.
-    auto queued = sender->queue(result, record_options, pdf);
-    if (queued) dicom_objects.insert(dicom_objects.end(), queued->begin(), queued->end());
-    if (!queued) failed(queued.error(), "the DICOM results were not queued: ");
+    auto queued = run.sender->queue(result, record_options, pdf);
+    if (queued) run.dicom_objects.insert(run.dicom_objects.end(), queued->begin(), queued->end());
+    if (!queued) note(queued.error(), "the DICOM results were not queued: ");
   }
-  return code;
+}
+
+// Reads and checks one file; a bad file, or a defect met while checking it, does not stop the others.
+void check_file(CheckRun& run, const PlanFileCandidate& candidate) {
+  const fs::path& file = candidate.file;
+  auto plan = dicom::read_plan_file(file);
+  if (!plan && is_skipped_non_plan(candidate, plan.error())) {
+    // Not a plan file (the rule the watcher uses): listed, not an error.
+    const std::string message = plan.error().message();
+    if (!run.options.json) run.io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
+    run.skipped.push_back(message);
+    return;
+  }
+  if (!plan) return run.fail(plan.error().message(), exit_code_for(plan.error()));
+  try {
+    check::PlanCheck result = check::check_plan(plan.value(), run.library, run.check_options);
+    run.exit_code = worst(run.exit_code, result.exit_code());
+    write_records(run, result, file);
+    if (!run.options.json) {
+      report::write_check_text(run.io.out, result);
+      run.io.out << "\n";
+    }
+    run.checks.push_back(std::move(result));
+  } catch (const util::InternalError& e) {
+    run.fail(file.string() + ": " + e.error().message(), ExitCode::internal_error);
+  }
+}
+
+// The summary of several plans, the delivery of DICOM results, and the JSON document or the caution.
+void finish(CheckRun& run) {
+  std::ostream& out = run.io.out;
+  if (!run.options.json && run.checks.size() + run.errors.size() > 1) {
+    out << "Summary of " << run.checks.size() + run.errors.size() << " plan file(s):\n";
+    for (const check::PlanCheck& c : run.checks) report::write_plan_summary_line(out, c);
+    for (std::size_t i = 0; i < run.errors.size(); ++i) {
+      out << (run.error_codes[i] == ExitCode::internal_error ? "internal error      "
+                                                             : "bad input           ")
+          << escape_control_characters(run.errors[i]) << "\n";
+    }
+    if (!run.skipped.empty()) out << run.skipped.size() << " other file(s) skipped: no RT Plan in them\n";
+    out << "\n";
+  }
+  std::vector<net::DeliveryEvent> deliveries;
+  if (run.sender) {
+    run.exit_code =
+        worst(run.exit_code, deliver_results(*run.sender, deliveries, run.options.json ? run.io.err : out));
+  }
+  if (run.options.json) {
+    auto document =
+        report::check_run_to_json(run.checks, run.errors, static_cast<int>(run.exit_code), run.skipped);
+    if (run.sender) document["dicom_results"] = dicom_results_to_json(run.dicom_objects, deliveries);
+    out << report::json_text(document);
+  } else {
+    out << report::caution_text() << "\n";
+  }
 }
 
 ExitCode run_check(const CheckCommandOptions& options, Io& io) {
-  auto configured = check_options_from(options.method, options.depth, options.policy);
-  if (!configured) {
-    io.err << "countersign check: " << configured.error().message() << "\n";
-    return ExitCode::bad_input;
+  use_bundled_reader_dictionary();
+  CheckRun run{options, io};
+  if (auto prepared = prepare(run); !prepared) {
+    io.err << "countersign check: " << prepared.error().message() << "\n";
+    return exit_code_for(prepared.error());
   }
-  const check::CheckOptions& check_options = configured.value();
-  const fs::path library_dir = beamdata_folder(options.beamdata);
-  auto library = beamdata::load_library(library_dir);
-  if (!library) {
-    io.err << "countersign check: " << library.error().message() << "\n";
-    return ExitCode::bad_input;
-  }
-
   // Fail before checking when a PDF is asked for and cannot be made.
-  std::optional<fs::path> chromium;
   if (!options.pdf.empty()) {
-    chromium = report::find_chromium();
-    if (!chromium) {
+    run.chromium = report::find_chromium();
+    if (!run.chromium) {
       io.err << "countersign check: " << report::no_chromium_message(options.pdf) << "\n";
       return ExitCode::record_not_written;
     }
   }
-
-  auto sender = result_sender_for(options, io.err);
-  if (!sender) {
-    io.err << "countersign check: " << sender.error().message() << "\n";
-    return ExitCode::bad_input;
-  }
-  std::vector<MadeObject> dicom_objects;
-
-  ExitCode exit_code = ExitCode::all_within_tolerance;
-  std::vector<check::PlanCheck> checks;
-  std::vector<std::string> errors;
-  std::vector<std::string> skipped;
   const PlanFileCandidates candidates = plan_file_candidates(options.paths);
   for (const fs::path& folder : candidates.ignored_subfolders) {
     io.err << "countersign check: subfolder " << escape_control_characters(folder.string())
@@ -169,71 +227,24 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     io.err << "countersign check: no file found in the folders given\n";
     return ExitCode::bad_input;
   }
-  const std::size_t file_count = candidates.files.size();
+  run.plan_count = candidates.files.size();
   // A progress line only when a person is watching: both streams on a terminal, several plans.
-  const bool show_progress =
-      io.out_is_terminal && io.err_is_terminal && file_count > 1 && options.json == false;
+  const bool show_progress = io.out_is_terminal && io.err_is_terminal && run.plan_count > 1 && !options.json;
   std::size_t done = 0;
   for (const PlanFileCandidate& candidate : candidates.files) {
-    const fs::path& file = candidate.file;
-    if (show_progress)
-      io.err << "\r\x1b[K[" << ++done << "/" << file_count << "] "
-             << escape_control_characters(file.filename().string()) << std::flush;
-    auto plan = dicom::read_plan_file(file);
-    if (!plan && is_skipped_non_plan(candidate, plan.error())) {
-      // Not a plan file (the rule the watcher uses): listed, not an error.
-      const std::string message = plan.error().message();
-      if (!options.json) io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
-      skipped.push_back(message);
-      continue;
+    if (show_progress) {
+      io.err << "\r\x1b[K[" << ++done << "/" << run.plan_count << "] "
+             << escape_control_characters(candidate.file.filename().string()) << std::flush;
     }
-    if (!plan) {
-      // One bad file does not stop the others.
-      const std::string message = plan.error().message();
-      io.err << escape_control_characters(message) << "\n";
-      errors.push_back(message);
-      exit_code = worst(exit_code, ExitCode::bad_input);
-      continue;
-    }
-    check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
-    exit_code = worst(exit_code, result.exit_code());
-    const RecordTarget target{
-        options.html.empty() ? fs::path{} : record_file(options.html, file, file_count),
-        options.pdf.empty() ? fs::path{} : record_file(options.pdf, file, file_count)};
-    exit_code =
-        worst(exit_code, write_records(result, plan.value(), target, chromium,
-                                       sender->has_value() ? &**sender : nullptr, dicom_objects, io.err));
-    if (!options.json) {
-      report::write_check_text(io.out, result);
-      io.out << "\n";
-    }
-    checks.push_back(std::move(result));
+    check_file(run, candidate);
   }
   if (show_progress) io.err << "\r\x1b[K" << std::flush;
-  if (checks.empty() && errors.empty()) {
+  if (run.checks.empty() && run.errors.empty()) {
     io.err << "countersign check: no RT Plan file found in the folders given\n";
-    exit_code = ExitCode::bad_input;
+    run.exit_code = ExitCode::bad_input;
   }
-  if (!options.json && checks.size() + errors.size() > 1) {
-    io.out << "Summary of " << checks.size() + errors.size() << " plan file(s):\n";
-    for (const check::PlanCheck& c : checks) report::write_plan_summary_line(io.out, c);
-    for (const std::string& e : errors)
-      io.out << "bad input           " << escape_control_characters(e) << "\n";
-    if (!skipped.empty()) io.out << skipped.size() << " other file(s) skipped: no RT Plan in them\n";
-    io.out << "\n";
-  }
-  std::vector<net::DeliveryEvent> deliveries;
-  if (sender->has_value()) {
-    exit_code = worst(exit_code, deliver_results(**sender, deliveries, options.json ? io.err : io.out));
-  }
-  if (options.json) {
-    auto document = report::check_run_to_json(checks, errors, static_cast<int>(exit_code), skipped);
-    if (sender->has_value()) document["dicom_results"] = dicom_results_to_json(dicom_objects, deliveries);
-    io.out << report::json_text(document);
-  } else {
-    io.out << report::caution_text() << "\n";
-  }
-  return exit_code;
+  finish(run);
+  return run.exit_code;
 }
 
 }  // namespace
@@ -252,13 +263,7 @@ void add_check_command(CLI::App& app, CommandContext& context) {
                    "RT Plan files, or folders: every file in a folder that holds an RT Plan is checked, "
                    "whatever its name (hidden and temporary files are passed over, as by `watch`)")
       ->required();
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
-  add_method_option(*command, options->method,
-                    "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd");
-  add_depth_option(*command, options->depth,
-                   "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
-                   "(the plan's radiological depth)");
+  add_check_flags(*command, options->flags);
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

@@ -9,6 +9,7 @@
 #include <countersign/report/explain_report.hpp>
 #include <countersign/report/json_text.hpp>
 
+#include "bundled_data.hpp"
 #include "shared_options.hpp"
 
 #include <filesystem>
@@ -25,10 +26,7 @@ struct ExplainCommandOptions {
   std::string plan;
   int beam = 0;
   std::optional<int> fraction_group;
-  std::string beamdata;
-  std::string policy;
-  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;
-  engine::DepthChoice depth = engine::DepthChoice::planned;
+  CheckFlags flags;
   engine::SensitivityLimits limits;
   bool json = false;
 };
@@ -48,22 +46,23 @@ ExitCode beam_exit_code(check::Status status) {
 }
 
 ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
-  auto configured = check_options_from(options.method, options.depth, options.policy);
+  use_bundled_reader_dictionary();
+  auto configured = check_options_from(options.flags);
   if (!configured) {
     io.err << "countersign explain: " << configured.error().message() << "\n";
-    return ExitCode::bad_input;
+    return exit_code_for(configured.error());
   }
   const check::CheckOptions& check_options = configured.value();
-  const std::filesystem::path library_dir = beamdata_folder(options.beamdata);
+  const std::filesystem::path library_dir = beamdata_folder(options.flags.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
     io.err << "countersign explain: " << library.error().message() << "\n";
-    return ExitCode::bad_input;
+    return exit_code_for(library.error());
   }
   auto plan = dicom::read_plan_file(options.plan);
   if (!plan) {
     io.err << plan.error().message() << "\n";
-    return ExitCode::bad_input;
+    return exit_code_for(plan.error());
   }
   const check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
   const check::BeamCheck* beam = report::find_beam(result, options.beam, options.fraction_group);
@@ -97,11 +96,7 @@ void add_explain_command(CLI::App& app, CommandContext& context) {
   command->add_option("--beam", options->beam, "Beam Number (300A,00C0) of the beam to explain")->required();
   command->add_option("--fraction-group", options->fraction_group,
                       "Fraction Group Number (300A,0071) (default: the first that references the beam)");
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
-  add_method_option(*command, options->method,
-                    "formalism used for the verdict: auto (the default), tmr or pdd");
-  add_depth_option(*command, options->depth, "depth: planned (the default) or equivalent");
+  add_check_flags(*command, options->flags);
   command
       ->add_option("--search-depth-cm", options->limits.depth_cm,
                    "how far the depth search goes each way (default 10)")

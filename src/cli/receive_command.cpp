@@ -39,8 +39,7 @@ struct ReceiveCommandOptions {
   std::string tls_ca;
   std::string results;
   std::string inbox;
-  std::string beamdata;
-  std::string policy;
+  CheckFlags flags;
   int max_associations = 4;
   IntakeFlags intake;
   FollowUpFlags follow_ups;
@@ -78,18 +77,18 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
       io.err << "countersign receive: " << escape_control_characters(applied.error().message()) << "\n";
       return ExitCode::bad_input;
     }
-    auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
+    auto opened = open_checking_service(settings, options.flags, log);
     if (!opened) {
       io.err << "countersign receive: " << escape_control_characters(opened.error().message()) << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(opened.error());
     }
 
     auto receiver = service::StorageReceiver::start(receiver_settings_from(options, settings.inbox), log);
     if (!receiver) {
       io.err << "countersign receive: " << escape_control_characters(receiver.error().message()) << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(receiver.error());
     }
-    log.line("beam data " + opened->beamdata_dir.string() + "; stop with SIGTERM or SIGINT");
+    log.line(opened->settings_line + "; stop with SIGTERM or SIGINT");
 
     const int stop_fds[] = {signals.fd()};
     const auto summary = opened->service->run(service::RunUntil::stopped, stop_fds);
@@ -97,7 +96,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     receiver.value()->stop();
     if (!summary) {
       io.err << "countersign receive: " << escape_control_characters(summary.error().message()) << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(summary.error());
     }
     log.line(stopped_line(*summary, signals.take()));
     return ExitCode::all_within_tolerance;
@@ -158,8 +157,7 @@ void add_receive_command(CLI::App& app, CommandContext& context) {
   command->add_option("--inbox", options->inbox,
                       "where received plans are stored and checked from "
                       "(default: RESULTS/incoming)");
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
+  add_check_flags(*command, options->flags);
   command
       ->add_option("--max-associations", options->max_associations, "associations served at once (default 4)")
       ->check(CLI::Range(1, 64));

@@ -7,6 +7,7 @@
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
 
+#include "bundled_data.hpp"
 #include "shared_options.hpp"
 
 #include <fmt/format.h>
@@ -64,6 +65,7 @@ void print_report(const check::SelfTestReport& report, std::ostream& out) {
 }
 
 void run_selftest(const SelfTestOptions& options, CommandContext& context) {
+  use_bundled_reader_dictionary();
   const auto library = beamdata::load_library(beamdata_folder(options.beamdata));
   if (!library) {
     context.io.err << library.error().message() << '\n';

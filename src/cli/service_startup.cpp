@@ -1,7 +1,5 @@
 #include "service_startup.hpp"
 
-#include "shared_options.hpp"
-
 #include <countersign/net/destination.hpp>
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/service/check_processor.hpp>
@@ -85,17 +83,18 @@ Expected<bool> apply_follow_up_options(const FollowUpFlags& flags, service::Serv
   return true;
 }
 
-Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
-                                              const std::string& beamdata_option,
-                                              const std::string& policy_option, service::ServiceLog& log) {
+Expected<OpenedService> open_checking_service(service::ServiceSettings settings, const CheckFlags& flags,
+                                              service::ServiceLog& log) {
   OpenedService opened;
-  opened.beamdata_dir = beamdata_folder(beamdata_option);
-  auto processor = service::load_check_processor(
-      opened.beamdata_dir, policy_option.empty() ? std::nullopt : std::optional<fs::path>{policy_option});
-  if (!processor) return processor.error();
-  auto service = service::CheckingService::open(settings, std::move(processor.value()), log);
-  if (!service) return service.error();
-  opened.service = std::move(service.value());
+  opened.beamdata_dir = beamdata_folder(flags.beamdata);
+  check::CheckOptions options;
+  TRY_ASSIGN(options, check_options_from(flags));
+  opened.settings_line = "beam data " + opened.beamdata_dir.string() + ", method " +
+                         std::string{flag_text(flags.method)} + ", depth " +
+                         std::string{engine::to_code(flags.depth)} + ", policy " + options.policy.source;
+  service::PlanProcessor processor;
+  TRY_ASSIGN(processor, service::load_check_processor(opened.beamdata_dir, std::move(options)));
+  TRY_ASSIGN(opened.service, service::CheckingService::open(settings, std::move(processor), log));
   if (settings.follow_ups.delivery && !settings.follow_ups.delivery->chromium) {
     log.line(
         "no Chromium found: the structured result (SR) of each check is sent alone; the PDF record needs "

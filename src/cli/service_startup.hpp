@@ -9,6 +9,8 @@
 #include <countersign/util/error.hpp>
 
 #include <CLI/CLI.hpp>
+#include "shared_options.hpp"
+
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -41,12 +43,14 @@ void add_follow_up_options(CLI::App& command, FollowUpFlags& flags);
 
 struct OpenedService {
   std::filesystem::path beamdata_dir;  // the library in use, for the log
+  std::string settings_line;           // "beam data DIR, method auto, depth planned, policy ...", for the log
   std::unique_ptr<service::CheckingService> service;
 };
 
+// The check options come from the same flags, built the same way, as `check` uses; the intake
+// options are already in `settings` (intake_options_from).
 [[nodiscard]] Expected<OpenedService> open_checking_service(service::ServiceSettings settings,
-                                                            const std::string& beamdata_option,
-                                                            const std::string& policy_option,
+                                                            const CheckFlags& flags,
                                                             service::ServiceLog& log);
 
 // "stopped on signal 15: 3 checked, 1 already checked, 0 quarantined, 0 failed attempts".

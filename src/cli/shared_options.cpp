@@ -1,13 +1,11 @@
 #include "shared_options.hpp"
 
 #include <countersign/dicom/plan_files.hpp>
+#include "bundled_data.hpp"
 
 #include <algorithm>
 #include <map>
 
-#ifndef COUNTERSIGN_BUNDLED_BEAMDATA
-#define COUNTERSIGN_BUNDLED_BEAMDATA "beamdata"
-#endif
 
 namespace countersign::cli {
 
@@ -35,50 +33,54 @@ bool is_skipped_non_plan(const PlanFileCandidate& candidate, const Error& read_e
 }
 
 fs::path beamdata_folder(const std::string& option_value) {
-  return option_value.empty() ? fs::path{COUNTERSIGN_BUNDLED_BEAMDATA} : fs::path{option_value};
+  return option_value.empty() ? bundled_beamdata() : fs::path{option_value};
 }
 
-Expected<check::CheckOptions> check_options_from(engine::MethodChoice method, engine::DepthChoice depth,
-                                                 const std::string& policy_file) {
+Expected<check::CheckOptions> check_options_from(const CheckFlags& flags) {
   check::CheckOptions options;
-  options.engine.method = method;
-  options.engine.depth = depth;
-  if (!policy_file.empty()) {
-    auto policy = check::load_policy(policy_file);
-    if (!policy) return policy.error();
-    options.policy = std::move(policy.value());
-  }
+  options.engine.method = flags.method;
+  options.engine.depth = flags.depth;
+  if (!flags.policy.empty()) TRY_ASSIGN(options.policy, check::load_policy(flags.policy));
   return options;
-}
-
-fs::path bundled_demo_plans() {
-  return fs::path{COUNTERSIGN_BUNDLED_BEAMDATA}.parent_path() / "testdata" / "plans";
 }
 
 void add_beamdata_option(CLI::App& command, std::string& value) {
   command.add_option(
       "--beamdata", value,
-      std::string("beam-data library folder (default: the bundled ") + COUNTERSIGN_BUNDLED_BEAMDATA + ")");
+      "beam-data library folder (default: the bundled demo library, " + bundled_beamdata().string() + ")");
 }
 
-void add_policy_option(CLI::App& command, std::string& value) {
-  command.add_option("--policy", value, "tolerance policy TOML file (default: built-in TG-114 based values)");
+std::string_view flag_text(engine::MethodChoice method) {
+  switch (method) {
+    case engine::MethodChoice::tmr:
+      return "tmr";
+    case engine::MethodChoice::pdd:
+      return "pdd";
+    case engine::MethodChoice::by_setup_technique:
+      break;
+  }
+  return "auto";
 }
 
-void add_method_option(CLI::App& command, engine::MethodChoice& value, const std::string& description) {
+void add_check_flags(CLI::App& command, CheckFlags& flags) {
+  add_beamdata_option(command, flags.beamdata);
+  command.add_option("--policy", flags.policy,
+                     "tolerance policy TOML file (default: built-in TG-114 based values)");
   const std::map<std::string, engine::MethodChoice> methods{
       {"auto", engine::MethodChoice::by_setup_technique},
       {"tmr", engine::MethodChoice::tmr},
       {"pdd", engine::MethodChoice::pdd}};
-  command.add_option("--method", value, description)
+  command
+      .add_option("--method", flags.method,
+                  "formalism: auto (FIXED_SSD setups pdd, others tmr; the default), tmr or pdd")
       ->transform(CLI::CheckedTransformer(methods, CLI::ignore_case).description(""))
       ->option_text("auto|tmr|pdd");
-}
-
-void add_depth_option(CLI::App& command, engine::DepthChoice& value, const std::string& description) {
   const std::map<std::string, engine::DepthChoice> depths{{"planned", engine::DepthChoice::planned},
                                                           {"equivalent", engine::DepthChoice::equivalent}};
-  command.add_option("--depth", value, description)
+  command
+      .add_option("--depth", flags.depth,
+                  "depth: planned (the plan's geometric depth, else SPD - SSD; the default) or equivalent "
+                  "(the plan's radiological depth)")
       ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
       ->option_text("planned|equivalent");
 }

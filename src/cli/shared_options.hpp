@@ -9,6 +9,7 @@
 #include <CLI/CLI.hpp>
 #include <filesystem>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace countersign::cli {
@@ -31,20 +32,28 @@ struct PlanFileCandidates {
 // (another DICOM object, or no DICOM at all). A file named on the command line is never passed over.
 [[nodiscard]] bool is_skipped_non_plan(const PlanFileCandidate& candidate, const Error& read_error);
 
-// The library folder to use: the option's value, else the bundled beamdata/ of the source tree.
+// The library folder to use: the option's value, else the bundled demo library (bundled_data.hpp).
 [[nodiscard]] std::filesystem::path beamdata_folder(const std::string& option_value);
 
-// Check options from the shared flags; the policy file (if named) is loaded and validated.
-[[nodiscard]] Expected<check::CheckOptions> check_options_from(engine::MethodChoice method,
-                                                               engine::DepthChoice depth,
-                                                               const std::string& policy_file);
+// What every command that checks plans (check, explain, watch, receive) takes on its command line.
+struct CheckFlags {
+  std::string beamdata;  // --beamdata DIR; empty: the bundled library
+  std::string policy;    // --policy FILE; empty: the built-in policy
+  engine::MethodChoice method = engine::MethodChoice::by_setup_technique;  // --method
+  engine::DepthChoice depth = engine::DepthChoice::planned;                // --depth
+};
 
-// The bundled demo plans (testdata/plans beside the bundled beamdata/).
-[[nodiscard]] std::filesystem::path bundled_demo_plans();
+// Declares --beamdata, --policy, --method and --depth on a command, worded the same everywhere.
+void add_check_flags(CLI::App& command, CheckFlags& flags);
 
+// The one place where check options are built from the flags; the policy file (if named) is loaded
+// and validated, errors name the file and the key.
+[[nodiscard]] Expected<check::CheckOptions> check_options_from(const CheckFlags& flags);
+
+// The --method value as typed: auto, tmr or pdd.
+[[nodiscard]] std::string_view flag_text(engine::MethodChoice method);
+
+// --beamdata alone, for commands that take no other check flag (selftest).
 void add_beamdata_option(CLI::App& command, std::string& value);
-void add_policy_option(CLI::App& command, std::string& value);
-void add_method_option(CLI::App& command, engine::MethodChoice& value, const std::string& description);
-void add_depth_option(CLI::App& command, engine::DepthChoice& value, const std::string& description);
 
 }  // namespace countersign::cli

@@ -6,6 +6,8 @@
 #include <countersign/report/plan_json.hpp>
 #include <countersign/util/text.hpp>
 
+#include "bundled_data.hpp"
+
 #include <fmt/format.h>
 
 #include <memory>
@@ -24,14 +26,18 @@ struct ShowOptions {
 
 // A value from the plan on one terminal line: "-" when absent, control characters escaped.
 std::string or_dash(const std::string& text) { return text.empty() ? "-" : escape_control_characters(text); }
+template <class Term>
+std::string or_dash(const plan::Coded<Term>& coded) {
+  return or_dash(coded.text);
+}
 
 std::string number_or_dash(const std::optional<double>& value, int decimals) {
   return value ? fmt::format("{:.{}f}", *value, decimals) : "-";
 }
 
 std::string jaws_text(const plan::ControlPoint& cp) {
-  auto pair = [&cp](const char* a, const char* b) -> std::string {
-    for (const char* type : {a, b}) {
+  auto pair = [&cp](plan::DeviceType a, plan::DeviceType b) -> std::string {
+    for (const plan::DeviceType type : {a, b}) {
       const auto* device = cp.device(type);
       if (device != nullptr && device->positions_mm.size() == 2) {
         return fmt::format("{:.1f}/{:.1f}", device->positions_mm[0], device->positions_mm[1]);
@@ -39,7 +45,8 @@ std::string jaws_text(const plan::ControlPoint& cp) {
     }
     return "-/-";
   };
-  return pair("X", "ASYMX") + " " + pair("Y", "ASYMY");
+  return pair(plan::DeviceType::x, plan::DeviceType::asymx) + " " +
+         pair(plan::DeviceType::y, plan::DeviceType::asymy);
 }
 
 const plan::ReferencedBeam* find_reference(const plan::Plan& plan, int beam_number, int& group_number) {
@@ -86,7 +93,7 @@ void print_summary(const plan::Plan& plan, std::ostream& out) {
     const plan::ReferencedBeam* ref = find_reference(plan, beam.number, group_number);
     int mlc_pairs = 0;
     for (const auto& d : beam.beam_limiting_devices) {
-      if (d.type == "MLCX" || d.type == "MLCY") mlc_pairs = d.pair_count;
+      if (d.type == plan::DeviceType::mlcx || d.type == plan::DeviceType::mlcy) mlc_pairs = d.pair_count;
     }
     std::string wedges;
     for (const auto& w : beam.wedges) wedges += (wedges.empty() ? "" : ",") + or_dash(w.id);
@@ -113,6 +120,7 @@ void print_summary(const plan::Plan& plan, std::ostream& out) {
 }
 
 void run_show(const ShowOptions& options, CommandContext& context) {
+  use_bundled_reader_dictionary();
   std::vector<plan::Plan> plans;
   for (const auto& path : options.paths) {
     auto plan = dicom::read_plan_file(path);

@@ -27,8 +27,7 @@ struct WatchCommandOptions {
   std::string inbox;
   std::string results;
   std::string quarantine;
-  std::string beamdata;
-  std::string policy;
+  CheckFlags flags;
   IntakeFlags intake;
   FollowUpFlags follow_ups;
   bool once = false;
@@ -52,12 +51,12 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
       return ExitCode::bad_input;
     }
     settings.watch.subfolders = options.recursive ? dicom::Subfolders::include : dicom::Subfolders::ignore;
-    auto opened = open_checking_service(settings, options.beamdata, options.policy, log);
+    auto opened = open_checking_service(settings, options.flags, log);
     if (!opened) {
       io.err << "countersign watch: " << escape_control_characters(opened.error().message()) << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(opened.error());
     }
-    log.line("beam data " + opened->beamdata_dir.string() + "; " +
+    log.line(opened->settings_line + "; " +
              (options.once ? "checking what is there, then stopping" : "stop with SIGTERM or SIGINT"));
 
     const int stop_fds[] = {signals.fd()};
@@ -65,7 +64,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
         options.once ? service::RunUntil::one_pass : service::RunUntil::stopped, stop_fds);
     if (!summary) {
       io.err << "countersign watch: " << escape_control_characters(summary.error().message()) << "\n";
-      return ExitCode::bad_input;
+      return exit_code_for(summary.error());
     }
     for (const std::string& file : summary->not_taken) log.line("not taken: " + file);
     // One pass: its alerts and deliveries get their first attempts before it ends; retries wait
@@ -100,8 +99,7 @@ void add_watch_command(CLI::App& app, CommandContext& context) {
   command->add_option("--out", options->results, "results folder (created 0750)")->required();
   command->add_option("--quarantine", options->quarantine,
                       "folder for bad files (default: RESULTS/quarantine)");
-  add_beamdata_option(*command, options->beamdata);
-  add_policy_option(*command, options->policy);
+  add_check_flags(*command, options->flags);
   add_intake_options(*command, options->intake);
   add_follow_up_options(*command, options->follow_ups);
   command->add_flag(

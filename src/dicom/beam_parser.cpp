@@ -60,7 +60,7 @@ std::vector<plan::BeamLimitingDevice> parse_devices(const ItemReader& beam) {
   std::set<std::string> seen;
   for (const auto& item : beam.sequence(DCM_BeamLimitingDeviceSequence, Need::required)) {
     plan::BeamLimitingDevice device;
-    device.type = item.text(DCM_RTBeamLimitingDeviceType, Need::required);
+    device.type = item.term<plan::DeviceType>(DCM_RTBeamLimitingDeviceType, Need::required);
     device.source_to_device_distance_mm = item.within(
         DCM_SourceToBeamLimitingDeviceDistance,
         item.number(DCM_SourceToBeamLimitingDeviceDistance, Need::optional), 0.0, max_coordinate_mm, "mm");
@@ -71,12 +71,12 @@ std::vector<plan::BeamLimitingDevice> parse_devices(const ItemReader& beam) {
                 fmt::format("{} pairs, expected at least 1", device.pair_count));
       return devices;
     }
-    if (!seen.insert(device.type).second) {
+    if (!seen.insert(device.type.text).second) {
       item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType,
-                "device " + printable(device.type) + " is declared twice");
+                "device " + printable(device.type.text) + " is declared twice");
       return devices;
     }
-    const bool is_mlc = device.type == "MLCX" || device.type == "MLCY";
+    const bool is_mlc = device.type == plan::DeviceType::mlcx || device.type == plan::DeviceType::mlcy;
     if (is_mlc) {
       const auto boundaries = item.numbers(DCM_LeafPositionBoundaries, Need::required, 0);
       if (!boundaries) return devices;
@@ -103,7 +103,7 @@ std::vector<plan::Wedge> parse_wedges(const ItemReader& beam) {
   for (const auto& item : counted_sequence(beam, DCM_NumberOfWedges, DCM_WedgeSequence)) {
     plan::Wedge wedge;
     wedge.number = item.integer(DCM_WedgeNumber, Need::required);
-    wedge.type = item.text(DCM_WedgeType, Need::optional);
+    wedge.type = item.term<plan::WedgeType>(DCM_WedgeType, Need::optional);
     wedge.id = item.text(DCM_WedgeID, Need::optional);
     wedge.angle_deg =
         item.within(DCM_WedgeAngle, item.number(DCM_WedgeAngle, Need::optional), 0.0, 90.0, "deg");
@@ -135,11 +135,11 @@ struct CarriedState {
   std::optional<double> energy_mv;
   std::optional<double> dose_rate_mu_per_min;
   std::optional<double> gantry_deg;
-  std::string gantry_rotation;
+  plan::Coded<plan::RotationDirection> gantry_rotation;
   std::optional<double> collimator_deg;
-  std::string collimator_rotation;
+  plan::Coded<plan::RotationDirection> collimator_rotation;
   std::optional<double> couch_deg;
-  std::string couch_rotation;
+  plan::Coded<plan::RotationDirection> couch_rotation;
   std::optional<plan::PointMm> isocenter_mm;
   std::map<std::string, std::vector<double>> devices;
   std::vector<plan::WedgePosition> wedge_positions;
@@ -153,8 +153,9 @@ void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLim
   for (const auto& item : items) {
     const std::string type = item.text(DCM_RTBeamLimitingDeviceType, Need::required);
     if (item.failed()) return;
-    const auto device = std::find_if(declared.begin(), declared.end(),
-                                     [&type](const plan::BeamLimitingDevice& d) { return d.type == type; });
+    const auto device =
+        std::find_if(declared.begin(), declared.end(),
+                     [&type](const plan::BeamLimitingDevice& d) { return d.type.text == type; });
     if (device == declared.end()) {
       item.fail(ErrorKind::inconsistent, DCM_RTBeamLimitingDeviceType,
                 "device " + printable(type) + " is not declared in BeamLimitingDeviceSequence (300A,00B6)");
@@ -188,10 +189,10 @@ void read_device_positions(const ItemReader& cp, const std::vector<plan::BeamLim
   }
   if (first) {
     for (const auto& device : declared) {
-      if (!state.devices.contains(device.type)) {
-        cp.fail(
-            ErrorKind::missing_attribute, DCM_BeamLimitingDevicePositionSequence,
-            "no positions for device " + printable(device.type) + " declared in BeamLimitingDeviceSequence");
+      if (!state.devices.contains(device.type.text)) {
+        cp.fail(ErrorKind::missing_attribute, DCM_BeamLimitingDevicePositionSequence,
+                "no positions for device " + printable(device.type.text) +
+                    " declared in BeamLimitingDeviceSequence");
         return;
       }
     }
@@ -214,19 +215,22 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
   auto carry = [](auto& slot, auto value) {
     if (value) slot = value;
   };
-  auto carry_text = [](std::string& slot, std::string value) {
-    if (!value.empty()) slot = std::move(value);
+  auto carry_term = [](auto& slot, auto value) {
+    if (!value.absent()) slot = std::move(value);
   };
   carry(state.energy_mv, cp.within(DCM_NominalBeamEnergy, cp.number(DCM_NominalBeamEnergy, Need::optional),
                                    0.001, 1000.0, "MV"));
   carry(state.dose_rate_mu_per_min,
         cp.within(DCM_DoseRateSet, cp.number(DCM_DoseRateSet, Need::optional), 0.0, 100000.0, "MU/min"));
   carry(state.gantry_deg, angle(cp, DCM_GantryAngle, first_only));
-  carry_text(state.gantry_rotation, cp.text(DCM_GantryRotationDirection, Need::optional));
+  carry_term(state.gantry_rotation,
+             cp.term<plan::RotationDirection>(DCM_GantryRotationDirection, Need::optional));
   carry(state.collimator_deg, angle(cp, DCM_BeamLimitingDeviceAngle, first_only));
-  carry_text(state.collimator_rotation, cp.text(DCM_BeamLimitingDeviceRotationDirection, Need::optional));
+  carry_term(state.collimator_rotation,
+             cp.term<plan::RotationDirection>(DCM_BeamLimitingDeviceRotationDirection, Need::optional));
   carry(state.couch_deg, angle(cp, DCM_PatientSupportAngle, first_only));
-  carry_text(state.couch_rotation, cp.text(DCM_PatientSupportRotationDirection, Need::optional));
+  carry_term(state.couch_rotation,
+             cp.term<plan::RotationDirection>(DCM_PatientSupportRotationDirection, Need::optional));
   const auto iso = point(cp, DCM_IsocenterPosition, Need::optional);
   if (iso) {
     for (const double c : *iso) {
@@ -244,7 +248,7 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
     for (const auto& item : wedge_items) {
       plan::WedgePosition wedge_position;
       wedge_position.wedge_number = item.integer(DCM_ReferencedWedgeNumber, Need::required).value_or(0);
-      wedge_position.position = item.text(DCM_WedgePosition, Need::required);
+      wedge_position.position = item.term<plan::WedgePositionState>(DCM_WedgePosition, Need::required);
       if (!item.failed() && std::none_of(beam.wedges.begin(), beam.wedges.end(), [&](const plan::Wedge& w) {
             return w.number == wedge_position.wedge_number;
           })) {
@@ -270,7 +274,7 @@ plan::ControlPoint parse_control_point(const ItemReader& cp, std::size_t positio
       cp.within(DCM_SourceToSurfaceDistance, cp.number(DCM_SourceToSurfaceDistance, Need::optional), 0.0,
                 max_coordinate_mm, "mm");
   for (const auto& device : beam.beam_limiting_devices) {
-    const auto found = state.devices.find(device.type);
+    const auto found = state.devices.find(device.type.text);
     if (found != state.devices.end()) point_out.devices.push_back({device.type, found->second});
   }
   point_out.cumulative_meterset_weight = cp.within(
@@ -323,10 +327,10 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
   beam.name = item.text(DCM_BeamName, Need::optional);
   beam.description = item.text(DCM_BeamDescription, Need::optional);
   beam.machine_name = item.text(DCM_TreatmentMachineName, Need::optional);
-  beam.radiation_type = item.text(DCM_RadiationType, Need::optional);
-  beam.delivery_type = item.text(DCM_TreatmentDeliveryType, Need::optional);
-  beam.beam_type = item.text(DCM_BeamType, Need::required);
-  beam.primary_dosimeter_unit = item.text(DCM_PrimaryDosimeterUnit, Need::optional);
+  beam.radiation_type = item.term<plan::RadiationType>(DCM_RadiationType, Need::optional);
+  beam.delivery_type = item.term<plan::DeliveryType>(DCM_TreatmentDeliveryType, Need::optional);
+  beam.beam_type = item.term<plan::BeamType>(DCM_BeamType, Need::required);
+  beam.primary_dosimeter_unit = item.term<plan::DosimeterUnit>(DCM_PrimaryDosimeterUnit, Need::optional);
   beam.sad_mm = item.within(DCM_SourceAxisDistance, item.number(DCM_SourceAxisDistance, Need::optional), 1.0,
                             max_coordinate_mm, "mm");
   beam.beam_limiting_devices = parse_devices(item);

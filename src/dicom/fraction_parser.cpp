@@ -71,7 +71,7 @@ std::vector<plan::FractionGroup> parse_fraction_groups(const ItemReader& dataset
     if (group.fractions_planned && *group.fractions_planned < 0) {
       item.fail(ErrorKind::bad_value, DCM_NumberOfFractionsPlanned, "is negative");
     }
-    group.beam_dose_meaning = item.text(DCM_BeamDoseMeaning, Need::optional);
+    group.beam_dose_meaning = item.term<plan::BeamDoseMeaning>(DCM_BeamDoseMeaning, Need::optional);
     const auto declared = item.integer(DCM_NumberOfBeams, Need::required);
     const auto beams = item.sequence(DCM_ReferencedBeamSequence, Need::optional);
     if (item.failed()) return groups;

@@ -6,6 +6,7 @@
 
 #include "text_decoder.hpp"
 
+#include <countersign/plan/defined_terms.hpp>
 #include <countersign/util/error.hpp>
 
 #include <dcmtk/config/osconfig.h>
@@ -64,6 +65,11 @@ class ItemReader {
   // Text value as UTF-8 with leading/trailing spaces removed; empty when absent (and an error if
   // required). Bytes that cannot be decoded are shown as U+FFFD and a warning names the attribute.
   [[nodiscard]] std::string text(const DcmTagKey& tag, Need need) const;
+  // A code string with defined terms, parsed once here (the plan's text is kept beside the term).
+  template <class Term>
+  [[nodiscard]] plan::Coded<Term> term(const DcmTagKey& tag, Need need) const {
+    return plan::parse_term<Term>(text(tag, need));
+  }
   // One number (DS, IS, FL, FD, US, SS, UL, SL as stored), finite.
   [[nodiscard]] std::optional<double> number(const DcmTagKey& tag, Need need) const;
   // One integer (IS or binary integer VR).

@@ -39,8 +39,8 @@ std::vector<plan::PatientSetup> parse_patient_setups(const ItemReader& dataset) 
   for (const auto& item : dataset.sequence(DCM_PatientSetupSequence, Need::optional)) {
     plan::PatientSetup setup;
     setup.number = item.integer(DCM_PatientSetupNumber, Need::required).value_or(0);
-    setup.patient_position = item.text(DCM_PatientPosition, Need::optional);
-    setup.setup_technique = item.text(DCM_SetupTechnique, Need::optional);
+    setup.patient_position = item.term<plan::PatientPosition>(DCM_PatientPosition, Need::optional);
+    setup.setup_technique = item.term<plan::SetupTechnique>(DCM_SetupTechnique, Need::optional);
     setup.setup_technique_description = item.text(DCM_SetupTechniqueDescription, Need::optional);
     if (std::any_of(setups.begin(), setups.end(),
                     [&setup](const plan::PatientSetup& s) { return s.number == setup.number; })) {
@@ -58,12 +58,14 @@ std::vector<plan::DoseReference> parse_dose_references(const ItemReader& dataset
     plan::DoseReference ref;
     ref.number = item.integer(DCM_DoseReferenceNumber, Need::required).value_or(0);
     ref.uid = item.text(DCM_DoseReferenceUID, Need::optional);
-    ref.structure_type = item.text(DCM_DoseReferenceStructureType, Need::required);
+    ref.structure_type =
+        item.term<plan::DoseReferenceStructure>(DCM_DoseReferenceStructureType, Need::required);
     ref.description = item.text(DCM_DoseReferenceDescription, Need::optional);
     ref.type = item.text(DCM_DoseReferenceType, Need::required);
     // Type 1C: required when the structure type is COORDINATES.
-    const auto point = item.numbers(DCM_DoseReferencePointCoordinates,
-                                    ref.structure_type == "COORDINATES" ? Need::required : Need::optional, 3);
+    const auto point = item.numbers(
+        DCM_DoseReferencePointCoordinates,
+        ref.structure_type == plan::DoseReferenceStructure::coordinates ? Need::required : Need::optional, 3);
     if (point) ref.point_mm = plan::PointMm{(*point)[0], (*point)[1], (*point)[2]};
     auto dose = [&item](const DcmTagKey& tag) {
       return item.within(tag, item.number(tag, Need::optional), 0.0, 100000.0, "Gy");

@@ -9,6 +9,7 @@
 #include "plan_source.hpp"
 #include "sr_content.hpp"
 
+#include <countersign/check/reason.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/util/version.hpp>
 
@@ -34,8 +35,8 @@ const Code& verdict_code(check::Status status) {
   return codes::not_checked;
 }
 
-std::string reason_text(const engine::Finding& finding) {
-  return std::string{engine::reason_code(finding.reason)} + ": " + finding.sentence;
+std::string reason_text(const check::Finding& finding) {
+  return std::string{check::reason_code(finding.reason)} + ": " + finding.sentence;
 }
 
 void add_if(DcmItem& parent, const Code& concept_name, const std::optional<double>& value, const Code& unit) {

@@ -1,7 +1,5 @@
 #include <countersign/engine/sensitivity.hpp>
 
-#include <fmt/format.h>
-
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -69,18 +67,6 @@ double search_limit(SensitivityQuantity quantity, const SensitivityLimits& limit
       return limits.field_cm;
   }
   return 0.0;
-}
-
-std::string_view label(SensitivityQuantity quantity) {
-  switch (quantity) {
-    case SensitivityQuantity::depth:
-      return "depth";
-    case SensitivityQuantity::ssd:
-      return "SSD";
-    case SensitivityQuantity::field_size:
-      return "field-size";
-  }
-  return "";
 }
 
 template <class F>
@@ -188,20 +174,8 @@ Sensitivity reconcile(const beamdata::BeamData& beam, std::span<const DoseInputs
       }
     }
 
-    const std::string_view name = label(quantity);
-    if (r.change_cm) {
-      r.extrapolated = any_extrapolated(beam, parts, quantity, *r.change_cm);
-      r.sentence = fmt::format(
-          "{} {} change of {:+.2f} cm ({:.2f} -> {:.2f} cm) alone would make the computed dose equal "
-          "the planned dose{}",
-          quantity == SensitivityQuantity::ssd ? "an" : "a", name, *r.change_cm, r.baseline_cm,
-          r.baseline_cm + *r.change_cm,
-          r.extrapolated ? "; that value lies outside the beam-data tables" : "");
-    } else {
-      r.sentence = fmt::format("no {} change between {:+.2f} cm and {:+.2f} cm reconciles the two doses",
-                               name, r.search_min_change_cm, r.search_max_change_cm);
-    }
-    result.changes.push_back(std::move(r));
+    if (r.change_cm) r.extrapolated = any_extrapolated(beam, parts, quantity, *r.change_cm);
+    result.changes.push_back(r);
   }
   return result;
 }

@@ -92,32 +92,34 @@ double Aperture::distance_to_edge_mm(double x_mm, double y_mm) const {
 }
 
 Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoint& cp) {
-  const auto find = [&cp](const char* a, const char* b) {
+  const auto find = [&cp](plan::DeviceType a, plan::DeviceType b) {
     const plan::DevicePositions* d = cp.device(a);
     return d != nullptr ? d : cp.device(b);
   };
-  const plan::DevicePositions* x = find("ASYMX", "X");
-  const plan::DevicePositions* y = find("ASYMY", "Y");
-  const plan::DevicePositions* mlc = cp.device("MLCX");
-  if (cp.device("MLCY") != nullptr) {
+  const plan::DevicePositions* x = find(plan::DeviceType::asymx, plan::DeviceType::x);
+  const plan::DevicePositions* y = find(plan::DeviceType::asymy, plan::DeviceType::y);
+  const plan::DevicePositions* mlc = cp.device(plan::DeviceType::mlcx);
+  if (cp.device(plan::DeviceType::mlcy) != nullptr) {
     return positions_error(ErrorKind::bad_value, "MLCY",
                            "an MLC with leaves moving along Y is not supported");
   }
   for (const plan::DevicePositions* jaw : {x, y}) {
     if (jaw != nullptr && jaw->positions_mm.size() != 2) {
-      return positions_error(ErrorKind::bad_value, jaw->type,
+      return positions_error(ErrorKind::bad_value, jaw->type.text,
                              "expected 2 jaw positions, found " + std::to_string(jaw->positions_mm.size()));
     }
     if (jaw != nullptr && jaw->positions_mm[1] < jaw->positions_mm[0]) {
-      return positions_error(ErrorKind::bad_value, jaw->type, "jaw 2 lies on the negative side of jaw 1");
+      return positions_error(ErrorKind::bad_value, jaw->type.text,
+                             "jaw 2 lies on the negative side of jaw 1");
     }
   }
 
   std::vector<double> boundaries;
   std::size_t pairs = 0;
   if (mlc != nullptr) {
-    const auto def = std::find_if(beam.beam_limiting_devices.begin(), beam.beam_limiting_devices.end(),
-                                  [](const plan::BeamLimitingDevice& d) { return d.type == "MLCX"; });
+    const auto def =
+        std::find_if(beam.beam_limiting_devices.begin(), beam.beam_limiting_devices.end(),
+                     [](const plan::BeamLimitingDevice& d) { return d.type == plan::DeviceType::mlcx; });
     if (def == beam.beam_limiting_devices.end() || def->leaf_boundaries_mm.size() < 2) {
       return Error{ErrorKind::missing_attribute, "", "LeafPositionBoundaries", "(300A,00BE)",
                    "MLCX positions are given but the beam defines no leaf boundaries"};

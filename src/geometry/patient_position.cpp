@@ -2,12 +2,19 @@
 
 namespace countersign::geometry {
 
-std::optional<PatientPosition> parse_patient_position(std::string_view code) {
-  if (code == "HFS") return PatientPosition::hfs;
-  if (code == "HFP") return PatientPosition::hfp;
-  if (code == "FFS") return PatientPosition::ffs;
-  if (code == "FFP") return PatientPosition::ffp;
-  return std::nullopt;
+std::optional<PatientPosition> supported_patient_position(plan::PatientPosition position) {
+  switch (position) {
+    case plan::PatientPosition::hfs:
+      return PatientPosition::hfs;
+    case plan::PatientPosition::hfp:
+      return PatientPosition::hfp;
+    case plan::PatientPosition::ffs:
+      return PatientPosition::ffs;
+    case plan::PatientPosition::ffp:
+      return PatientPosition::ffp;
+    default:
+      return std::nullopt;
+  }
 }
 
 std::string_view to_code(PatientPosition position) {

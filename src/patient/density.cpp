@@ -9,7 +9,7 @@ namespace countersign::patient {
 DensityMap::DensityMap(const HuToDensity& relation)
     : table_(65536), lowest_hu_(relation.lowest_hu), highest_hu_(relation.highest_hu) {
   if (!relation.density) throw std::invalid_argument("DensityMap: no density relation given");
-  // Outside the covered range the relation's end rows apply (BEAMDATA.md): evaluate at the ends.
+  // Outside the covered range the relation's end rows apply (beamdata/FORMAT.md): evaluate at the ends.
   for (std::size_t n = 0; n < table_.size(); ++n) {
     const double hu = static_cast<double>(n) - 32768.0;
     table_[n] = relation.density(std::clamp(hu, lowest_hu_, highest_hu_));

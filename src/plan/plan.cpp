@@ -12,7 +12,13 @@ const Item* find_by_number(const std::vector<Item>& items, int number) {
 }
 }  // namespace
 
-const DevicePositions* ControlPoint::device(const std::string& type) const {
+const DevicePositions* ControlPoint::device(DeviceType type) const {
+  const auto it = std::find_if(devices.begin(), devices.end(),
+                               [type](const DevicePositions& d) { return d.type == type; });
+  return it == devices.end() ? nullptr : &*it;
+}
+
+const DevicePositions* ControlPoint::device(const Coded<DeviceType>& type) const {
   const auto it = std::find_if(devices.begin(), devices.end(), [&type](const DevicePositions& d) { return d.type == type; });
   return it == devices.end() ? nullptr : &*it;
 }

@@ -1,6 +1,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 
 #include <countersign/report/html_escape.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -50,30 +51,6 @@ std::string scale_text(double scale) {
 
 namespace {
 
-bool same(double a, double b) { return std::abs(a - b) < 1e-6; }
-
-// Merges rows with the same leaf-pair band into non-overlapping intervals.
-std::vector<geometry::ApertureRow> merge_rows(std::vector<geometry::ApertureRow> rows) {
-  std::sort(rows.begin(), rows.end(), [](const auto& a, const auto& b) {
-    if (!same(a.y_lower_mm, b.y_lower_mm)) return a.y_lower_mm < b.y_lower_mm;
-    if (!same(a.y_upper_mm, b.y_upper_mm)) return a.y_upper_mm < b.y_upper_mm;
-    return a.lo_mm < b.lo_mm;
-  });
-  std::vector<geometry::ApertureRow> merged;
-  for (const auto& r : rows) {
-    if (!merged.empty()) {
-      auto& last = merged.back();
-      if (same(last.y_lower_mm, r.y_lower_mm) && same(last.y_upper_mm, r.y_upper_mm) &&
-          r.lo_mm <= last.hi_mm) {
-        last.hi_mm = std::max(last.hi_mm, r.hi_mm);
-        continue;
-      }
-    }
-    merged.push_back(r);
-  }
-  return merged;
-}
-
 void include(geometry::JawOpening& envelope, const geometry::JawOpening& jaws, bool& first) {
   if (first) {
     envelope = jaws;
@@ -88,56 +65,19 @@ void include(geometry::JawOpening& envelope, const geometry::JawOpening& jaws, b
 
 }  // namespace
 
-std::optional<SweptOpening> swept_opening(const plan::Beam& beam) {
-  SweptOpening result;
-  std::vector<geometry::ApertureRow> rows;
-  bool first = true;
-  const auto& cps = beam.control_points;
-  for (std::size_t i = 0; i + 1 < cps.size(); ++i) {
-    const auto& a = cps[i];
-    const auto& b = cps[i + 1];
-    if (!a.cumulative_meterset_weight || !b.cumulative_meterset_weight) continue;
-    if (*b.cumulative_meterset_weight - *a.cumulative_meterset_weight <= 0.0) continue;
-    auto aperture_a = geometry::build_aperture(beam, a);
-    auto aperture_b = geometry::build_aperture(beam, b);
-    if (!aperture_a || !aperture_b) continue;
-    include(result.envelope, aperture_a->jaws(), first);
-    include(result.envelope, aperture_b->jaws(), first);
-    for (const auto* ap : {&aperture_a.value(), &aperture_b.value()}) {
-      for (const auto& r : ap->rows()) {
-        if (r.open()) rows.push_back(r);
-      }
-    }
-    // Leaves move linearly between control points: per leaf pair the swept area runs from the
-    // smaller to the larger of the two openings.
-    for (const auto& ra : aperture_a->rows()) {
-      for (const auto& rb : aperture_b->rows()) {
-        if (ra.open() && rb.open() && same(ra.y_lower_mm, rb.y_lower_mm) &&
-            same(ra.y_upper_mm, rb.y_upper_mm)) {
-          rows.push_back(
-              {ra.y_lower_mm, ra.y_upper_mm, std::min(ra.lo_mm, rb.lo_mm), std::max(ra.hi_mm, rb.hi_mm)});
-        }
-      }
-    }
-  }
-  if (first) return std::nullopt;
-  result.open = merge_rows(std::move(rows));
-  return result;
-}
-
-std::optional<BevContent> bev_content(const engine::BeamDose& dose, const plan::Beam* beam) {
+std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   if (dose.aperture.rows().empty() || !(dose.point.spd_mm > 0.0)) return std::nullopt;
   BevContent c;
   c.collimator_deg = dose.angles.collimator_deg;
   c.dose_point_mm = PaperMm{dose.point.iso_plane_x_mm, dose.point.iso_plane_y_mm};
   c.off_axis_mm = dose.point.off_axis_mm;
   c.modulated = dose.features.modulated;
-  if (!c.modulated) {
-    c.jaws = dose.aperture.jaws();
-    c.open = dose.aperture.rows();
-    c.shaped_by_mlc = dose.aperture.shaped_by_mlc();
-    return c;
-  }
+  // The outline is the one the engine built with the apertures; nothing is rebuilt here.
+  c.jaws = dose.outline.jaws;
+  c.open = dose.outline.open;
+  c.shaped_by_mlc = !c.modulated && dose.outline.shaped_by_mlc;
+  c.outline_known = dose.outline.known;
+  if (!c.modulated) return c;
   // Part points in the collimator system of control point 0 (the collimator may turn during a beam).
   const BevMapping to_cp0(1.0, -dose.angles.collimator_deg, {});
   for (const engine::Segment& s : dose.segments) {
@@ -145,17 +85,10 @@ std::optional<BevContent> bev_content(const engine::BeamDose& dose, const plan::
     const PaperMm g = to_gantry.to_gantry_mm(s.point.iso_plane_x_mm, s.point.iso_plane_y_mm);
     c.part_points_mm.push_back(to_cp0.to_gantry_mm(g.x, g.y));
   }
-  if (beam != nullptr) {
-    if (auto swept = swept_opening(*beam)) {
-      c.jaws = swept->envelope;
-      c.open = std::move(swept->open);
-      return c;
-    }
+  if (!c.outline_known) {
+    bool first = true;
+    for (const engine::Segment& s : dose.segments) include(c.jaws, s.jaws, first);
   }
-  c.outline_known = false;
-  bool first = true;
-  for (const engine::Segment& s : dose.segments) include(c.jaws, s.jaws, first);
-  if (first) c.jaws = dose.aperture.jaws();
   return c;
 }
 
@@ -214,7 +147,7 @@ std::string text(PaperMm at, std::string_view content, std::string_view anchor, 
 double scale_bar_cm(double scale) {
   double best = 1.0;
   for (const double cm : {1.0, 2.0, 5.0, 10.0, 20.0, 50.0}) {
-    if (cm * 10.0 * scale <= 50.0 + 1e-9) best = cm;
+    if (util::cm_to_mm(cm) * scale <= 50.0 + 1e-9) best = cm;
   }
   return best;
 }
@@ -324,7 +257,7 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
 
   // Scale bar, bottom left, and the scale in words, bottom right.
   const double bar_cm = scale_bar_cm(m.scale());
-  const double bar_mm = bar_cm * 10.0 * m.scale();
+  const double bar_mm = util::cm_to_mm(bar_cm) * m.scale();
   const double bx = 5.0;
   const double by = h - 5.0;
   const std::string_view bar = "stroke=\"#000\" stroke-width=\"0.4\"";

@@ -1,6 +1,7 @@
 #include <countersign/report/check_json.hpp>
 
 #include <countersign/report/html_report.hpp>
+#include <countersign/util/units.hpp>
 
 namespace countersign::report {
 
@@ -13,7 +14,9 @@ json optional_json(const std::optional<T>& value) {
   return value ? json(*value) : json(nullptr);
 }
 
-json mm_to_cm(const std::optional<double>& mm) { return mm ? json(*mm / 10.0) : json(nullptr); }
+json optional_mm_to_cm(const std::optional<double>& mm) {
+  return mm ? json(util::mm_to_cm(*mm)) : json(nullptr);
+}
 
 json factor_value(const engine::Factor& f) { return f.value; }
 
@@ -63,11 +66,11 @@ json provenance_json(const engine::PointDose& d) {
 
 json fields_json(const engine::PointDose& d, const geometry::JawOpening& jaws, double open_area_mm2,
                  bool mlc) {
-  return json{{"jaw_x1_cm", jaws.x1_mm / 10.0},
-              {"jaw_x2_cm", jaws.x2_mm / 10.0},
-              {"jaw_y1_cm", jaws.y1_mm / 10.0},
-              {"jaw_y2_cm", jaws.y2_mm / 10.0},
-              {"open_area_cm2", open_area_mm2 / 100.0},
+  return json{{"jaw_x1_cm", util::mm_to_cm(jaws.x1_mm)},
+              {"jaw_x2_cm", util::mm_to_cm(jaws.x2_mm)},
+              {"jaw_y1_cm", util::mm_to_cm(jaws.y1_mm)},
+              {"jaw_y2_cm", util::mm_to_cm(jaws.y2_mm)},
+              {"open_area_cm2", util::mm2_to_cm2(open_area_mm2)},
               {"shaped_by_mlc", mlc},
               {"collimator_cm", d.fields.collimator_cm},
               {"isocentre_cm", d.fields.isocentre_cm},
@@ -82,18 +85,18 @@ json segment_json(const engine::Segment& s) {
               {"gantry_deg", s.angles.gantry_deg},
               {"collimator_deg", s.angles.collimator_deg},
               {"couch_deg", s.angles.couch_deg},
-              {"depth_cm", s.depth_mm / 10.0},
-              {"spd_cm", s.point.spd_mm / 10.0},
-              {"ssd_cm", s.ssd_mm / 10.0},
-              {"off_axis_cm", s.point.off_axis_mm / 10.0},
+              {"depth_cm", util::mm_to_cm(s.depth_mm)},
+              {"spd_cm", util::mm_to_cm(s.point.spd_mm)},
+              {"ssd_cm", util::mm_to_cm(s.ssd_mm)},
+              {"off_axis_cm", util::mm_to_cm(s.point.off_axis_mm)},
               {"point_in_opening", s.point_in_opening},
               {"point_in_jaws", s.point_in_jaws},
               {"fields", fields_json(s.dose, s.jaws, s.open_area_mm2, s.open_area_mm2 > 0.0)},
               {"factors", factors_json(s.dose)},
-              {"dose_gy", s.dose.dose_cgy / 100.0}};
+              {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)}};
 }
 
-void add_calculation(json& j, const engine::BeamDose& c) {
+void add_calculation(json& j, const engine::BeamDose& c, const check::CalculationWords& words) {
   j["machine"] = c.machine != nullptr ? json(c.machine->name) : json(nullptr);
   j["beam_data_id"] = c.beam_data != nullptr ? json(c.beam_data->id) : json(nullptr);
   j["energy_mv"] = c.beam_data != nullptr ? json(c.beam_data->energy_mv) : json(nullptr);
@@ -104,25 +107,25 @@ void add_calculation(json& j, const engine::BeamDose& c) {
                          {"z_mm", c.dose_point.point_mm[2]}};
   if (!c.dose_computed) return;
   j["method"] = std::string(engine::to_code(c.method));
-  j["method_reason"] = c.method_reason;
+  j["method_reason"] = words.method_reason;
   j["patient_position"] =
       c.patient_position ? json(std::string(geometry::to_code(*c.patient_position))) : json(nullptr);
   j["gantry_deg"] = c.angles.gantry_deg;
   j["collimator_deg"] = c.angles.collimator_deg;
   j["couch_deg"] = c.angles.couch_deg;
-  j["depth_cm"] = c.depth.depth_mm / 10.0;
+  j["depth_cm"] = util::mm_to_cm(c.depth.depth_mm);
   j["depth_source"] = std::string(engine::to_code(c.depth.source));
   j["depth_kind"] = std::string(engine::to_code(c.depth.kind));
-  j["depth_description"] = c.depth.description;
-  j["plan_depth_cm"] = mm_to_cm(c.depth.plan_depth_mm);
-  j["plan_equivalent_depth_cm"] = mm_to_cm(c.depth.plan_equivalent_depth_mm);
-  j["spd_minus_ssd_cm"] = mm_to_cm(c.depth.spd_minus_ssd_mm);
-  j["spd_cm"] = c.point.spd_mm / 10.0;
-  j["ssd_cm"] = mm_to_cm(c.ssd_mm);
-  j["sad_cm"] = c.sad_mm / 10.0;
-  j["off_axis_cm"] = c.point.off_axis_mm / 10.0;
+  j["depth_description"] = words.depth_description;
+  j["plan_depth_cm"] = optional_mm_to_cm(c.depth.plan_depth_mm);
+  j["plan_equivalent_depth_cm"] = optional_mm_to_cm(c.depth.plan_equivalent_depth_mm);
+  j["spd_minus_ssd_cm"] = optional_mm_to_cm(c.depth.spd_minus_ssd_mm);
+  j["spd_cm"] = util::mm_to_cm(c.point.spd_mm);
+  j["ssd_cm"] = optional_mm_to_cm(c.ssd_mm);
+  j["sad_cm"] = util::mm_to_cm(c.sad_mm);
+  j["off_axis_cm"] = util::mm_to_cm(c.point.off_axis_mm);
   j["point_in_field"] = c.point_in_field;
-  j["edge_distance_cm"] = c.edge_distance_mm / 10.0;
+  j["edge_distance_cm"] = util::mm_to_cm(c.edge_distance_mm);
   j["modulated"] = c.features.modulated;
   j["segment_count"] = c.segments.size();
   j["fields"] = fields_json(c.dose, c.aperture.jaws(), c.aperture.area_mm2(), c.aperture.shaped_by_mlc());
@@ -137,7 +140,7 @@ void add_calculation(json& j, const engine::BeamDose& c) {
     j["provenance"] = provenance_json(c.dose);
     j["segments"] = json::array();
   }
-  j["approximations"] = c.approximations;
+  j["approximations"] = words.approximations;
 }
 
 }  // namespace
@@ -166,7 +169,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"beam_number", b.beam_number},
          {"beam_name", b.beam_name},
          {"status", std::string(check::to_code(b.status))},
-         {"reason", std::string(engine::reason_code(b.reason.reason))},
+         {"reason", std::string(check::reason_code(b.reason.reason))},
          {"explanation", b.reason.sentence},
          {"planned_dose_gy", optional_json(b.planned_dose_gy)},
          {"computed_dose_gy", optional_json(b.computed_dose_gy)},
@@ -195,7 +198,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
                           "segments",         "approximations"}) {
     j[key] = nullptr;
   }
-  if (b.calculation) add_calculation(j, *b.calculation);
+  if (b.calculation) add_calculation(j, *b.calculation, b.words);
   return j;
 }
 
@@ -211,7 +214,7 @@ json check_to_json(const check::PlanCheck& c) {
           {"coefficient", p.coefficient},
           {"planned_dose_gy", p.planned_dose_gy},
           {"computed_dose_gy", optional_json(p.computed_dose_gy)},
-          {"reason", p.problem ? json(std::string(engine::reason_code(p.problem->reason))) : json(nullptr)},
+          {"reason", p.problem ? json(std::string(check::reason_code(p.problem->reason))) : json(nullptr)},
           {"explanation", p.problem ? json(p.problem->sentence) : json(nullptr)}});
     }
     references.push_back(json{{"fraction_group_number", r.fraction_group_number},
@@ -245,7 +248,7 @@ json check_to_json(const check::PlanCheck& c) {
               {"approval_status", c.approval_status},
               {"warnings", c.warnings},
               {"status", std::string(check::to_code(c.status))},
-              {"reason", std::string(engine::reason_code(c.reason.reason))},
+              {"reason", std::string(check::reason_code(c.reason.reason))},
               {"explanation", c.reason.sentence},
               {"exit_code", static_cast<int>(c.exit_code())},
               {"beams", std::move(beams)},

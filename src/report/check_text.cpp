@@ -1,4 +1,5 @@
 #include <countersign/report/check_text.hpp>
+#include <countersign/util/units.hpp>
 
 #include <countersign/util/text.hpp>
 
@@ -21,7 +22,7 @@ std::string depth_label(const check::BeamCheck& b) {
   if (d.source == engine::DepthSource::derived_spd_minus_ssd) tag = "SPD-SSD";
   if (d.source == engine::DepthSource::derived_from_dose_point_ssd) tag = "ray-SSD";
   if (d.kind == engine::DepthChoice::equivalent) tag = "equiv";
-  return fmt::format("{:.1f} {}", d.depth_mm / 10.0, tag);
+  return fmt::format("{:.1f} {}", util::mm_to_cm(d.depth_mm), tag);
 }
 
 // A value from the plan file, on one line of a terminal: control characters escaped.
@@ -54,13 +55,13 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   bool header = false;
   for (const check::BeamCheck& b : c.beams) {
     if (b.status == check::Status::within_tolerance &&
-        b.reason.reason == engine::Reason::deviation_within_tolerance) {
+        b.reason.reason == check::Reason::deviation_within_tolerance) {
       continue;
     }
     if (!header) out << "\n";
     header = true;
     out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, shown(b.beam_name),
-                       check::to_code(b.status), engine::reason_code(b.reason.reason), b.reason.sentence);
+                       check::to_code(b.status), check::reason_code(b.reason.reason), b.reason.sentence);
   }
   if (!c.dose_references.empty()) {
     out << "\nDose references (sum of contributions):\n";
@@ -71,7 +72,7 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
                          r.note.empty() ? "" : " (" + r.note + ")");
     }
   }
-  out << fmt::format("\nPlan: {} ({}): {}\n", check::to_code(c.status), engine::reason_code(c.reason.reason),
+  out << fmt::format("\nPlan: {} ({}): {}\n", check::to_code(c.status), check::reason_code(c.reason.reason),
                      c.reason.sentence);
 }
 

@@ -1,8 +1,23 @@
 #include <countersign/report/explain_report.hpp>
+#include <countersign/util/units.hpp>
+
+#include <fmt/format.h>
 
 namespace countersign::report {
 
 namespace {
+
+std::string_view label(engine::SensitivityQuantity quantity) {
+  switch (quantity) {
+    case engine::SensitivityQuantity::depth:
+      return "depth";
+    case engine::SensitivityQuantity::ssd:
+      return "SSD";
+    case engine::SensitivityQuantity::field_size:
+      return "field-size";
+  }
+  return "";
+}
 
 // Parts the engine counted (a part outside the jaws of a modulated beam gets no calculation).
 bool delivers_dose(const engine::Segment& s) { return s.dose.dose_per_mu_cgy > 0.0; }
@@ -22,6 +37,20 @@ FormalismDose with_method(const beamdata::BeamData& data, const std::vector<engi
 }
 
 }  // namespace
+
+std::string reconciliation_sentence(const engine::Reconciliation& r) {
+  const std::string_view name = label(r.quantity);
+  if (r.change_cm) {
+    return fmt::format(
+        "{} {} change of {:+.2f} cm ({:.2f} -> {:.2f} cm) alone would make the computed dose equal the "
+        "planned "
+        "dose{}",
+        r.quantity == engine::SensitivityQuantity::ssd ? "an" : "a", name, *r.change_cm, r.baseline_cm,
+        r.baseline_cm + *r.change_cm, r.extrapolated ? "; that value lies outside the beam-data tables" : "");
+  }
+  return fmt::format("no {} change between {:+.2f} cm and {:+.2f} cm reconciles the two doses", name,
+                     r.search_min_change_cm, r.search_max_change_cm);
+}
 
 const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number,
                                   std::optional<int> fraction_group) {
@@ -55,7 +84,7 @@ BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::Sensiti
   } else if (!(*beam.planned_dose_gy > 0.0)) {
     e.sensitivity_note = "the planned Beam Dose (300A,0084) is not positive";
   } else {
-    e.sensitivity = engine::reconcile(*c.beam_data, e.parts, *beam.planned_dose_gy * 100.0, limits);
+    e.sensitivity = engine::reconcile(*c.beam_data, e.parts, util::gy_to_cgy(*beam.planned_dose_gy), limits);
   }
   return e;
 }

@@ -3,6 +3,7 @@
 #include <countersign/geometry/patient_position.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/util/units.hpp>
 
 namespace countersign::report {
 
@@ -60,12 +61,12 @@ json fields_json(const engine::FieldSizes& s) {
 
 json formalism_json(const FormalismDose& f) {
   return {{"method", engine::to_code(f.method)},
-          {"dose_gy", f.dose_cgy / 100.0},
+          {"dose_gy", util::cgy_to_gy(f.dose_cgy)},
           {"first_part_dose_per_mu_cgy", f.first_part.dose_per_mu_cgy},
           {"first_part_factors", factors_json(f.first_part)}};
 }
 
-json geometry_json(const engine::BeamDose& c) {
+json geometry_json(const engine::BeamDose& c, const check::CalculationWords& words) {
   json g;
   g["patient_position"] = c.patient_position ? json(geometry::to_code(*c.patient_position)) : json(nullptr);
   if (c.patient_position) {
@@ -92,7 +93,7 @@ json geometry_json(const engine::BeamDose& c) {
   g["depth_mm"] = c.depth.depth_mm;
   g["depth_kind"] = engine::to_code(c.depth.kind);
   g["depth_source"] = engine::to_code(c.depth.source);
-  g["depth_description"] = c.depth.description;
+  g["depth_description"] = words.depth_description;
   g["plan_depth_mm"] = optional_json(c.depth.plan_depth_mm);
   g["plan_equivalent_depth_mm"] = optional_json(c.depth.plan_equivalent_depth_mm);
   g["spd_minus_ssd_mm"] = optional_json(c.depth.spd_minus_ssd_mm);
@@ -108,8 +109,8 @@ json geometry_json(const engine::BeamDose& c) {
                {"y2_mm", j.y2_mm},
                {"x_from_mlc_envelope", j.x_source == geometry::JawSource::mlc_envelope},
                {"y_from_mlc_envelope", j.y_source == geometry::JawSource::mlc_envelope}};
-  g["aperture_area_cm2"] = c.aperture.area_mm2() / 100.0;
-  g["aperture_perimeter_cm"] = c.aperture.perimeter_mm() / 10.0;
+  g["aperture_area_cm2"] = util::mm2_to_cm2(c.aperture.area_mm2());
+  g["aperture_perimeter_cm"] = util::mm_to_cm(c.aperture.perimeter_mm());
   g["shaped_by_mlc"] = c.aperture.shaped_by_mlc();
   g["field_sizes"] = c.dose_computed ? fields_json(c.dose.fields) : json(nullptr);
   return g;
@@ -147,7 +148,7 @@ json sensitivity_json(const BeamExplanation& e) {
                        {"search_min_change_cm", r.search_min_change_cm},
                        {"search_max_change_cm", r.search_max_change_cm},
                        {"extrapolated", r.extrapolated},
-                       {"sentence", r.sentence}});
+                       {"sentence", reconciliation_sentence(r)}});
   }
   // If a single factor alone were wrong: the value it would need (the calculation is a product).
   json needed = json::array();
@@ -162,8 +163,8 @@ json sensitivity_json(const BeamExplanation& e) {
                         {"needed_value", row.role == "divides" ? value / ratio : value * ratio}});
     }
   }
-  return {{"target_dose_gy", s.target_dose_cgy / 100.0},
-          {"baseline_dose_gy", s.baseline_dose_cgy / 100.0},
+  return {{"target_dose_gy", util::cgy_to_gy(s.target_dose_cgy)},
+          {"baseline_dose_gy", util::cgy_to_gy(s.baseline_dose_cgy)},
           {"planned_to_computed_ratio", ratio},
           {"changes", changes},
           {"factor_needed", needed},
@@ -203,7 +204,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
                {"name", beam.beam_name},
                {"fraction_group_number", beam.fraction_group_number}};
   j["status"] = check::to_code(beam.status);
-  j["reason"] = {{"code", engine::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
+  j["reason"] = {{"code", check::reason_code(beam.reason.reason)}, {"sentence", beam.reason.sentence}};
   j["meterset_mu"] = optional_json(beam.meterset_mu);
   j["planned_dose_gy"] = optional_json(beam.planned_dose_gy);
   j["computed_dose_gy"] = optional_json(beam.computed_dose_gy);
@@ -215,14 +216,15 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["tolerance_policy"] = check.options.policy.source;
 
   const engine::BeamDose* c = beam.calculation ? &*beam.calculation : nullptr;
+  const auto& problem = beam.words.problem;
   j["calculation_problem"] =
-      c != nullptr && c->problem
-          ? json({{"code", engine::reason_code(c->problem->reason)}, {"sentence", c->problem->sentence}})
+      c != nullptr && problem
+          ? json({{"code", check::reason_code(problem->reason)}, {"sentence", problem->sentence}})
           : json(nullptr);
   j["beam_data"] = c != nullptr ? beam_data_json(check, *c) : json(nullptr);
-  j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c) : json(nullptr);
+  j["geometry"] = c != nullptr && c->point.spd_mm > 0.0 ? geometry_json(*c, beam.words) : json(nullptr);
   if (c != nullptr && c->dose_computed) {
-    j["method"] = {{"used", engine::to_code(c->method)}, {"reason", c->method_reason}};
+    j["method"] = {{"used", engine::to_code(c->method)}, {"reason", beam.words.method_reason}};
     j["factors"] = factors_json(c->dose);
     j["dose_per_mu_cgy"] = c->dose.dose_per_mu_cgy;
     j["parts"] = parts_json(*c);
@@ -240,7 +242,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
     j["formalisms"] = nullptr;
   }
   j["sensitivity"] = sensitivity_json(e);
-  j["approximations"] = c != nullptr ? json(c->approximations) : json::array();
+  j["approximations"] = c != nullptr ? json(beam.words.approximations) : json::array();
   j["caution"] = caution_text();
   return j;
 }

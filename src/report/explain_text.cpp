@@ -3,6 +3,7 @@
 #include <countersign/geometry/patient_position.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
@@ -76,7 +77,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     return out;
   }
   const engine::BeamDose& c = *beam.calculation;
-  if (c.problem) out += fmt::format("  calculation stopped: {}\n", c.problem->sentence);
+  const check::CalculationWords& words = beam.words;
+  if (words.problem) out += fmt::format("  calculation stopped: {}\n", words.problem->sentence);
 
   out += "\nBeam data\n";
   out += fmt::format("  library {}  SHA-256 {}\n", check.beamdata_root, check.beamdata_sha256);
@@ -112,7 +114,7 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
         fmt::format("  point in collimator coordinates ({:.1f}, {:.1f}, {:.1f}) mm\n", p.x(), p.y(), p.z());
     out += fmt::format("  SPD {:.1f} mm, ray length {:.1f} mm, SSD {}\n", c.point.spd_mm,
                        c.point.ray_length_mm, opt(c.ssd_mm, 1, " mm"));
-    out += fmt::format("  depth {:.1f} mm: {}\n", c.depth.depth_mm, c.depth.description);
+    out += fmt::format("  depth {:.1f} mm: {}\n", c.depth.depth_mm, words.depth_description);
     out += fmt::format("    plan depth {}, plan equivalent depth {}, SPD - SSD {}\n",
                        opt(c.depth.plan_depth_mm, 1, " mm"), opt(c.depth.plan_equivalent_depth_mm, 1, " mm"),
                        opt(c.depth.spd_minus_ssd_mm, 1, " mm"));
@@ -124,8 +126,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     const auto& j = c.aperture.jaws();
     out += fmt::format(
         "  jaws X1 {:.1f} X2 {:.1f} Y1 {:.1f} Y2 {:.1f} mm; opening {:.2f} cm2, perimeter {:.2f} cm{}\n",
-        j.x1_mm, j.x2_mm, j.y1_mm, j.y2_mm, c.aperture.area_mm2() / 100.0, c.aperture.perimeter_mm() / 10.0,
-        c.aperture.shaped_by_mlc() ? ", shaped by MLC" : "");
+        j.x1_mm, j.x2_mm, j.y1_mm, j.y2_mm, util::mm2_to_cm2(c.aperture.area_mm2()),
+        util::mm_to_cm(c.aperture.perimeter_mm()), c.aperture.shaped_by_mlc() ? ", shaped by MLC" : "");
     if (c.dose_computed) {
       const auto& s = c.dose.fields;
       out += fmt::format(
@@ -137,11 +139,11 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
   }
 
   if (c.dose_computed) {
-    out += fmt::format("\nFactors ({}; {})\n", engine::to_code(c.method), c.method_reason);
+    out += fmt::format("\nFactors ({}; {})\n", engine::to_code(c.method), words.method_reason);
     if (c.segments.size() > 1) out += "  (first part of the beam; every part is listed below)\n";
     factor_lines(out, c.dose);
-    out +=
-        fmt::format("    x {:.2f} MU = {:.3f} cGy for the beam\n", c.meterset_mu, c.computed_dose_gy * 100.0);
+    out += fmt::format("    x {:.2f} MU = {:.3f} cGy for the beam\n", c.meterset_mu,
+                       util::gy_to_cgy(c.computed_dose_gy));
     if (c.segments.size() > 1) {
       out += fmt::format(
           "\nParts ({})\n    part  from_cp       MU  gantry  field_cm  depth_mm  point          dose_cGy\n",
@@ -179,8 +181,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     }
     out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "dose per MU, first part (cGy/MU)",
                        e.tmr->first_part.dose_per_mu_cgy, e.pdd->first_part.dose_per_mu_cgy);
-    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "beam dose (Gy)", e.tmr->dose_cgy / 100.0,
-                       e.pdd->dose_cgy / 100.0);
+    out += fmt::format("    {:<40} {:>12.4f} {:>12.4f}\n", "beam dose (Gy)", util::cgy_to_gy(e.tmr->dose_cgy),
+                       util::cgy_to_gy(e.pdd->dose_cgy));
     out += fmt::format(
         "    PDD form - TMR form: {} %\n",
         e.formalism_difference_percent ? fmt::format("{:+.2f}", *e.formalism_difference_percent) : "-");
@@ -193,14 +195,14 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     const auto& s = *e.sensitivity;
     const double ratio = s.baseline_dose_cgy > 0.0 ? s.target_dose_cgy / s.baseline_dose_cgy : 0.0;
     out += fmt::format("  planned {:.4f} Gy, independent {:.4f} Gy (planned / independent = {:.4f})\n",
-                       s.target_dose_cgy / 100.0, s.baseline_dose_cgy / 100.0, ratio);
+                       util::cgy_to_gy(s.target_dose_cgy), util::cgy_to_gy(s.baseline_dose_cgy), ratio);
     if (beam.meterset_mu && beam.independent_mu) {
       out += fmt::format(
           "  the meterset: the plan has {:.1f} MU, this calculation needs {:.1f} MU for the planned dose\n",
           *beam.meterset_mu, *beam.independent_mu);
     }
     out += "  each change alone, every other input as calculated:\n";
-    for (const auto& r : s.changes) out += fmt::format("  - {}\n", r.sentence);
+    for (const auto& r : s.changes) out += fmt::format("  - {}\n", reconciliation_sentence(r));
     if (ratio > 0.0 && !e.parts.empty() && e.tmr && e.pdd) {
       const engine::PointDose& used =
           e.parts.front().method == engine::Method::tmr ? e.tmr->first_part : e.pdd->first_part;
@@ -213,9 +215,9 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     }
   }
 
-  if (!c.approximations.empty()) {
+  if (!words.approximations.empty()) {
     out += "\nApproximations\n";
-    for (const auto& a : c.approximations) out += "  - " + a + "\n";
+    for (const auto& a : words.approximations) out += "  - " + a + "\n";
   }
   out += fmt::format("\n{}\n", caution_text());
   return out;

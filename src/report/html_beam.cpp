@@ -4,6 +4,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_escape.hpp>
+#include <countersign/util/units.hpp>
 
 #include "html_parts.hpp"
 
@@ -21,11 +22,7 @@ std::string fact(std::string_view label, const std::string& value) {
   return fmt::format("<tr><th>{}</th><td>{}</td></tr>\n", label, html_escape(value));
 }
 
-const plan::Beam* plan_beam(const HtmlOptions& options, int number) {
-  return options.plan != nullptr ? options.plan->beam(number) : nullptr;
-}
-
-std::string setup_facts(const engine::BeamDose& c) {
+std::string setup_facts(const engine::BeamDose& c, const check::CalculationWords& words) {
   std::string out = "<table>\n";
   if (c.machine != nullptr && c.beam_data != nullptr) {
     out += fact("Machine / beam", fmt::format("{} / {} ({:g} MV {})", c.machine->name, c.beam_data->id,
@@ -43,15 +40,15 @@ std::string setup_facts(const engine::BeamDose& c) {
   out += fact("Jaws Y1 / Y2 mm",
               fmt::format("{:.1f} / {:.1f}{}", j.y1_mm, j.y2_mm,
                           j.y_source == geometry::JawSource::mlc_envelope ? " (MLC envelope)" : ""));
-  out += fact("Opening (cp 0)", fmt::format("{:.1f} cm\u00B2{}", c.aperture.area_mm2() / 100.0,
+  out += fact("Opening (cp 0)", fmt::format("{:.1f} cm\u00B2{}", util::mm2_to_cm2(c.aperture.area_mm2()),
                                             c.aperture.shaped_by_mlc() ? ", shaped by MLC" : ", jaws only"));
   if (c.ssd_mm) out += fact("SSD", fmt::format("{:.1f} mm", *c.ssd_mm));
   out += fact("Source to point plane (SPD)", fmt::format("{:.1f} mm", c.point.spd_mm));
   out += fact("Depth", fmt::format("{:.1f} mm", c.depth.depth_mm));
-  out += fact("Depth from", c.depth.description);
+  out += fact("Depth from", words.depth_description);
   out += fact("Off axis (isocentre plane)", fmt::format("{:.1f} mm", c.point.off_axis_mm));
   if (!c.features.modulated) out += fact("Nearest field edge", fmt::format("{:.1f} mm", c.edge_distance_mm));
-  out += fact("Formalism", c.method_reason);
+  out += fact("Formalism", words.method_reason);
   if (c.dose_computed) {
     const engine::FieldSizes& s = c.dose.fields;
     out += fact("Equivalent squares cm",
@@ -94,7 +91,7 @@ std::string factor_table(const engine::BeamDose& c) {
   out += fmt::format(
       "<tr class=\"total\"><td>Independent dose (cGy)</td><td class=\"num\">{:.2f}</td><td "
       "colspan=\"2\"></td></tr>\n",
-      c.computed_dose_gy * 100.0);
+      util::gy_to_cgy(c.computed_dose_gy));
   out += "</tbody></table>\n";
   return out;
 }
@@ -135,12 +132,12 @@ std::string parts_table(const engine::BeamDose& c) {
   out += fmt::format(
       "<tr class=\"total\"><td colspan=\"2\">Beam</td><td class=\"num\">{:.2f}</td><td colspan=\"4\"></td>"
       "<td class=\"num\">{:.2f}</td></tr>\n</tbody></table>\n",
-      c.meterset_mu, c.computed_dose_gy * 100.0);
+      c.meterset_mu, util::gy_to_cgy(c.computed_dose_gy));
   return out;
 }
 
-std::string figure(const engine::BeamDose& c, const HtmlOptions& options, int beam_number) {
-  const auto content = bev_content(c, plan_beam(options, beam_number));
+std::string figure(const engine::BeamDose& c) {
+  const auto content = bev_content(c);
   if (!content) return "<p>No beam's-eye view: the field geometry was not resolved.</p>\n";
   const BevPanel panel;
   const BevMapping mapping = bev_mapping(*content, panel);
@@ -155,8 +152,8 @@ std::string figure(const engine::BeamDose& c, const HtmlOptions& options, int be
     caption += content->outline_known ? " Grey: area open in at least one part of the beam; dashed: envelope "
                                         "of the jaws; small circles: the "
                                         "point as each part sees it."
-                                      : " Dashed: envelope of the jaws of all parts (leaf shapes need the "
-                                        "plan); small circles: the point "
+                                      : " Dashed: envelope of the jaws of all parts (no leaf shapes could be "
+                                        "built); small circles: the point "
                                         "as each part sees it.";
   }
   return fmt::format("<figure>{}<figcaption>{}</figcaption></figure>\n", beams_eye_view_svg(*content, panel),
@@ -166,7 +163,7 @@ std::string figure(const engine::BeamDose& c, const HtmlOptions& options, int be
 }  // namespace
 
 std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& beam, std::size_t index,
-                         std::size_t count, const HtmlOptions& options) {
+                         std::size_t count) {
   std::string out = fmt::format("<section class=\"beam\" id=\"beam-{}-{}\">\n", beam.fraction_group_number,
                                 beam.beam_number);
   out += fmt::format(
@@ -200,8 +197,9 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
     return out;
   }
   const engine::BeamDose& c = *beam.calculation;
-  out += "<div class=\"figure-row\">\n" + figure(c, options, beam.beam_number);
-  out += "<div class=\"facts\"><h3>Setup and geometry</h3>\n" + setup_facts(c) + "</div>\n</div>\n";
+  out += "<div class=\"figure-row\">\n" + figure(c);
+  out +=
+      "<div class=\"facts\"><h3>Setup and geometry</h3>\n" + setup_facts(c, beam.words) + "</div>\n</div>\n";
 
   if (c.dose_computed) {
     if (c.features.modulated) {
@@ -211,12 +209,12 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
                          c.method == engine::Method::tmr ? "isocentric TMR" : "fixed-SSD PDD");
       out += factor_table(c);
     }
-  } else if (c.problem) {
-    out += fmt::format("<p>No dose was computed: {}.</p>\n", html_escape(c.problem->sentence));
+  } else if (beam.words.problem) {
+    out += fmt::format("<p>No dose was computed: {}.</p>\n", html_escape(beam.words.problem->sentence));
   }
-  if (!c.approximations.empty()) {
+  if (!beam.words.approximations.empty()) {
     out += "<h3>Approximations</h3>\n<ul class=\"notes\">\n";
-    for (const auto& a : c.approximations) out += "<li>" + html_escape(a) + "</li>\n";
+    for (const auto& a : beam.words.approximations) out += "<li>" + html_escape(a) + "</li>\n";
     out += "</ul>\n";
   }
   out += "</section>\n";

@@ -153,7 +153,7 @@ std::string verdict_sentence(const check::BeamCheck& beam) {
           "The independent dose differs from the planned dose by {} %, inside the \u00B1{} % "
           "allowed{}.",
           signed_fixed(beam.deviation_percent, 1), fixed(beam.tolerance_percent, 1), category);
-      if (beam.reason.reason == engine::Reason::deviation_within_tolerance_of_point_total) {
+      if (beam.reason.reason == check::Reason::deviation_within_tolerance_of_point_total) {
         text += fmt::format(" Judged against the dose point's total: {}.", beam.reason.sentence);
       }
       return text;

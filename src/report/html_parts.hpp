@@ -31,6 +31,6 @@ namespace countersign::report::html {
 
 // The page section for one beam (starts a new printed page).
 [[nodiscard]] std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& beam,
-                                       std::size_t index, std::size_t count, const HtmlOptions& options);
+                                       std::size_t index, std::size_t count);
 
 }  // namespace countersign::report::html

@@ -98,7 +98,8 @@ std::string no_chromium_message(const std::filesystem::path& pdf_file) {
 
 std::string file_url(const std::filesystem::path& absolute_path) {
   std::string url = "file://";
-  for (const unsigned char c : absolute_path.string()) {
+  for (const char byte : absolute_path.string()) {
+    const auto c = static_cast<unsigned char>(byte);
     const bool plain = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
                        c == '/' || c == '-' || c == '_' || c == '.' || c == '~';
     url += plain ? std::string(1, static_cast<char>(c)) : fmt::format("%{:02X}", c);
@@ -197,9 +198,9 @@ Expected<std::filesystem::path> write_pdf(const check::PlanCheck& check,
                                           const std::filesystem::path& chromium, const HtmlOptions& options) {
   auto work = TemporaryFolder::create("countersign-html-");
   if (!work) return pdf_error(pdf_file, "cannot create a temporary folder for the HTML record");
-  auto html = write_html(check, work->path() / "record.html", options);
-  if (!html) return html.error();
-  return print_pdf(*html, pdf_file, chromium);
+  std::filesystem::path html;
+  TRY_ASSIGN(html, write_html(check, work->path() / "record.html", options));
+  return print_pdf(html, pdf_file, chromium);
 }
 
 }  // namespace countersign::report

@@ -210,7 +210,7 @@ std::string html_report(const check::PlanCheck& check, const HtmlOptions& option
     if (b.status != check::Status::skipped) detailed.push_back(&b);
   }
   for (std::size_t i = 0; i < detailed.size(); ++i) {
-    page += html::beam_section(check, *detailed[i], i, detailed.size(), options);
+    page += html::beam_section(check, *detailed[i], i, detailed.size());
   }
   page += "</body>\n</html>\n";
   return page;

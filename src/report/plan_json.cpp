@@ -15,6 +15,12 @@ json optional_value(const std::optional<T>& value) {
 
 json optional_text(const std::string& text) { return text.empty() ? json(nullptr) : json(text); }
 
+// A code string as the plan spells it.
+template <class Term>
+json optional_text(const plan::Coded<Term>& coded) {
+  return optional_text(coded.text);
+}
+
 json point(const std::optional<plan::PointMm>& p) {
   return p ? json::array({(*p)[0], (*p)[1], (*p)[2]}) : json(nullptr);
 }
@@ -40,8 +46,8 @@ json accessories(const std::vector<plan::Accessory>& items) {
 json jaws(const plan::ControlPoint* cp) {
   json out = {{"x1", nullptr}, {"x2", nullptr}, {"y1", nullptr}, {"y2", nullptr}};
   if (cp == nullptr) return out;
-  auto fill = [&](const char* a, const char* b, const char* lo, const char* hi) {
-    for (const char* type : {a, b}) {
+  auto fill = [&](plan::DeviceType a, plan::DeviceType b, const char* lo, const char* hi) {
+    for (const plan::DeviceType type : {a, b}) {
       const auto* device = cp->device(type);
       if (device != nullptr && device->positions_mm.size() == 2) {
         out[lo] = device->positions_mm[0];
@@ -50,14 +56,14 @@ json jaws(const plan::ControlPoint* cp) {
       }
     }
   };
-  fill("X", "ASYMX", "x1", "x2");
-  fill("Y", "ASYMY", "y1", "y2");
+  fill(plan::DeviceType::x, plan::DeviceType::asymx, "x1", "x2");
+  fill(plan::DeviceType::y, plan::DeviceType::asymy, "y1", "y2");
   return out;
 }
 
 json control_point(const plan::ControlPoint& cp) {
   json devices = json::object();
-  for (const auto& d : cp.devices) devices[d.type] = d.positions_mm;
+  for (const auto& d : cp.devices) devices[d.type.text] = d.positions_mm;
   json coefficients = json::array();
   for (const auto& c : cp.dose_reference_coefficients) {
     coefficients.push_back({{"dose_reference_number", c.dose_reference_number},
@@ -65,7 +71,7 @@ json control_point(const plan::ControlPoint& cp) {
   }
   json wedges = json::array();
   for (const auto& w : cp.wedge_positions)
-    wedges.push_back({{"wedge_number", w.wedge_number}, {"position", w.position}});
+    wedges.push_back({{"wedge_number", w.wedge_number}, {"position", w.position.text}});
   return {{"index", cp.index},
           {"energy_mv", optional_value(cp.nominal_energy_mv)},
           {"dose_rate_mu_per_min", optional_value(cp.dose_rate_mu_per_min)},
@@ -123,8 +129,8 @@ json beam_json(const plan::Plan& plan, const plan::Beam& beam) {
   int mlc_pairs = 0;
   json devices = json::array();
   for (const auto& d : beam.beam_limiting_devices) {
-    if (d.type == "MLCX" || d.type == "MLCY") mlc_pairs = d.pair_count;
-    devices.push_back({{"type", d.type},
+    if (d.type == plan::DeviceType::mlcx || d.type == plan::DeviceType::mlcy) mlc_pairs = d.pair_count;
+    devices.push_back({{"type", d.type.text},
                        {"pairs", d.pair_count},
                        {"source_to_device_distance_mm", optional_value(d.source_to_device_distance_mm)},
                        {"leaf_boundaries_mm", d.leaf_boundaries_mm}});

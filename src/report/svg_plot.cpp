@@ -125,7 +125,7 @@ std::string legend(const std::vector<Series>& series) {
   }
   if (series.size() > rows)
     out += fmt::format("<text x=\"{}\" y=\"{}\">… {} more</text>\n", width - right + 12,
-                       top + 10 + 14.0 * rows, series.size() - rows);
+                       top + 10 + 14.0 * static_cast<double>(rows), series.size() - rows);
   return out;
 }
 

@@ -1,13 +1,13 @@
 #include <countersign/service/check_processor.hpp>
 
-#include <countersign/beamdata/sha256.hpp>
+#include <countersign/check/reason.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom_export/export_objects.hpp>
 #include <countersign/engine/point_dose.hpp>
-#include <countersign/engine/reason.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/report/json_text.hpp>
+#include <countersign/util/sha256.hpp>
 
 #include <charconv>
 #include <cstdlib>
@@ -95,7 +95,7 @@ std::string policy_sha256(const check::TolerancePolicy& policy) {
     text +=
         std::string{name} + "=" + (error == std::errc{} ? std::string{number, end} : std::string{"?"}) + "\n";
   }
-  return beamdata::sha256_hex(text);
+  return util::sha256_hex(text);
 }
 
 PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& plan) {
@@ -131,7 +131,7 @@ PlanOutcome outcome_from_check(const check::PlanCheck& check, const plan::Plan& 
       beam.deviation_percent = beam_check.deviation_percent;
       beam.tolerance_percent = beam_check.tolerance_percent;
     } else {
-      beam.reason = std::string{engine::reason_code(beam_check.reason.reason)};
+      beam.reason = std::string{check::reason_code(beam_check.reason.reason)};
     }
     outcome.beams.push_back(std::move(beam));
   }
@@ -144,14 +144,12 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
   return [library = std::move(library), options = std::move(options), policy_hash](
              const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
-    if (!plan) return plan.error();
+    if (!plan) return std::move(plan).error();
     const check::PlanCheck check = check::check_plan(plan.value(), *library, options);
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
         report::json_text(report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())));
-    report::HtmlOptions html;
-    html.plan = &plan.value();
-    outcome.html_text = report::html_report(check, html);
+    outcome.html_text = report::html_report(check);
     outcome.policy_sha256 = policy_hash;
     add_structured_result(outcome, check, file);
     return outcome;
@@ -159,16 +157,10 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
 }
 
 Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
-                                             const std::optional<std::filesystem::path>& policy_file) {
-  check::CheckOptions options;
-  if (policy_file) {
-    auto policy = check::load_policy(*policy_file);
-    if (!policy) return policy.error();
-    options.policy = std::move(policy.value());
-  }
+                                             check::CheckOptions options) {
   auto library = beamdata::load_library(beamdata_dir);
-  if (!library) return library.error();
-  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library.value())),
+  if (!library) return std::move(library).error();
+  return make_check_processor(std::make_shared<const beamdata::Library>(std::move(library).value()),
                               std::move(options));
 }
 

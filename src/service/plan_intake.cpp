@@ -1,9 +1,12 @@
 #include <countersign/service/plan_intake.hpp>
 #include <countersign/service/private_files.hpp>
 
-#include <countersign/beamdata/sha256.hpp>
 #include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/dicom/plan_files.hpp>
+#include <countersign/util/sha256.hpp>
+#include <countersign/util/text.hpp>
+#include <countersign/util/version.hpp>
+
 #include <countersign/service/unique_fd.hpp>
 #include <countersign/store/audit.hpp>
 #include <countersign/util/text.hpp>
@@ -156,9 +159,9 @@ std::string shown_name(const fs::path& inbox, const fs::path& file) {
 // DICOM (to be retried or quarantined) are hashed as they are.
 std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::path& file) {
   if (const auto canonical = dicom::canonical_dataset_bytes(bytes, file.string())) {
-    return beamdata::sha256_hex(*canonical);
+    return util::sha256_hex(*canonical);
   }
-  return beamdata::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
+  return util::sha256_hex(std::string_view{reinterpret_cast<const char*>(bytes.data()), bytes.size()});
 }
 
 }  // namespace
@@ -391,7 +394,7 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
     processed.emplace(processor_(file, std::span<const std::byte>{read.bytes}));
   } catch (const std::exception& e) {
     // A defect in the checking code must not stop the service; the file is kept for investigation.
-    processed.emplace(Error{ErrorKind::inconsistent, file.string(), "", "",
+    processed.emplace(Error{ErrorKind::internal, file.string(), "", "",
                             std::string{"internal error while checking: "} + e.what()});
   }
   if (!processed->has_value()) return quarantine(file, content_sha256, processed->error().message());
@@ -405,8 +408,8 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   checked.candidate = candidate;
   checked.name = shown_name(folders_.inbox, file);
   checked.content_sha256 = content_sha256;
-  checked.plan_sha256 = beamdata::sha256_hex(
-      std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
+  checked.plan_sha256 =
+      util::sha256_hex(std::string_view{reinterpret_cast<const char*>(read.bytes.data()), read.bytes.size()});
   checked.outcome = std::move(outcome);
   checked.started = started;
   checked.index = index;
@@ -461,14 +464,14 @@ store::NewCheck PlanIntake::new_check(const Pending& p, std::int64_t id) const {
   check.results_folder = results_folder_;
   const std::string stem = outcome.sop_instance_uid + "/" + std::to_string(id);
   check.files.result_json = stem + ".json";
-  check.hashes.result_sha256 = beamdata::sha256_hex(outcome.json_text);
+  check.hashes.result_sha256 = util::sha256_hex(outcome.json_text);
   if (outcome.html_text) {
     check.files.record_html = stem + ".html";
-    check.hashes.record_sha256 = beamdata::sha256_hex(*outcome.html_text);
+    check.hashes.record_sha256 = util::sha256_hex(*outcome.html_text);
   }
   if (outcome.sr_bytes) {
     check.files.result_sr = stem + ".sr.dcm";
-    check.hashes.sr_sha256 = beamdata::sha256_hex(*outcome.sr_bytes);
+    check.hashes.sr_sha256 = util::sha256_hex(*outcome.sr_bytes);
   }
   check.files.plan = "plans/" + outcome.sop_instance_uid + "." + p.content_sha256.substr(0, 16) + ".dcm";
   check.hashes.plan_sha256 = p.plan_sha256;

@@ -1,9 +1,9 @@
 #include <countersign/service/record_objects.hpp>
 
-#include <countersign/beamdata/sha256.hpp>
 #include <countersign/dicom_export/export_objects.hpp>
 #include <countersign/report/html_pdf.hpp>
 #include <countersign/service/private_files.hpp>
+#include <countersign/util/sha256.hpp>
 
 #include <dcmtk/config/osconfig.h>  // must come first among DCMTK headers
 
@@ -59,7 +59,7 @@ Expected<fs::path> made_pdf(const store::CheckRecord& check, const fs::path& res
 std::optional<std::string> sha256_of_file(const fs::path& file) {
   std::ifstream in(file, std::ios::binary);
   if (!in) return std::nullopt;
-  beamdata::Sha256 hash;
+  util::Sha256 hash;
   std::string buffer(1 << 16, '\0');
   while (in) {
     in.read(buffer.data(), static_cast<std::streamsize>(buffer.size()));

@@ -2,8 +2,8 @@
 // form, UTF-8 (bytes that are not become U+FFFD), so that the same fields give the same text in
 // every backend and every run.
 
-#include <countersign/beamdata/sha256.hpp>
 #include <countersign/store/audit.hpp>
+#include <countersign/util/sha256.hpp>
 
 #include <nlohmann/json.hpp>
 
@@ -89,7 +89,7 @@ std::string import_content(const std::vector<CheckRecord>& legacy_checks) {
 }
 
 std::string chain_hash(const std::string& previous_hash, const std::string& content) {
-  beamdata::Sha256 hash;
+  util::Sha256 hash;
   hash.update(previous_hash);
   hash.update("\n");
   hash.update(content);

@@ -1,8 +1,8 @@
 // `audit verify`: the chain recomputed, every entry compared with the rows as they are now, and the
 // files of the checks compared with the hashes recorded. Findings come in the order of the trail.
 
-#include <countersign/beamdata/sha256.hpp>
 #include <countersign/store/audit.hpp>
+#include <countersign/util/sha256.hpp>
 
 #include <nlohmann/json.hpp>
 
@@ -107,7 +107,7 @@ std::string entry_name(const AuditEntry& entry) {
 std::optional<std::string> file_sha256(const fs::path& file) {
   std::ifstream in(file, std::ios::binary);
   if (!in) return std::nullopt;
-  beamdata::Sha256 hash;
+  util::Sha256 hash;
   std::string buffer(1 << 16, '\0');
   while (in) {
     in.read(buffer.data(), static_cast<std::streamsize>(buffer.size()));

@@ -1,4 +1,4 @@
-// Physics of the commissioning conversions (DESIGN.md §5). Each expected value names its source.
+// Physics of the commissioning conversions (DEVELOPERS.md, "Physics"). Each expected value names its source.
 #include <countersign/beamdata/conversions.hpp>
 
 #include <gtest/gtest.h>
@@ -10,7 +10,7 @@ namespace countersign::beamdata {
 namespace {
 
 TEST(EquivalentSquare, SterlingFourAreaOverPerimeterHandValues) {
-  // Hand values of 4A/P (Sterling's rule as stated in DESIGN.md §5):
+  // Hand values of 4A/P (Sterling's rule as stated in DEVELOPERS.md, "Physics"):
   EXPECT_DOUBLE_EQ(equivalent_square_cm(10.0, 10.0), 10.0);            // a square is its own equivalent
   EXPECT_NEAR(equivalent_square_cm(10.0, 20.0), 13.3333333333, 1e-9);  // 4*200/60
   EXPECT_NEAR(equivalent_square_cm(5.0, 20.0), 8.0, 1e-12);            // 4*100/50
@@ -41,7 +41,7 @@ TEST(MayneordF, HandValueSixMegavolt) {
 }
 
 TEST(MayneordF, AboveOneForLongerSsdBelowOneForShorter) {
-  // Common practice, no source: PDD rises with SSD (DESIGN.md §5 "F > 1 when SSD > SSDt").
+  // Common practice, no source: PDD rises with SSD (DEVELOPERS.md, "Physics" "F > 1 when SSD > SSDt").
   for (const double depth : {3.0, 5.0, 10.0, 20.0, 30.0}) {
     EXPECT_GT(mayneord_f_factor(110.0, 100.0, 1.5, depth), 1.0) << depth;
     EXPECT_GT(mayneord_f_factor(140.0, 100.0, 1.5, depth), mayneord_f_factor(110.0, 100.0, 1.5, depth))

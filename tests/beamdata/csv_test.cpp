@@ -1,4 +1,4 @@
-// Reading and writing single CSV tables (BEAMDATA.md "CSV tables").
+// Reading and writing single CSV tables (beamdata/FORMAT.md "CSV tables").
 #include <countersign/beamdata/csv.hpp>
 
 #include "beamdata/library_fixture.hpp"

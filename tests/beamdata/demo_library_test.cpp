@@ -1,6 +1,6 @@
 // The bundled demo library beamdata/FERN-LINAC-1 (INVENTED data for the fictional Fernhollow
 // Radiotherapy Unit): plausible magnitudes against typical published values, mutual consistency
-// (BEAMDATA.md), and agreement with the model it was generated from.
+// (beamdata/FORMAT.md), and agreement with the model it was generated from.
 #include <countersign/beamdata/conversions.hpp>
 #include <countersign/beamdata/library.hpp>
 #include <countersign/beamdata/validation.hpp>
@@ -100,7 +100,7 @@ TEST_F(DemoLibrary, TrendsWithFieldSizeAndEnergy) {
 }
 
 TEST_F(DemoLibrary, PddTmrSpConsistentWithinHalfAPercent) {
-  // BEAMDATA.md: the demo library is consistent through the PDD->TMR relation within 0.5 %.
+  // beamdata/FORMAT.md: the demo library is consistent through the PDD->TMR relation within 0.5 %.
   for (const double e : {6.0, 10.0}) {
     const BeamData& b = beam(e);
     std::size_t compared = 0;
@@ -147,7 +147,7 @@ TEST(DemoLinacModel, DefinitionsHold) {
       EXPECT_NEAR(demo_linac::pdd(m, m.dmax_cm, s, 120.0), 100.0, 1e-9);
       // The maximum of the depth dose lies at dmax (within the 0.1 cm search step).
       for (double d = 0.0; d <= 10.0; d += 0.1) EXPECT_LE(demo_linac::pdd(m, d, s, 100.0), 100.0 + 1e-9) << d;
-      // PDD and TMR/Sp satisfy the relation of DESIGN.md §5 exactly, at another SSD too.
+      // PDD and TMR/Sp satisfy the relation of DEVELOPERS.md, "Physics" exactly, at another SSD too.
       for (const double ssd : {90.0, 100.0, 120.0}) {
         const double d = 12.0;
         const double s_d = field_at_depth_cm(s, ssd, d);

@@ -1,4 +1,4 @@
-// Loading beam-data libraries (BEAMDATA.md): a small library written by hand in library_fixture.hpp
+// Loading beam-data libraries (beamdata/FORMAT.md): a small library written by hand in library_fixture.hpp
 // (invented data, not the demo), matching, the fingerprint, and errors that name file and place.
 #include <countersign/beamdata/library.hpp>
 

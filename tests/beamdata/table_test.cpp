@@ -1,4 +1,4 @@
-// Interpolation and provenance of the beam-data tables (BEAMDATA.md: linear per axis, bilinear in
+// Interpolation and provenance of the beam-data tables (beamdata/FORMAT.md: linear per axis, bilinear in
 // two-axis tables, extrapolation never silent). Expected values are computed by hand.
 #include <countersign/beamdata/table.hpp>
 

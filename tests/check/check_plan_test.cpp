@@ -10,7 +10,6 @@
 namespace countersign::check {
 namespace {
 
-using engine::Reason;
 using test_fixtures::BeamSpec;
 using test_fixtures::make_plan;
 using test_fixtures::static_beam;
@@ -76,7 +75,7 @@ TEST_F(Verdict, SmallContributorJudgedAgainstThePointTotal) {
 
 TEST_F(Verdict, SetupBeamsAndBeamsWithoutMuAreSkipped) {
   plan::Beam setup = static_beam(2, 0);
-  setup.delivery_type = "SETUP";
+  setup.delivery_type = plan::parse_term<plan::DeliveryType>("SETUP");
   plan::Plan plan = make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0},
                                {setup, 0.0, 0.0, 100.0},
                                {static_beam(3, 0), 0.0, 0.0, 100.0}});
@@ -91,7 +90,7 @@ TEST_F(Verdict, SetupBeamsAndBeamsWithoutMuAreSkipped) {
 
 TEST_F(Verdict, NothingToCheckIsNotAPass) {
   plan::Beam setup = static_beam(1, 0);
-  setup.delivery_type = "SETUP";
+  setup.delivery_type = plan::parse_term<plan::DeliveryType>("SETUP");
   const PlanCheck c = run(make_plan({{setup, 10.0, 0.0, 100.0}}));
   EXPECT_EQ(c.status, Status::not_checked);
   EXPECT_EQ(c.reason.reason, Reason::nothing_to_check);
@@ -104,7 +103,7 @@ TEST_F(Verdict, EngineReasonsMakeThePlanNotChecked) {
   plan::Beam other = static_beam(2, 0);
   other.machine_name = "NOWHERE-LINAC";
   plan::Beam electron = static_beam(3, 0);
-  electron.radiation_type = "ELECTRON";
+  electron.radiation_type = plan::parse_term<plan::RadiationType>("ELECTRON");
   const PlanCheck c = run(with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0},
                                                   {other, 100.0, 1.0, 100.0},
                                                   {electron, 100.0, 1.0, 100.0}}),
@@ -143,7 +142,7 @@ TEST_F(Verdict, NoPlannedDose) {
 
 TEST_F(Verdict, FractionLevelDoseIsNotABeamDose) {
   plan::Plan plan = with_planned(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}), {1.0});
-  plan.fraction_groups[0].beam_dose_meaning = "FRACTION_LEVEL";
+  plan.fraction_groups[0].beam_dose_meaning = plan::parse_term<plan::BeamDoseMeaning>("FRACTION_LEVEL");
   const PlanCheck c = run(plan);
   EXPECT_EQ(c.beams[0].reason.reason, Reason::planned_dose_not_beam_level);
   EXPECT_EQ(c.status, Status::not_checked);
@@ -186,7 +185,7 @@ TEST_F(Verdict, InconsistentDepth) {
 
 TEST_F(Verdict, WedgeWithOffAxisPointIsUnsupportedGeometry) {
   plan::Beam beam = static_beam(1, 0, 100.0, 100.0);
-  beam.wedges.push_back({1, "STANDARD", "W30", 30.0, std::nullopt, 0.0});
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), "W30", 30.0, std::nullopt, 0.0});
   EXPECT_EQ(
       run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0})).beams[0].reason.reason,
       Reason::unsupported_geometry);

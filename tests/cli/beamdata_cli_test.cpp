@@ -78,7 +78,7 @@ TEST(BeamdataDeriveTmrCli, ReproducesTheDemoTmrFromItsPdd) {
   ASSERT_TRUE(derived) << derived.error().message();
   const auto demo = beamdata::read_table2d(demo_6x() / "tmr.csv", "tmr", "depth_cm", "field_cm");
   ASSERT_TRUE(demo);
-  // The demo tables are consistent within 0.5 % (BEAMDATA.md), so the derived TMR must be too.
+  // The demo tables are consistent within 0.5 % (beamdata/FORMAT.md), so the derived TMR must be too.
   for (const double depth : {1.5, 5.0, 10.0, 20.0, 30.0}) {
     for (const double field : {10.0, 20.0}) {
       const double expected = demo->at(depth, field).value;

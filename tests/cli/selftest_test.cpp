@@ -75,8 +75,11 @@ TEST(ErrorInjection, JawsAreExchangedAtEveryControlPoint) {
   const auto& after = injected->plan.beam(1)->control_points;
   ASSERT_EQ(before.size(), after.size());
   for (std::size_t i = 0; i < before.size(); ++i) {
-    const auto* x_before = before[i].device("ASYMX") ? before[i].device("ASYMX") : before[i].device("X");
-    const auto* x_after = after[i].device("ASYMX") ? after[i].device("ASYMX") : after[i].device("X");
+    const auto* x_before = before[i].device(plan::DeviceType::asymx)
+                               ? before[i].device(plan::DeviceType::asymx)
+                               : before[i].device(plan::DeviceType::x);
+    const auto* x_after = after[i].device(plan::DeviceType::asymx) ? after[i].device(plan::DeviceType::asymx)
+                                                                   : after[i].device(plan::DeviceType::x);
     ASSERT_NE(x_before, nullptr);
     EXPECT_EQ(x_after->positions_mm[0], x_before->positions_mm[1]);
     EXPECT_EQ(x_after->positions_mm[1], x_before->positions_mm[0]);

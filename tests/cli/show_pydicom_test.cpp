@@ -75,8 +75,8 @@ std::vector<std::string> plan_files() {
 }
 
 INSTANTIATE_TEST_SUITE_P(Plans, ShowMatchesPydicom, ::testing::ValuesIn(plan_files()),
-                         [](const ::testing::TestParamInfo<std::string>& info) {
-                           std::string name = fs::path(info.param).stem().string();
+                         [](const ::testing::TestParamInfo<std::string>& plan) {
+                           std::string name = fs::path(plan.param).stem().string();
                            for (char& c : name) {
                              if (!std::isalnum(static_cast<unsigned char>(c))) c = '_';
                            }

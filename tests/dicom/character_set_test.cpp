@@ -105,7 +105,7 @@ INSTANTIATE_TEST_SUITE_P(
         NameCase{"iso2022_korean", "\\ISO 2022 IR 149",
                  "Hong^Gildong=\x1B$)C\xFB\xF3^\x1B$)C\xD1\xCE\xD4\xD7",
                  "Hong^Gildong=\xE6\xB4\xAA^\xE5\x90\x89\xE6\xB4\x9E"}),
-    [](const auto& info) { return std::string{info.param.label}; });
+    [](const auto& name_case) { return std::string{name_case.param.label}; });
 
 TEST(CharacterSetsChinese, Iso2022Ir58IsConverted) {
   // GB 2312 through ISO 2022 (ESC $ ) A); the name of DICOM PS3.5 Annex K's example (from memory).

@@ -82,16 +82,16 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
     EXPECT_EQ(plan.sop_class_uid, rt_plan_storage_uid);
     EXPECT_EQ(plan.approval_status, "APPROVED");
     ASSERT_EQ(plan.patient_setups.size(), 1u);
-    EXPECT_EQ(plan.patient_setups[0].patient_position, row.at("patient_position"));
-    EXPECT_EQ(plan.patient_setups[0].setup_technique, row.at("setup_technique"));
+    EXPECT_EQ(plan.patient_setups[0].patient_position.text, row.at("patient_position"));
+    EXPECT_EQ(plan.patient_setups[0].setup_technique.text, row.at("setup_technique"));
 
     const int number = std::stoi(row.at("beam_number"));
     const plan::Beam* beam = plan.beam(number);
     ASSERT_NE(beam, nullptr);
     EXPECT_EQ(beam->name, row.at("beam_name"));
     EXPECT_EQ(beam->machine_name, "FERN-LINAC-1");
-    EXPECT_EQ(beam->radiation_type, "PHOTON");
-    EXPECT_EQ(beam->delivery_type, row.at("delivery_type"));
+    EXPECT_EQ(beam->radiation_type, plan::RadiationType::photon);
+    EXPECT_EQ(beam->delivery_type.text, row.at("delivery_type"));
     ASSERT_TRUE(beam->sad_mm.has_value());
     EXPECT_DOUBLE_EQ(*beam->sad_mm, 1000.0);
     ASSERT_EQ(beam->control_points.size(), static_cast<std::size_t>(std::stoi(row.at("control_points"))));
@@ -102,10 +102,11 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
     EXPECT_EQ(beam->control_points.back().cumulative_meterset_weight.value(), 1.0);
 
     const bool has_mlc = row.at("mlc") == "MLCX";
-    EXPECT_EQ(cp0.device("MLCX") != nullptr, has_mlc);
+    EXPECT_EQ(cp0.device(plan::DeviceType::mlcx) != nullptr, has_mlc);
     if (has_mlc) {
-      const auto& mlc = *std::find_if(beam->beam_limiting_devices.begin(), beam->beam_limiting_devices.end(),
-                                      [](const plan::BeamLimitingDevice& d) { return d.type == "MLCX"; });
+      const auto& mlc =
+          *std::find_if(beam->beam_limiting_devices.begin(), beam->beam_limiting_devices.end(),
+                        [](const plan::BeamLimitingDevice& d) { return d.type == plan::DeviceType::mlcx; });
       // The invented MLC of FERN-LINAC-1: 72 pairs, all 5 mm wide (tools/demo_linac/model.hpp).
       EXPECT_EQ(mlc.pair_count, 72);
       ASSERT_EQ(mlc.leaf_boundaries_mm.size(), 73u);
@@ -120,7 +121,7 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
       ASSERT_EQ(beam->wedges.size(), 1u);
       EXPECT_EQ(beam->wedges[0].id, row.at("wedge_id"));
       ASSERT_EQ(cp0.wedge_positions.size(), 1u);
-      EXPECT_EQ(cp0.wedge_positions[0].position, "IN");
+      EXPECT_EQ(cp0.wedge_positions[0].position.text, "IN");
     }
     if (row.at("tray_id") == "-") {
       EXPECT_TRUE(beam->blocks.empty());
@@ -200,19 +201,20 @@ TEST(ReadPlanDemo, ArcControlPointsCarryForwardWhatTheyOmit) {
     EXPECT_EQ(cp.collimator_deg, first.collimator_deg);
     EXPECT_EQ(cp.couch_deg, first.couch_deg);
     EXPECT_EQ(cp.isocenter_mm, first.isocenter_mm);
-    ASSERT_NE(cp.device("ASYMX"), nullptr);
-    EXPECT_EQ(cp.device("ASYMX")->positions_mm, first.device("ASYMX")->positions_mm);
-    ASSERT_NE(cp.device("MLCX"), nullptr);
-    EXPECT_EQ(cp.device("MLCX")->positions_mm.size(), 144u);
+    ASSERT_NE(cp.device(plan::DeviceType::asymx), nullptr);
+    EXPECT_EQ(cp.device(plan::DeviceType::asymx)->positions_mm,
+              first.device(plan::DeviceType::asymx)->positions_mm);
+    ASSERT_NE(cp.device(plan::DeviceType::mlcx), nullptr);
+    EXPECT_EQ(cp.device(plan::DeviceType::mlcx)->positions_mm.size(), 144u);
   }
   // The gantry moves clockwise 190 -> 170 through 0 in 20 degree steps; the MLC changes.
   EXPECT_DOUBLE_EQ(arc.control_points[0].gantry_deg.value(), 190.0);
   EXPECT_DOUBLE_EQ(arc.control_points[9].gantry_deg.value(), 10.0);
   EXPECT_DOUBLE_EQ(arc.control_points[17].gantry_deg.value(), 170.0);
-  EXPECT_EQ(arc.control_points[0].gantry_rotation, "CW");
-  EXPECT_NE(arc.control_points[0].device("MLCX")->positions_mm,
-            arc.control_points[9].device("MLCX")->positions_mm);
-  EXPECT_EQ(plan->beams.at(1).control_points[0].gantry_rotation, "CC");
+  EXPECT_EQ(arc.control_points[0].gantry_rotation.text, "CW");
+  EXPECT_NE(arc.control_points[0].device(plan::DeviceType::mlcx)->positions_mm,
+            arc.control_points[9].device(plan::DeviceType::mlcx)->positions_mm);
+  EXPECT_EQ(plan->beams.at(1).control_points[0].gantry_rotation.text, "CC");
 }
 
 TEST(ReadPlanDemo, StaticBeamSecondControlPointInheritsJawsAndLeaves) {
@@ -221,7 +223,8 @@ TEST(ReadPlanDemo, StaticBeamSecondControlPointInheritsJawsAndLeaves) {
   const auto& cps = plan->beams.at(0).control_points;
   ASSERT_EQ(cps.size(), 2u);
   ASSERT_EQ(cps[1].devices.size(), 3u);  // ASYMX, ASYMY, MLCX although control point 1 lists none
-  EXPECT_EQ(cps[1].device("MLCX")->positions_mm, cps[0].device("MLCX")->positions_mm);
+  EXPECT_EQ(cps[1].device(plan::DeviceType::mlcx)->positions_mm,
+            cps[0].device(plan::DeviceType::mlcx)->positions_mm);
   EXPECT_FALSE(cps[1].ssd_mm.has_value());  // not carried: the SSD belongs to its control point
   EXPECT_DOUBLE_EQ(cps[1].cumulative_meterset_weight.value(), 1.0);
 }
@@ -236,9 +239,11 @@ TEST(ReadPlanDemo, StepAndShootSegmentsKeepTheirWeights) {
   EXPECT_DOUBLE_EQ(cps[2].cumulative_meterset_weight.value(), 0.5);
   EXPECT_DOUBLE_EQ(cps[3].cumulative_meterset_weight.value(), 0.8);
   EXPECT_DOUBLE_EQ(cps[5].cumulative_meterset_weight.value(), 1.0);
-  EXPECT_EQ(cps[1].device("MLCX")->positions_mm, cps[0].device("MLCX")->positions_mm);
-  EXPECT_NE(cps[2].device("MLCX")->positions_mm, cps[1].device("MLCX")->positions_mm);
-  EXPECT_EQ(plan->beams.at(0).beam_type, "DYNAMIC");
+  EXPECT_EQ(cps[1].device(plan::DeviceType::mlcx)->positions_mm,
+            cps[0].device(plan::DeviceType::mlcx)->positions_mm);
+  EXPECT_NE(cps[2].device(plan::DeviceType::mlcx)->positions_mm,
+            cps[1].device(plan::DeviceType::mlcx)->positions_mm);
+  EXPECT_EQ(plan->beams.at(0).beam_type.text, "DYNAMIC");
 }
 
 }  // namespace

@@ -42,6 +42,8 @@ std::string kind_name(ErrorKind kind) {
       return "bad_configuration";
     case ErrorKind::usage:
       return "usage";
+    case ErrorKind::internal:
+      return "internal";
   }
   return "?";
 }
@@ -85,10 +87,10 @@ TEST(ReadPlanPydicomFiles, RtPlanValues) {
   EXPECT_DOUBLE_EQ(beam.control_points[0].nominal_energy_mv.value(), 6.0);
   // Control point 1 gives only its index, weight and coefficients; the rest is carried forward.
   EXPECT_DOUBLE_EQ(beam.control_points[1].nominal_energy_mv.value(), 6.0);
-  EXPECT_DOUBLE_EQ(beam.control_points[1].device("X")->positions_mm.at(0), -100.0);
+  EXPECT_DOUBLE_EQ(beam.control_points[1].device(plan::DeviceType::x)->positions_mm.at(0), -100.0);
   EXPECT_DOUBLE_EQ(beam.control_points[1].dose_reference_coefficients.at(0).cumulative_coefficient.value(),
                    0.9990268);
-  EXPECT_EQ(plan->patient_setups.at(0).patient_position, "HFS");
+  EXPECT_EQ(plan->patient_setups.at(0).patient_position.text, "HFS");
 }
 
 TEST(ReadPlanPydicomFiles, TruncatedPlanIsRejectedAsTruncated) {

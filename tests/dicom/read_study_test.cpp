@@ -98,9 +98,9 @@ TEST_P(OtherTransferSyntax, SameVolume) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Dcmconv, OtherTransferSyntax, ::testing::Values("+ti", "+tb", "+td"),
-                         [](const auto& info) {
-                           return info.param == "+ti"   ? "ImplicitLittle"
-                                  : info.param == "+tb" ? "ExplicitBig"
+                         [](const auto& syntax) {
+                           return syntax.param == "+ti"   ? "ImplicitLittle"
+                                  : syntax.param == "+tb" ? "ExplicitBig"
                                                         : "Deflated";
                          });
 

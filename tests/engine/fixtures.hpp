@@ -100,15 +100,15 @@ inline plan::Beam static_beam(int number, double gantry_deg, double half_x_mm = 
   beam.number = number;
   beam.name = "B" + std::to_string(number);
   beam.machine_name = machine_name;
-  beam.radiation_type = "PHOTON";
-  beam.delivery_type = "TREATMENT";
-  beam.beam_type = "STATIC";
-  beam.primary_dosimeter_unit = "MU";
+  beam.radiation_type = plan::parse_term<plan::RadiationType>("PHOTON");
+  beam.delivery_type = plan::parse_term<plan::DeliveryType>("TREATMENT");
+  beam.beam_type = plan::parse_term<plan::BeamType>("STATIC");
+  beam.primary_dosimeter_unit = plan::parse_term<plan::DosimeterUnit>("MU");
   beam.sad_mm = 1000.0;
   beam.final_cumulative_meterset_weight = 1.0;
   beam.referenced_patient_setup_number = 1;
-  beam.beam_limiting_devices.push_back({"ASYMX", std::nullopt, 1, {}});
-  beam.beam_limiting_devices.push_back({"ASYMY", std::nullopt, 1, {}});
+  beam.beam_limiting_devices.push_back({plan::term(plan::DeviceType::asymx), std::nullopt, 1, {}});
+  beam.beam_limiting_devices.push_back({plan::term(plan::DeviceType::asymy), std::nullopt, 1, {}});
   plan::ControlPoint cp0;
   cp0.index = 0;
   cp0.nominal_energy_mv = 6.0;
@@ -116,8 +116,8 @@ inline plan::Beam static_beam(int number, double gantry_deg, double half_x_mm = 
   cp0.collimator_deg = 0.0;
   cp0.couch_deg = 0.0;
   cp0.isocenter_mm = plan::PointMm{0, 0, 0};
-  cp0.devices.push_back({"ASYMX", {-half_x_mm, half_x_mm}});
-  cp0.devices.push_back({"ASYMY", {-half_y_mm, half_y_mm}});
+  cp0.devices.push_back({plan::term(plan::DeviceType::asymx), {-half_x_mm, half_x_mm}});
+  cp0.devices.push_back({plan::term(plan::DeviceType::asymy), {-half_y_mm, half_y_mm}});
   cp0.cumulative_meterset_weight = 0.0;
   plan::ControlPoint cp1 = cp0;
   cp1.index = 1;
@@ -142,17 +142,18 @@ inline plan::Plan make_plan(std::vector<BeamSpec> beams, plan::PointMm point = {
   p.source_file = "hand-built";
   p.sop_instance_uid = "2.25.1";
   p.label = "TEST";
-  p.patient_setups.push_back({1, position, technique, ""});
+  p.patient_setups.push_back({1, plan::parse_term<plan::PatientPosition>(position),
+                              plan::parse_term<plan::SetupTechnique>(technique), ""});
   plan::DoseReference ref;
   ref.number = 1;
-  ref.structure_type = "COORDINATES";
+  ref.structure_type = plan::parse_term<plan::DoseReferenceStructure>("COORDINATES");
   ref.type = "TARGET";
   ref.point_mm = point;
   p.dose_references.push_back(ref);
   plan::FractionGroup fg;
   fg.number = 1;
   fg.fractions_planned = 1;
-  fg.beam_dose_meaning = "BEAM_LEVEL";
+  fg.beam_dose_meaning = plan::parse_term<plan::BeamDoseMeaning>("BEAM_LEVEL");
   for (BeamSpec& spec : beams) {
     plan::ReferencedBeam rb;
     rb.beam_number = spec.beam.number;

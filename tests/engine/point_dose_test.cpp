@@ -1,5 +1,5 @@
 // The point-dose formulas. Hand calculations: the formulas are those of AAPM TG-71 (2014) as
-// written in DESIGN.md §5; the table values are invented, of typical magnitude for 6 MV (from
+// written in DEVELOPERS.md, "Physics"; the table values are invented, of typical magnitude for 6 MV (from
 // memory), and placed on table nodes so the expected numbers are plain products.
 
 #include <countersign/engine/point_dose.hpp>
@@ -107,16 +107,17 @@ TEST(PointDose, ExtendedSsdUsesMayneordAndInverseSquare) {
   EXPECT_NEAR(d.dose_per_mu_cgy, 1.0 * 1.0 * sp * 0.668 * 1.025933 * (101.5 / 121.5) * (101.5 / 121.5), 1e-6);
 }
 
+// Hand calculation: the isocentric case above, 1.000 · 1.020 · 1.010 · 0.800 · (101.5/100)², times the
+// wedge factor 0.700, the tray factor 0.970 and a transmission of 0.015 (TG-71: each multiplies).
 TEST(PointDose, WedgeTrayAndTransmissionMultiply) {
   const beamdata::BeamData b = hand_beam();
   DoseInputs in = isocentric_15x15_at_10cm();
-  const double open = compute_point_dose(b, in).dose_per_mu_cgy;
   in.wedge = b.wedge("W30");
   in.tray = b.tray("TRAY-T");
   in.transmission = 0.015;
   const PointDose d = compute_point_dose(b, in);
   EXPECT_EQ(d.factors.wedge.basis, FactorBasis::manifest_constant);
-  EXPECT_NEAR(d.dose_per_mu_cgy, open * 0.700 * 0.970 * 0.015, 1e-12);
+  EXPECT_NEAR(d.dose_per_mu_cgy, 1.020 * 1.010 * 0.800 * 1.015 * 1.015 * 0.700 * 0.970 * 0.015, 1e-12);
 }
 
 TEST(PointDose, WedgeFactorTableIsLookedUp) {
@@ -156,7 +157,7 @@ TEST(PointDose, CalibrationAtDepthReproducesTheOutput) {
 }
 
 // With PDD, TMR and Sp consistent (the fixture derives PDD from TMR and Sp), the two formalisms give
-// the same dose at the same point within 1 % (DESIGN.md §5; the remaining difference is
+// the same dose at the same point within 1 % (DEVELOPERS.md, "Physics"; the remaining difference is
 // interpolation and, off the table's SSD, the Mayneord approximation).
 TEST(PointDose, FormalismsAgreeForConsistentData) {
   const beamdata::BeamData b = test_fixtures::test_beam();

@@ -1,7 +1,7 @@
 // The sensitivity search against hand calculations. The beam here is INVENTED and deliberately
 // simple (tables linear or constant along each axis, so bilinear interpolation is exact) so that each
 // reconciling change has a closed form that can be worked out on paper from the formulas of
-// AAPM TG-71 (2014), eq. for the isocentric (TMR) and SSD (PDD) forms as written in DESIGN.md §5.
+// AAPM TG-71 (2014), eq. for the isocentric (TMR) and SSD (PDD) forms as written in DEVELOPERS.md, "Physics".
 
 #include <countersign/engine/sensitivity.hpp>
 
@@ -96,7 +96,7 @@ TEST(Sensitivity, TmrFormChangesMatchHandCalculation) {
 
 TEST(Sensitivity, PddFormSsdChangeIsInverseSquareToThePoint) {
   // SSD form: F(SSD) x ((SSDref + dm)/(SSD + dm))^2 = ((SSDt + d)/(SSD + d))^2 ((SSDref + dm)/(SSDt + dm))^2,
-  // so with PDD and Sp independent of field the dose goes as 1/(SSD + d)^2 (Mayneord F as in DESIGN.md §5).
+  // so with PDD and Sp independent of field the dose goes as 1/(SSD + d)^2 (Mayneord F as in DEVELOPERS.md, "Physics").
   const auto beam = linear_beam();
   DoseInputs in = tmr_inputs();
   in.method = Method::pdd;
@@ -127,8 +127,6 @@ TEST(Sensitivity, SaysWhenNoChangeInRangeReconciles) {
   ASSERT_FALSE(s.changes[0].change_cm);
   EXPECT_NEAR(s.changes[0].search_min_change_cm, -9.9, 1e-12);
   EXPECT_NEAR(s.changes[0].search_max_change_cm, 10.0, 1e-12);
-  EXPECT_NE(s.changes[0].sentence.find("no depth change between -9.90 cm and +10.00 cm"), std::string::npos)
-      << s.changes[0].sentence;
 }
 
 TEST(Sensitivity, AgreeingDosesNeedNoChange) {
@@ -164,7 +162,6 @@ TEST(Sensitivity, MarksAReconcilingValueOutsideTheTables) {
   EXPECT_NEAR(10.0 + *s.changes[0].change_cm, 31.597794, 1e-5);
   EXPECT_GT(10.0 + *s.changes[0].change_cm, 30.0);
   EXPECT_TRUE(s.changes[0].extrapolated);
-  EXPECT_NE(s.changes[0].sentence.find("outside the beam-data tables"), std::string::npos);
 }
 
 }  // namespace

@@ -11,7 +11,7 @@ namespace {
 plan::Beam beam_with_mlc(int pairs, double leaf_width_mm) {
   plan::Beam beam;
   plan::BeamLimitingDevice mlc;
-  mlc.type = "MLCX";
+  mlc.type = plan::term(plan::DeviceType::mlcx);
   mlc.pair_count = pairs;
   for (int i = 0; i <= pairs; ++i)
     mlc.leaf_boundaries_mm.push_back(-0.5 * pairs * leaf_width_mm + i * leaf_width_mm);
@@ -21,8 +21,8 @@ plan::Beam beam_with_mlc(int pairs, double leaf_width_mm) {
 
 plan::ControlPoint jaws(double x1, double x2, double y1, double y2) {
   plan::ControlPoint cp;
-  cp.devices.push_back({"ASYMX", {x1, x2}});
-  cp.devices.push_back({"ASYMY", {y1, y2}});
+  cp.devices.push_back({plan::term(plan::DeviceType::asymx), {x1, x2}});
+  cp.devices.push_back({plan::term(plan::DeviceType::asymy), {y1, y2}});
   return cp;
 }
 
@@ -58,7 +58,7 @@ TEST(Aperture, AsymmetricJawsAndEdgeDistance) {
 TEST(Aperture, MlcShapeAreaPerimeterAndEdges) {
   const plan::Beam beam = beam_with_mlc(4, 10.0);
   plan::ControlPoint cp = jaws(-20, 20, -20, 20);
-  cp.devices.push_back({"MLCX", {-30, -25, -20, 5, /*B*/ 30, 25, 0, 5}});
+  cp.devices.push_back({plan::term(plan::DeviceType::mlcx), {-30, -25, -20, 5, /*B*/ 30, 25, 0, 5}});
   const auto a = build_aperture(beam, cp);
   ASSERT_TRUE(a) << a.error().message();
   EXPECT_TRUE(a->shaped_by_mlc());
@@ -75,7 +75,7 @@ TEST(Aperture, MlcShapeAreaPerimeterAndEdges) {
 TEST(Aperture, MlcEnvelopeReplacesMissingJaws) {
   const plan::Beam beam = beam_with_mlc(2, 10.0);
   plan::ControlPoint cp;
-  cp.devices.push_back({"MLCX", {-30, -10, 20, 40}});
+  cp.devices.push_back({plan::term(plan::DeviceType::mlcx), {-30, -10, 20, 40}});
   const auto a = build_aperture(beam, cp);
   ASSERT_TRUE(a) << a.error().message();
   EXPECT_EQ(a->jaws().x_source, JawSource::mlc_envelope);
@@ -87,18 +87,18 @@ TEST(Aperture, MlcEnvelopeReplacesMissingJaws) {
 
 TEST(Aperture, RejectsMissingOrUnsupportedDevices) {
   plan::ControlPoint only_x;
-  only_x.devices.push_back({"X", {-50, 50}});
+  only_x.devices.push_back({plan::term(plan::DeviceType::x), {-50, 50}});
   const auto missing = build_aperture(plan::Beam{}, only_x);
   ASSERT_FALSE(missing);
   EXPECT_EQ(missing.error().kind, ErrorKind::missing_attribute);
   EXPECT_EQ(missing.error().tag, "(300A,011C)");
 
   plan::ControlPoint mlcy = jaws(-50, 50, -50, 50);
-  mlcy.devices.push_back({"MLCY", {0, 0}});
+  mlcy.devices.push_back({plan::term(plan::DeviceType::mlcy), {0, 0}});
   EXPECT_EQ(build_aperture(plan::Beam{}, mlcy).error().kind, ErrorKind::bad_value);
 
   plan::ControlPoint bad_count = jaws(-50, 50, -50, 50);
-  bad_count.devices.push_back({"MLCX", {1, 2, 3}});
+  bad_count.devices.push_back({plan::term(plan::DeviceType::mlcx), {1, 2, 3}});
   EXPECT_FALSE(build_aperture(beam_with_mlc(2, 10.0), bad_count));
 }
 

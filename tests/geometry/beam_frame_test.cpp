@@ -27,10 +27,11 @@ void expect_near(const Eigen::Vector3d& actual, const Eigen::Vector3d& expected)
 }
 
 TEST(PatientPosition, ParsesSupportedCodesOnly) {
-  EXPECT_EQ(parse_patient_position("HFS"), PatientPosition::hfs);
-  EXPECT_EQ(parse_patient_position("FFP"), PatientPosition::ffp);
-  EXPECT_FALSE(parse_patient_position("HFDR").has_value());
-  EXPECT_FALSE(parse_patient_position("").has_value());
+  EXPECT_EQ(supported_patient_position(plan::PatientPosition::hfs), PatientPosition::hfs);
+  EXPECT_EQ(supported_patient_position(plan::PatientPosition::ffp), PatientPosition::ffp);
+  EXPECT_FALSE(supported_patient_position(plan::PatientPosition::hfdr).has_value());
+  EXPECT_FALSE(supported_patient_position(plan::PatientPosition::absent).has_value());
+  EXPECT_FALSE(supported_patient_position(plan::PatientPosition::other).has_value());
   for (auto p : {PatientPosition::hfs, PatientPosition::hfp, PatientPosition::ffs, PatientPosition::ffp}) {
     EXPECT_NEAR(patient_to_table_top(p).determinant(), 1.0, 1e-12) << to_code(p);
   }

@@ -105,8 +105,8 @@ TEST(MissingTissue, BreastTangentsAgreeWithPointSampling) {
   ASSERT_TRUE(study.has_value()) << study.problem().message();
   for (const auto& beam : plan->beams) {
     const auto& cp = beam.control_points.front();
-    const auto& jaws_x = cp.device("ASYMX")->positions_mm;
-    const auto& jaws_y = cp.device("ASYMY")->positions_mm;
+    const auto& jaws_x = cp.device(plan::DeviceType::asymx)->positions_mm;
+    const auto& jaws_y = cp.device(plan::DeviceType::asymy)->positions_mm;
     const geometry::BeamFrame frame(geometry::PatientPosition::hfs, {*cp.gantry_deg, 0.0, 0.0},
                                     *cp.isocenter_mm, 1000.0);
     const auto plane = patient::field_plane(frame, 1000.0);

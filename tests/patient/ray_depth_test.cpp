@@ -92,7 +92,7 @@ TEST_P(SlabPhantom, NonCoplanarRayCrossesSlicesExactly) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Body, SlabPhantom, ::testing::Values(false, true),
-                         [](const auto& info) { return info.param ? "FromThreshold" : "FromContours"; });
+                         [](const auto& body_case) { return body_case.param ? "FromThreshold" : "FromContours"; });
 
 TEST(RayDepthProblems, PointOutsideTheCt) {
   const auto result = depth_of(contour_slabs(), {0, -1000, 0}, {0, 150, 0});

@@ -117,48 +117,26 @@ TEST(BeamsEyeView, MlcLeavesAreDrawnOnlyWhereTheyBlockInsideTheJaws) {
   EXPECT_EQ(leaves, 2);  // bank A and bank B of the lower pair; the upper pair is open to the jaws
 }
 
-TEST(BeamsEyeView, SweptOpeningOfStepAndShootIsTheUnionOfItsSegments) {
-  plan::Beam beam;
-  beam.beam_limiting_devices = {{"ASYMX", std::nullopt, 1, {}},
-                                {"ASYMY", std::nullopt, 1, {}},
-                                {"MLCX", std::nullopt, 2, {-20.0, 0.0, 20.0}}};
-  const auto cp = [](int index, double weight, std::vector<double> leaves) {
-    plan::ControlPoint p;
-    p.index = index;
-    p.cumulative_meterset_weight = weight;
-    p.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-20.0, 20.0}}, {"MLCX", std::move(leaves)}};
-    return p;
-  };
-  // Segment 1: pairs open -30..-10 and -30..-10; segment 2: 10..30 and 10..30 (disjoint).
-  beam.control_points = {cp(0, 0.0, {-30, -30, -10, -10}), cp(1, 0.5, {-30, -30, -10, -10}),
-                         cp(2, 0.5, {10, 10, 30, 30}), cp(3, 1.0, {10, 10, 30, 30})};
-  const auto swept = swept_opening(beam);
-  ASSERT_TRUE(swept);
-  ASSERT_EQ(swept->open.size(), 4u);  // two disjoint intervals in each of the two leaf pairs
-  EXPECT_DOUBLE_EQ(swept->open[0].lo_mm, -30.0);
-  EXPECT_DOUBLE_EQ(swept->open[0].hi_mm, -10.0);
-  EXPECT_DOUBLE_EQ(swept->open[1].lo_mm, 10.0);
-  EXPECT_DOUBLE_EQ(swept->open[1].hi_mm, 30.0);
-  EXPECT_DOUBLE_EQ(swept->envelope.x1_mm, -50.0);
-  EXPECT_DOUBLE_EQ(swept->envelope.y2_mm, 20.0);
-}
-
-TEST(BeamsEyeView, SweptOpeningOfMovingLeavesCoversTheirPath) {
-  plan::Beam beam;
-  beam.beam_limiting_devices = {{"MLCX", std::nullopt, 1, {-5.0, 5.0}}};
-  plan::ControlPoint a;
-  a.cumulative_meterset_weight = 0.0;
-  a.devices = {{"ASYMX", {-50.0, 50.0}}, {"ASYMY", {-5.0, 5.0}}, {"MLCX", {-40.0, -30.0}}};
-  plan::ControlPoint b = a;
-  b.index = 1;
-  b.cumulative_meterset_weight = 1.0;
-  b.devices[2].positions_mm = {20.0, 30.0};  // a 10 mm gap sliding from -40 to +30
-  beam.control_points = {a, b};
-  const auto swept = swept_opening(beam);
-  ASSERT_TRUE(swept);
-  ASSERT_EQ(swept->open.size(), 1u);
-  EXPECT_DOUBLE_EQ(swept->open[0].lo_mm, -40.0);
-  EXPECT_DOUBLE_EQ(swept->open[0].hi_mm, 30.0);
+// The drawing shows the outline the engine built with the apertures; the report rebuilds nothing.
+TEST(BeamsEyeView, ContentIsTheCalculationsOutline) {
+  engine::BeamDose dose;
+  dose.point.spd_mm = 1000.0;
+  dose.point.iso_plane_x_mm = 12.0;
+  dose.aperture = geometry::Aperture({-50.0, 50.0, -50.0, 50.0}, {{-50.0, 50.0, -50.0, 50.0}}, false);
+  dose.features.modulated = true;
+  dose.outline.jaws = {-60.0, 70.0, -40.0, 40.0};
+  dose.outline.open = {{-40.0, 40.0, -30.0, 30.0}};
+  dose.outline.known = true;
+  const auto content = bev_content(dose);
+  ASSERT_TRUE(content);
+  EXPECT_TRUE(content->modulated);
+  EXPECT_TRUE(content->outline_known);
+  EXPECT_DOUBLE_EQ(content->jaws.x2_mm, 70.0);
+  ASSERT_EQ(content->open.size(), 1u);
+  EXPECT_DOUBLE_EQ(content->open[0].hi_mm, 30.0);
+  EXPECT_DOUBLE_EQ(content->dose_point_mm->x, 12.0);
+  // Nothing to draw before control point 0's opening is known.
+  EXPECT_FALSE(bev_content(engine::BeamDose{}));
 }
 
 }  // namespace

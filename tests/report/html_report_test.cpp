@@ -66,7 +66,6 @@ TEST(HtmlReport, CarriesIdentityPolicyVerdictsSignOffAndCaution) {
   ASSERT_EQ(c.check.beams[1].status, check::Status::outside_tolerance) << c.check.beams[1].reason.sentence;
   HtmlOptions options;
   options.generated_at = "2026-12-02 09:15:00 +0000";
-  options.plan = &c.plan;
   const std::string page = html_report(c.check, options);
 
   for (const std::string& expected :
@@ -114,12 +113,12 @@ TEST(HtmlReport, NotCheckedBeamSaysWhyAndIsNeverShownAsAPass) {
   check::PlanCheck c;
   c.patient_id = "FERN-TEST-02";
   c.status = check::Status::not_checked;
-  c.reason = {engine::Reason::unknown_machine, "beam 1 (B1): machine \"OTHER\" is not in the library"};
+  c.reason = {check::Reason::unknown_machine, "beam 1 (B1): machine \"OTHER\" is not in the library"};
   check::BeamCheck b;
   b.beam_number = 1;
   b.beam_name = "B1";
   b.status = check::Status::not_checked;
-  b.reason = {engine::Reason::unknown_machine,
+  b.reason = {check::Reason::unknown_machine,
               "Treatment Machine Name (300A,00B2) \"OTHER\" is not in the library"};
   b.meterset_mu = 100.0;
   b.planned_dose_gy = 1.0;
@@ -128,7 +127,7 @@ TEST(HtmlReport, NotCheckedBeamSaysWhyAndIsNeverShownAsAPass) {
   setup.beam_number = 9;
   setup.beam_name = "SETUP";
   setup.status = check::Status::skipped;
-  setup.reason = {engine::Reason::setup_beam,
+  setup.reason = {check::Reason::setup_beam,
                   "Treatment Delivery Type (300A,00CE) is SETUP: listed, not judged"};
   c.beams.push_back(setup);
   const std::string page = html_report(c, {});
@@ -184,10 +183,10 @@ int pdf_pages(const std::filesystem::path& pdf) {
 
 TEST(HtmlReportInChromium, RendersWithoutConsoleErrorsAndPrintsOnePagePerBeamPlusTheCover) {
   const auto chromium = find_chromium();
+  // tools/install-deps installs Chromium: without it this test fails, it does not skip.
   ASSERT_TRUE(chromium) << "no Chromium on this machine (tools/install-deps installs Debian's chromium)";
   const Checked c = two_beam_check();
   HtmlOptions options;
-  options.plan = &c.plan;
   const auto dir = test::make_temp_dir("countersign-html-test");
   const auto html = write_html(c.check, dir / "record.html", options);
   ASSERT_TRUE(html) << html.error().message();

@@ -4,7 +4,7 @@
 // quarantined as a file of its own.
 
 #include <countersign/beamdata/library.hpp>
-#include <countersign/beamdata/sha256.hpp>
+#include <countersign/util/sha256.hpp>
 #include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/service/check_processor.hpp>
@@ -91,7 +91,7 @@ TEST(CompleteFiles, APlanWrittenInChunksIsNeverCheckedTruncated) {
   const auto whole = dicom::canonical_dataset_bytes(
       std::span{reinterpret_cast<const std::byte*>(plan.data()), plan.size()}, file.string());
   ASSERT_TRUE(whole);
-  EXPECT_EQ(records->front().content_sha256, beamdata::sha256_hex(whole.value()))
+  EXPECT_EQ(records->front().content_sha256, util::sha256_hex(whole.value()))
       << "a truncated plan was checked";
   fs::remove_all(dir);
 }

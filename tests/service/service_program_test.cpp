@@ -222,6 +222,34 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
       << again.out;
 }
 
+// watch and receive build their check options from the same flags as check: --method and --depth
+// reach every result, and the start-up line says which are in force.
+TEST_F(ServiceProgramTest, WatchHonoursMethodAndDepth) {
+  const fs::path plan = test::source_dir() / "testdata" / "plans" / "fern_box_4field.dcm";
+  ASSERT_TRUE(fs::exists(plan)) << "committed demo plan missing: " << plan;
+  fs::create_directories(dir_ / "inbox");
+  fs::copy_file(plan, dir_ / "inbox" / plan.filename());
+  const fs::path results = dir_ / "results";
+  const auto run = test::run_command(
+      test::quote(test::program().string()) + " watch " + test::quote((dir_ / "inbox").string()) + " --out " +
+      test::quote(results.string()) + " --once --method pdd --depth equivalent");
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  EXPECT_NE(run.out.find("method pdd, depth equivalent"), std::string::npos) << run.out;
+  ASSERT_EQ(test::count_results(results, ".json"), 1U) << run.out;
+  std::string written;
+  for (const auto& entry : fs::recursive_directory_iterator{results}) {
+    if (entry.path().extension() == ".json" && entry.path().parent_path() != results)
+      written = slurp(entry.path());
+  }
+  EXPECT_NE(written.find("\"method_choice\": \"pdd\""), std::string::npos) << written;
+  EXPECT_NE(written.find("\"depth_choice\": \"equivalent\""), std::string::npos) << written;
+  // A bad value is a usage error, as for check.
+  const auto bad = test::run_command(test::quote(test::program().string()) + " watch " +
+                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote(results.string()) + " --once --method sideways");
+  EXPECT_EQ(bad.exit_code, 3) << bad.out << bad.err;
+}
+
 TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNothing) {
   const auto plans = demo_plans();
   ASSERT_FALSE(plans.empty());
@@ -279,7 +307,19 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
   for (const auto& record : *records) ++per_uid[record.sop_instance_uid];
   EXPECT_EQ(records->size(), static_cast<std::size_t>(total));
   for (const auto& uid : uids) EXPECT_EQ(per_uid[uid], 1) << uid;
-  EXPECT_EQ(test::count_results(results, ".json"), static_cast<std::size_t>(total));
+  // Every recorded check has its files. A batch killed after its files were written and before its
+  // record left files that belong to no check (checked again under new numbers, never overwritten):
+  // audit verify names them as notes, and the trail is intact.
+  for (const auto& record : *records)
+    EXPECT_TRUE(fs::exists(results / record.files.result_json)) << record.id;
+  EXPECT_GE(test::count_results(results, ".json"), static_cast<std::size_t>(total));
+  const auto audit = test::run_command(test::quote(test::program().string()) + " audit verify --results " +
+                                       test::quote(results.string()));
+  EXPECT_EQ(audit.exit_code, 0) << audit.out << audit.err;
+  const std::size_t orphans = test::count_results(results, ".json") - static_cast<std::size_t>(total);
+  if (orphans > 0) {
+    EXPECT_NE(audit.out.find("is not in the history"), std::string::npos) << audit.out;
+  }
   EXPECT_EQ(count_suffix(results / "quarantine", ""), 0U);
 }
 
@@ -291,7 +331,7 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
   const fs::path results = dir_ / "results";
   const std::uint16_t port = free_port();
   Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
-                    "FERN-TPS", "--out", results.string()},
+                    "FERN-TPS", "--out", results.string(), "--method", "tmr", "--depth", "planned"},
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
   ASSERT_TRUE(wait_until(
@@ -307,6 +347,12 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
   EXPECT_NE(stranger.exit_code, 0);
   ASSERT_TRUE(wait_until([&] { return recorded(results) == 1; }, 20s)) << slurp(dir_ / "receive.log");
   EXPECT_EQ(test::count_results(results, ".json"), 1U);
+  for (const auto& entry : fs::recursive_directory_iterator{results}) {
+    if (entry.path().extension() != ".json" || entry.path().parent_path() == results) continue;
+    const std::string written = slurp(entry.path());
+    EXPECT_NE(written.find("\"method_choice\": \"tmr\""), std::string::npos) << written;
+  }
+  EXPECT_NE(slurp(dir_ / "receive.log").find("method tmr, depth planned"), std::string::npos);
 
   receiver.signal(SIGTERM);
   const int status = receiver.wait();

@@ -21,7 +21,7 @@ struct CommandOutput {
 // Runs a shell command line, capturing stdout and stderr.
 [[nodiscard]] CommandOutput run_command(const std::string& command_line);
 
-// A Python interpreter that can `import pydicom`, or nullopt (DCMTK facts in STYLE.md: Debian's
+// A Python interpreter that can `import pydicom`, or nullopt (Debian's
 // /usr/bin/python3 has it even when another python3 comes first on PATH).
 [[nodiscard]] std::optional<std::string> python_with_pydicom();
 

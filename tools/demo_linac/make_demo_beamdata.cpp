@@ -1,4 +1,4 @@
-// Writes the demo beam-data library beamdata/FERN-LINAC-1/ (BEAMDATA.md format) by tabulating the
+// Writes the demo beam-data library beamdata/FERN-LINAC-1/ (beamdata/FORMAT.md format) by tabulating the
 // invented machine model of model.hpp. Usage: make_demo_beamdata OUTPUT_LIBRARY_FOLDER
 // The output is INVENTED demo data for the fictional Fernhollow Radiotherapy Unit, not for clinical use.
 

@@ -13,7 +13,7 @@
 //   build-up region a rise from a field-dependent surface value to 1 at dmax.
 // - Sc and Sp: saturating functions of the field side, normalised to 1 at 10 cm.
 // - PDD is NOT modelled separately: it follows from TMR and Sp through the PDD->TMR relation of
-//   DESIGN.md §5, inverted, so PDD, TMR and Sp are mutually consistent by construction.
+//   DEVELOPERS.md, "Physics", inverted, so PDD, TMR and Sp are mutually consistent by construction.
 // - OAR: the in-field off-axis ratio of a flattened beam (horns near the surface, flatter with
 //   depth); the penumbra at the field edge is not part of it.
 // The parameters were fitted by hand so that the tables land near typical published magnitudes
@@ -178,7 +178,7 @@ inline double tmr(const BeamModel& m, double depth_cm, double field_at_depth_cm)
 }
 
 // Percent depth dose for a square field side at the surface and an SSD, from TMR and Sp
-// (DESIGN.md §5 relation solved for PDD): PDD = 100 TMR(d, s_d) Sp(s_d)/Sp(s_dm) ((f+dm)/(f+d))^2,
+// (DEVELOPERS.md, "Physics" relation solved for PDD): PDD = 100 TMR(d, s_d) Sp(s_d)/Sp(s_dm) ((f+dm)/(f+d))^2,
 // s_d = s (f+d)/f, s_dm = s (f+dm)/f. PDD(dmax) = 100 for every field.
 inline double pdd(const BeamModel& m, double depth_cm, double field_at_surface_cm, double ssd_cm) {
   const double f = ssd_cm;

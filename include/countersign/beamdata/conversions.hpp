@@ -1,6 +1,6 @@
 #pragma once
 
-// Commissioning conversions between beam-data quantities (DESIGN.md §5). Point functions first,
+// Commissioning conversions between beam-data quantities (DEVELOPERS.md, "Physics"). Point functions first,
 // then whole-table conversions built on them. Field sizes are square-field sides in cm.
 
 #include <countersign/beamdata/table.hpp>

@@ -1,6 +1,6 @@
 #pragma once
 
-// Reading and writing single beam-data CSV tables (BEAMDATA.md "CSV tables"), for the
+// Reading and writing single beam-data CSV tables (beamdata/FORMAT.md "CSV tables"), for the
 // commissioning conversions that work on loose files rather than a whole library.
 
 #include <countersign/beamdata/table.hpp>

@@ -1,6 +1,6 @@
 #pragma once
 
-// Beam-data tables (BEAMDATA.md): one-axis (field_cm -> value) and two-axis (row axis x column
+// Beam-data tables (beamdata/FORMAT.md): one-axis (field_cm -> value) and two-axis (row axis x column
 // axis). Interpolation is linear per axis; every lookup reports where its number came from.
 
 #include <cstddef>

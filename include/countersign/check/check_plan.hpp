@@ -5,15 +5,16 @@
 // the entry point the CLI, the folder watcher and the DICOM receiver all call; reports (text,
 // JSON, HTML, `explain`) are written from the values it returns and need nothing else.
 //
-// Safety (DESIGN.md §4): a beam is within_tolerance only when its dose was computed, every factor
+// Safety (DEVELOPERS.md, "Safety"): a beam is within_tolerance only when its dose was computed, every factor
 // came from the tables without extrapolation, every geometric input was in the plan or derived by a
 // stated method, and the deviation is within the policy's tolerance. Anything else is
 // not_checked (with a reason) or outside_tolerance. Setup beams and beams without MU are skipped.
 
 #include <countersign/beamdata/library.hpp>
+#include <countersign/check/calculation_words.hpp>
+#include <countersign/check/reason.hpp>
 #include <countersign/check/tolerance_policy.hpp>
 #include <countersign/engine/beam_dose.hpp>
-#include <countersign/engine/reason.hpp>
 #include <countersign/plan/plan.hpp>
 #include <countersign/util/exit_code.hpp>
 
@@ -37,7 +38,7 @@ struct BeamCheck {
   int beam_number = 0;
   std::string beam_name;
   Status status = Status::not_checked;
-  engine::Finding reason;  // code and sentence, for every status
+  Finding reason;  // code and sentence, for every status
   std::optional<double> meterset_mu;
   std::optional<double> planned_dose_gy;    // Beam Dose (300A,0084)
   std::optional<double> computed_dose_gy;   // set whenever the engine computed a dose
@@ -48,6 +49,7 @@ struct BeamCheck {
   Medium medium = Medium::homogeneous;
   std::optional<double> point_total_planned_dose_gy;  // all beams of the fraction group at this point
   std::optional<engine::BeamDose> calculation;        // absent when no calculation was attempted
+  CalculationWords words;  // the calculation's sentences (method, depth, approximations), for reports
 };
 
 // One beam's part of a dose reference total.
@@ -56,7 +58,7 @@ struct Contribution {
   double coefficient = 0.0;                // final Cumulative Dose Reference Coefficient (300A,010C)
   double planned_dose_gy = 0.0;            // Beam Dose x coefficient
   std::optional<double> computed_dose_gy;  // this beam's computed dose at the reference point
-  std::optional<engine::Finding> problem;  // why it could not be computed
+  std::optional<Finding> problem;          // why it could not be computed
 };
 
 struct DoseReferenceCheck {
@@ -80,14 +82,14 @@ struct PlanCheck {
   std::string approval_status;
   std::vector<std::string> warnings;  // the reader's (text it could not decode), shown with every report
   Status status = Status::not_checked;
-  engine::Finding reason;
+  Finding reason;
   std::vector<BeamCheck> beams;
   std::vector<DoseReferenceCheck> dose_references;
   std::string beamdata_root;
   std::string beamdata_sha256;
   CheckOptions options;  // what the check ran with (policy included)
 
-  // 0 within, 1 outside, 2 not checked (DESIGN.md §6).
+  // 0 within, 1 outside, 2 not checked (README, "Exit codes").
   [[nodiscard]] ExitCode exit_code() const;
 
   struct BeamCounts {

@@ -3,12 +3,14 @@
 // The dose one beam delivers at one point, computed from the plan's geometry and the clinic's
 // tables, with everything that went into it: the beam data used, the geometry (depth and its
 // source, SPD, off-axis distance, apertures), every factor with its provenance, and the
-// approximations made, in words. No file I/O; a plan and a loaded library in, a value out.
+// approximations made, as facts. No file I/O, no sentences, no verdict: a plan and a loaded
+// library in, a value out. The calculation runs in named stages (DEVELOPERS.md, "Engine stages").
 
 #include <countersign/beamdata/library.hpp>
+#include <countersign/engine/approximation.hpp>
 #include <countersign/engine/dose_point.hpp>
 #include <countersign/engine/point_dose.hpp>
-#include <countersign/engine/reason.hpp>
+#include <countersign/engine/problem.hpp>
 #include <countersign/geometry/aperture.hpp>
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
@@ -21,6 +23,12 @@ namespace countersign::engine {
 
 enum class MethodChoice { by_setup_technique, tmr, pdd };
 
+// Why the formalism is the one used.
+enum class MethodBasis {
+  user_choice,      // --method tmr or pdd
+  setup_technique,  // the patient setup's Setup Technique (FIXED_SSD: pdd; anything else or absent: tmr)
+};
+
 struct EngineOptions {
   MethodChoice method = MethodChoice::by_setup_technique;  // FIXED_SSD -> pdd, otherwise tmr
   DepthChoice depth = DepthChoice::planned;
@@ -31,7 +39,7 @@ struct DepthUsed {
   double depth_mm = 0.0;
   DepthSource source = DepthSource::derived_spd_minus_ssd;
   DepthChoice kind = DepthChoice::planned;
-  std::string description;                         // one sentence for the report
+  bool chosen = false;  // a source was found (false when the calculation stopped before)
   std::optional<double> plan_depth_mm;             // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
   std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
@@ -45,6 +53,16 @@ struct BeamFeatures {
   bool blocks = false;                  // block shapes present (not modelled)
   double jaw_centre_offset_mm = 0.0;    // distance of the jaw rectangle's centre from the axis
   double open_to_jaw_area_ratio = 1.0;  // aperture area / jaw rectangle area (1 without MLC shaping)
+};
+
+// What the beam's-eye view draws, decided where the apertures are built: for a static beam the
+// opening of control point 0; for a modulated beam the area swept open in any part and the envelope
+// of the jaws.
+struct BeamOutline {
+  geometry::JawOpening jaws;
+  std::vector<geometry::ApertureRow> open;
+  bool shaped_by_mlc = false;  // static beam with an MLC: the leaves are drawn inside the jaws
+  bool known = false;          // false: no outline could be built (nothing to draw but the jaws)
 };
 
 // One part of the meterset delivered with one aperture and one beam direction.
@@ -65,8 +83,9 @@ struct Segment {
 };
 
 struct BeamDose {
-  // Set when the dose could not be computed (dose fields are then not meaningful).
-  std::optional<Finding> problem;
+  // Set when the dose could not be computed (dose fields are then not meaningful); the fields
+  // filled before the stage that stopped stay filled.
+  std::optional<CalculationProblem> problem;
   bool dose_computed = false;
 
   const beamdata::Machine* machine = nullptr;  // points into the library passed in
@@ -83,14 +102,16 @@ struct BeamDose {
   bool point_in_field = false;    // inside the aperture of control point 0
   double edge_distance_mm = 0.0;  // to the nearest edge of that aperture (isocentre plane)
   Method method = Method::tmr;
-  std::string method_reason;      // why this formalism
+  std::optional<MethodBasis> method_basis;            // why this formalism (set once it is chosen)
+  plan::Coded<plan::SetupTechnique> setup_technique;  // the patient setup's, as the plan has it
+  BeamOutline outline;                                // what a drawing of the beam shows
   DoseInputs inputs;              // static beam: the inputs of `dose`
   PointDose dose;                 // static beam: the dose and its factors
   std::vector<Segment> segments;  // modulated beam: each part (static beam: its one part)
   BeamFeatures features;
   double meterset_mu = 0.0;
   double computed_dose_gy = 0.0;
-  std::vector<std::string> approximations;  // sentences
+  std::vector<Approximation> approximations;
 
   // The first extrapolated factor in any part, or nullptr.
   [[nodiscard]] const Factor* first_extrapolated() const;

@@ -1,6 +1,6 @@
 #pragma once
 
-// The point-dose formulas of DESIGN.md §5 (AAPM TG-71), as a pure function of explicit inputs:
+// The point-dose formulas of DEVELOPERS.md, "Physics" (AAPM TG-71), as a pure function of explicit inputs:
 // no plan, no geometry, no file I/O. Callers (the beam calculation, `explain`, sensitivity
 // searches) change one input and call again.
 //

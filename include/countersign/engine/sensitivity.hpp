@@ -42,7 +42,6 @@ struct Reconciliation {
   double search_max_change_cm = 0.0;
   std::optional<double> change_cm;  // the smallest change that reconciles, if one exists in the range
   bool extrapolated = false;        // the reconciling value needs a table lookup outside a table
-  std::string sentence;             // one line for reports
 };
 
 struct Sensitivity {

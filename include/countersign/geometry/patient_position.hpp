@@ -5,6 +5,8 @@
 // z: head) to the IEC 61217 table-top system (X: right when facing the gantry, Y: towards the
 // gantry, Z: up) with the couch at 0 degrees.
 
+#include <countersign/plan/defined_terms.hpp>
+
 #include <Eigen/Core>
 #include <optional>
 #include <string_view>
@@ -13,8 +15,8 @@ namespace countersign::geometry {
 
 enum class PatientPosition { hfs, hfp, ffs, ffp };
 
-// The position for a DICOM code ("HFS", ...); nullopt for any other code (decubitus, sitting, absent).
-[[nodiscard]] std::optional<PatientPosition> parse_patient_position(std::string_view code);
+// The supported position for a plan's Patient Position; nullopt for any other (decubitus, absent, ...).
+[[nodiscard]] std::optional<PatientPosition> supported_patient_position(plan::PatientPosition position);
 
 [[nodiscard]] std::string_view to_code(PatientPosition position);
 

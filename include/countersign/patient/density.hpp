@@ -1,7 +1,7 @@
 #pragma once
 
 // CT number to relative electron density, as the rays need it. Kept as a callable so that any table
-// can be plugged in (the beam-data library's ct/<STATION>.csv or ct/default.csv, BEAMDATA.md): give
+// can be plugged in (the beam-data library's ct/<STATION>.csv or ct/default.csv, beamdata/FORMAT.md): give
 // the relation and the HU range its rows cover; beyond the range the nearest end's density applies
 // and every ray says how many voxels fell there.
 
@@ -36,7 +36,7 @@ class DensityMap {
 };
 
 // Linear interpolation between (hu, density) rows given in strictly increasing HU, constant beyond
-// the ends (the rule of BEAMDATA.md). For tests, tools and as the glue's model.
+// the ends (the rule of beamdata/FORMAT.md). For tests, tools and as the glue's model.
 [[nodiscard]] HuToDensity piecewise_linear_density(std::vector<std::array<double, 2>> rows);
 
 }  // namespace countersign::patient

@@ -4,6 +4,8 @@
 // Units are in every name: geometry in mm (as DICOM stores it), angles in degrees (IEC 61217),
 // doses in Gy, metersets in MU. An absent optional attribute is std::nullopt, never 0.
 
+#include <countersign/plan/defined_terms.hpp>
+
 #include <array>
 #include <optional>
 #include <string>
@@ -15,15 +17,16 @@ using PointMm = std::array<double, 3>;  // x, y, z in the patient coordinate sys
 
 struct PatientSetup {
   int number = 0;                               // Patient Setup Number (300A,0182)
-  std::string patient_position;                 // Patient Position (0018,5100), e.g. "HFS"; empty if absent
-  std::string setup_technique;                  // Setup Technique (300A,01B0), e.g. "ISOCENTRIC", "FIXED_SSD"
+  Coded<PatientPosition> patient_position;      // Patient Position (0018,5100), e.g. "HFS"
+  Coded<SetupTechnique> setup_technique;        // Setup Technique (300A,01B0), e.g. "ISOCENTRIC", "FIXED_SSD"
   std::string setup_technique_description;      // Setup Technique Description (300A,01B2)
 };
 
 struct DoseReference {
   int number = 0;                                // Dose Reference Number (300A,0012)
   std::string uid;                               // Dose Reference UID (300A,0013)
-  std::string structure_type;                    // Dose Reference Structure Type (300A,0014): POINT, COORDINATES, VOLUME, SITE
+  Coded<DoseReferenceStructure>
+      structure_type;  // Dose Reference Structure Type (300A,0014): POINT, COORDINATES, VOLUME, SITE
   std::string description;                       // Dose Reference Description (300A,0016)
   std::string type;                              // Dose Reference Type (300A,0020): TARGET, ORGAN_AT_RISK
   std::optional<PointMm> point_mm;               // Dose Reference Point Coordinates (300A,0018)
@@ -66,12 +69,12 @@ struct ReferencedBeam {
 struct FractionGroup {
   int number = 0;                           // Fraction Group Number (300A,0071)
   std::optional<int> fractions_planned;     // Number of Fractions Planned (300A,0078)
-  std::string beam_dose_meaning;            // Beam Dose Meaning (300A,008B): BEAM_LEVEL, FRACTION_LEVEL
+  Coded<BeamDoseMeaning> beam_dose_meaning;  // Beam Dose Meaning (300A,008B): BEAM_LEVEL, FRACTION_LEVEL
   std::vector<ReferencedBeam> beams;
 };
 
 struct BeamLimitingDevice {
-  std::string type;                                   // RT Beam Limiting Device Type (300A,00B8): X, Y, ASYMX, ASYMY, MLCX, MLCY
+  Coded<DeviceType> type;  // RT Beam Limiting Device Type (300A,00B8): X, Y, ASYMX, ASYMY, MLCX, MLCY
   std::optional<double> source_to_device_distance_mm; // (300A,00BA)
   int pair_count = 0;                                 // Number of Leaf/Jaw Pairs (300A,00BC)
   std::vector<double> leaf_boundaries_mm;             // Leaf Position Boundaries (300A,00BE), MLC only: pairs + 1 values
@@ -79,7 +82,7 @@ struct BeamLimitingDevice {
 
 struct Wedge {
   std::optional<int> number;                  // Wedge Number (300A,00D2)
-  std::string type;                           // Wedge Type (300A,00D3): STANDARD, DYNAMIC, MOTORIZED
+  Coded<WedgeType> type;                      // Wedge Type (300A,00D3): STANDARD, DYNAMIC, MOTORIZED
   std::string id;                             // Wedge ID (300A,00D4)
   std::optional<double> angle_deg;            // Wedge Angle (300A,00D5)
   std::optional<double> factor;               // Wedge Factor (300A,00D6), the planning system's value
@@ -94,7 +97,7 @@ struct Accessory {
 
 // Positions of one beam limiting device at a control point (Beam Limiting Device Position Sequence).
 struct DevicePositions {
-  std::string type;                    // RT Beam Limiting Device Type (300A,00B8)
+  Coded<DeviceType> type;              // RT Beam Limiting Device Type (300A,00B8)
   std::vector<double> positions_mm;    // Leaf/Jaw Positions (300A,011C): all bank-A (-) then all bank-B (+)
 };
 
@@ -105,7 +108,7 @@ struct DoseReferenceCoefficient {
 
 struct WedgePosition {
   int wedge_number = 0;          // Referenced Wedge Number (300C,00C0)
-  std::string position;          // Wedge Position (300A,0118): IN, OUT
+  Coded<WedgePositionState> position;  // Wedge Position (300A,0118): IN, OUT
 };
 
 // A control point after carrying forward what DICOM lets a later control point omit:
@@ -117,11 +120,11 @@ struct ControlPoint {
   std::optional<double> nominal_energy_mv;
   std::optional<double> dose_rate_mu_per_min;             // Dose Rate Set (300A,0115)
   std::optional<double> gantry_deg;                       // Gantry Angle (300A,011E)
-  std::string gantry_rotation;                            // Gantry Rotation Direction (300A,011F): CW, CC, NONE
+  Coded<RotationDirection> gantry_rotation;  // Gantry Rotation Direction (300A,011F): CW, CC, NONE
   std::optional<double> collimator_deg;                   // Beam Limiting Device Angle (300A,0120)
-  std::string collimator_rotation;                        // Beam Limiting Device Rotation Direction (300A,0121)
+  Coded<RotationDirection> collimator_rotation;  // Beam Limiting Device Rotation Direction (300A,0121)
   std::optional<double> couch_deg;                        // Patient Support Angle (300A,0122)
-  std::string couch_rotation;                             // Patient Support Rotation Direction (300A,0123)
+  Coded<RotationDirection> couch_rotation;                // Patient Support Rotation Direction (300A,0123)
   std::optional<PointMm> isocenter_mm;                    // Isocenter Position (300A,012C)
   std::optional<double> ssd_mm;                           // Source to Surface Distance (300A,0130)
   std::vector<DevicePositions> devices;                   // jaws and MLC in force at this control point
@@ -130,7 +133,9 @@ struct ControlPoint {
   std::vector<WedgePosition> wedge_positions;             // Wedge Position Sequence (300A,0116)
 
   // The positions of the device of this type, or nullptr.
-  [[nodiscard]] const DevicePositions* device(const std::string& type) const;
+  [[nodiscard]] const DevicePositions* device(DeviceType type) const;
+  // The positions of the device spelled exactly as `type` (also for types the program does not list).
+  [[nodiscard]] const DevicePositions* device(const Coded<DeviceType>& type) const;
 };
 
 // One item of the beam's Referenced Dose Reference Sequence (current-edition layout).
@@ -144,10 +149,10 @@ struct Beam {
   std::string name;                                  // Beam Name (300A,00C2)
   std::string description;                           // Beam Description (300A,00C3)
   std::string machine_name;                          // Treatment Machine Name (300A,00B2)
-  std::string radiation_type;                        // Radiation Type (300A,00C6): PHOTON, ELECTRON, ...
-  std::string delivery_type;                         // Treatment Delivery Type (300A,00CE): TREATMENT, SETUP, ...
-  std::string beam_type;                             // Beam Type (300A,00C4): STATIC, DYNAMIC
-  std::string primary_dosimeter_unit;                // Primary Dosimeter Unit (300A,00B3): MU, MINUTE
+  Coded<RadiationType> radiation_type;               // Radiation Type (300A,00C6): PHOTON, ELECTRON, ...
+  Coded<DeliveryType> delivery_type;            // Treatment Delivery Type (300A,00CE): TREATMENT, SETUP, ...
+  Coded<BeamType> beam_type;                    // Beam Type (300A,00C4): STATIC, DYNAMIC
+  Coded<DosimeterUnit> primary_dosimeter_unit;  // Primary Dosimeter Unit (300A,00B3): MU, MINUTE
   std::optional<double> sad_mm;                      // Source-Axis Distance (300A,00B4)
   std::vector<BeamLimitingDevice> beam_limiting_devices;  // (300A,00B6)
   std::vector<Wedge> wedges;                         // Wedge Sequence (300A,00D1)

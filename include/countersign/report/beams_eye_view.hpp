@@ -7,7 +7,6 @@
 
 #include <countersign/engine/beam_dose.hpp>
 #include <countersign/geometry/aperture.hpp>
-#include <countersign/plan/plan.hpp>
 
 #include <optional>
 #include <string>
@@ -60,24 +59,15 @@ struct BevContent {
   std::vector<geometry::ApertureRow> open;  // static: the opening; modulated: area open in any part
   bool shaped_by_mlc = false;               // static beam with an MLC: draw the leaves inside the jaws
   bool modulated = false;
-  bool outline_known = true;             // false: a modulated beam without its control points
+  bool outline_known = true;             // false: a modulated beam whose leaf shapes could not be built
   std::optional<PaperMm> dose_point_mm;  // projected to the isocentre plane (collimator system, mm)
   std::vector<PaperMm> part_points_mm;   // modulated/arc: the point as each part sees it
   double off_axis_mm = 0.0;
 };
 
-// The drawing's content for a computed beam. For a modulated beam the area open in any part and
-// the jaw envelope come from the plan's control points when `beam` is given.
-[[nodiscard]] std::optional<BevContent> bev_content(const engine::BeamDose& dose, const plan::Beam* beam);
-
-// For a modulated beam: every control point pair that delivers meterset, the area swept open by the
-// leaves (per leaf pair, from the smaller to the larger opening), merged into non-overlapping rows,
-// and the envelope of the jaws. nullopt when no aperture can be built.
-struct SweptOpening {
-  geometry::JawOpening envelope;
-  std::vector<geometry::ApertureRow> open;
-};
-[[nodiscard]] std::optional<SweptOpening> swept_opening(const plan::Beam& beam);
+// The drawing's content for a computed beam, from the outline the engine built with the apertures
+// (static: control point 0's opening; modulated: the area open in any part and the jaw envelope).
+[[nodiscard]] std::optional<BevContent> bev_content(const engine::BeamDose& dose);
 
 struct BevPanel {
   double width_mm = 120.0;

@@ -32,6 +32,9 @@ struct BeamExplanation {
   std::string sensitivity_note;  // why there is no sensitivity section, if there is none
 };
 
+// One line for a reconciliation: the change that alone reconciles the doses, or the range searched.
+[[nodiscard]] std::string reconciliation_sentence(const engine::Reconciliation& reconciliation);
+
 [[nodiscard]] BeamExplanation explain_beam(const check::BeamCheck& beam,
                                            const engine::SensitivityLimits& limits = {});
 

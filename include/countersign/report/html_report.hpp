@@ -16,8 +16,7 @@
 namespace countersign::report {
 
 struct HtmlOptions {
-  std::string generated_at;          // date and time printed in the header; empty: now, local time
-  const plan::Plan* plan = nullptr;  // optional: gives modulated beams their swept opening in the drawing
+  std::string generated_at;  // date and time printed in the header; empty: now, local time
 };
 
 // The page as a string (UTF-8).
@@ -31,7 +30,7 @@ struct HtmlOptions {
 // The current local date and time, "YYYY-MM-DD HH:MM:SS +hhmm".
 [[nodiscard]] std::string local_timestamp();
 
-// The caution every record carries (DESIGN.md §4).
+// The caution every record carries (DEVELOPERS.md, "Safety").
 [[nodiscard]] std::string_view caution_text();
 
 }  // namespace countersign::report

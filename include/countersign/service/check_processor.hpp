@@ -29,9 +29,9 @@ namespace countersign::service {
 [[nodiscard]] PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> library,
                                                  check::CheckOptions options);
 
-// Loads the beam-data library and the tolerance policy (built-in defaults when none is named) once,
-// and returns the processor that uses them for every plan. Errors name the file and the key.
-[[nodiscard]] Expected<PlanProcessor> load_check_processor(
-    const std::filesystem::path& beamdata_dir, const std::optional<std::filesystem::path>& policy_file);
+// Loads the beam-data library once and returns the processor that checks every plan with it and
+// `options` (built from the command line as `check` builds them). Errors name the file and the key.
+[[nodiscard]] Expected<PlanProcessor> load_check_processor(const std::filesystem::path& beamdata_dir,
+                                                           check::CheckOptions options);
 
 }  // namespace countersign::service

@@ -1,5 +1,6 @@
 #pragma once
 
+#include <optional>
 #include <string>
 #include <utility>
 #include <variant>
@@ -18,6 +19,7 @@ enum class ErrorKind {
   bad_beamdata,       // the beam-data library cannot be used
   bad_configuration,  // a configuration file (tolerance policy, ...) cannot be used
   usage,              // the command line is wrong
+  internal,           // a broken invariant of this program: a defect to report, not the input's fault
 };
 
 // An expected failure: what went wrong, in which file, at which attribute (DICOM keyword and tag).
@@ -32,12 +34,13 @@ struct Error {
   [[nodiscard]] std::string message() const;
 };
 
-// The result of an operation that can fail in an expected way: a value or an Error.
-template <class T>
+// The result of an operation that can fail in an expected way: a value or an error (an Error unless
+// a module names its own kind of failure, as the engine does for what keeps it from a dose).
+template <class T, class E = Error>
 class Expected {
  public:
   Expected(T value) : state_(std::move(value)) {}       // NOLINT(google-explicit-constructor)
-  Expected(Error error) : state_(std::move(error)) {}   // NOLINT(google-explicit-constructor)
+  Expected(E error) : state_(std::move(error)) {}       // NOLINT(google-explicit-constructor)
 
   [[nodiscard]] bool has_value() const { return std::holds_alternative<T>(state_); }
   explicit operator bool() const { return has_value(); }
@@ -45,7 +48,8 @@ class Expected {
   [[nodiscard]] const T& value() const& { return std::get<T>(state_); }
   [[nodiscard]] T& value() & { return std::get<T>(state_); }
   [[nodiscard]] T&& value() && { return std::get<T>(std::move(state_)); }
-  [[nodiscard]] const Error& error() const { return std::get<Error>(state_); }
+  [[nodiscard]] const E& error() const& { return std::get<E>(state_); }
+  [[nodiscard]] E&& error() && { return std::get<E>(std::move(state_)); }
 
   const T& operator*() const& { return value(); }
   T& operator*() & { return value(); }
@@ -53,7 +57,40 @@ class Expected {
   T* operator->() { return &value(); }
 
  private:
-  std::variant<T, Error> state_;
+  std::variant<T, E> state_;
+};
+
+// Success with nothing to return, or an error.
+template <class E>
+class Expected<void, E> {
+ public:
+  Expected() = default;
+  Expected(E error) : error_(std::move(error)) {}  // NOLINT(google-explicit-constructor)
+
+  [[nodiscard]] bool has_value() const { return !error_.has_value(); }
+  explicit operator bool() const { return has_value(); }
+
+  [[nodiscard]] const E& error() const& { return error_.value(); }
+  [[nodiscard]] E&& error() && { return std::move(error_).value(); }
+
+ private:
+  std::optional<E> error_;
 };
 
 }  // namespace countersign
+
+// Early return on failure, as in ccache: TRY(expr) returns expr's error from the calling function
+// when expr failed; TRY_ASSIGN(target, expr) does the same and otherwise moves expr's value into
+// `target`. The calling function returns an Expected with the same error type.
+#define TRY(expr_)                                           \
+  do {                                                       \
+    auto&& try_result_ = (expr_);                            \
+    if (!try_result_) return std::move(try_result_).error(); \
+  } while (false)
+
+#define TRY_ASSIGN(target_, expr_)                           \
+  do {                                                       \
+    auto&& try_result_ = (expr_);                            \
+    if (!try_result_) return std::move(try_result_).error(); \
+    (target_) = std::move(try_result_).value();              \
+  } while (false)

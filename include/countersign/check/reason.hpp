@@ -1,15 +1,16 @@
 #pragma once
 
-// Why a beam got the status it got. The snake_case codes appear in JSON and are documented in the
-// README: changing one is a breaking change. Each outcome carries a code and one sentence.
+// Why a beam got the status it got: the verdict's reason codes, which only the check module sets.
+// The snake_case codes appear in JSON and are documented in the README: changing one is a breaking
+// change. Each outcome carries a code and one sentence.
 
 #include <string>
 #include <string_view>
 
-namespace countersign::engine {
+namespace countersign::check {
 
 enum class Reason {
-  // Verdicts (set by the check module).
+  // Verdicts.
   deviation_within_tolerance,
   deviation_within_tolerance_of_point_total,  // a small contributor judged against its point's total
   deviation_exceeds_tolerance,
@@ -51,4 +52,4 @@ struct Finding {
   std::string sentence;
 };
 
-}  // namespace countersign::engine
+}  // namespace countersign::check

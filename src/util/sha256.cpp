@@ -1,9 +1,9 @@
-#include <countersign/beamdata/sha256.hpp>
+#include <countersign/util/sha256.hpp>
 
 #include <bit>
 #include <cstdio>
 
-namespace countersign::beamdata {
+namespace countersign::util {
 
 namespace {
 // FIPS 180-4 §4.2.2: first 32 bits of the fractional parts of the cube roots of the first 64 primes.
@@ -87,4 +87,4 @@ std::string sha256_hex(std::string_view bytes) {
   return hash.hex_digest();
 }
 
-}  // namespace countersign::beamdata
+}  // namespace countersign::util

@@ -1,14 +1,15 @@
 // SHA-256 against the FIPS 180-2 Appendix B examples and against GNU coreutils sha256sum.
-#include <countersign/beamdata/sha256.hpp>
+#include <countersign/util/sha256.hpp>
 
-#include "beamdata/library_fixture.hpp"
 #include "support/paths.hpp"
 
 #include <gtest/gtest.h>
 
+#include <filesystem>
+#include <fstream>
 #include <string>
 
-namespace countersign::beamdata {
+namespace countersign::util {
 namespace {
 
 TEST(Sha256, FipsExamples) {
@@ -29,18 +30,19 @@ TEST(Sha256, EmptyInput) {
 }
 
 TEST(Sha256, AgreesWithCoreutilsAtBlockBoundaries) {
-  const testing::TempDir dir;
+  const std::filesystem::path dir = countersign::test::make_temp_dir("countersign-sha256");
   for (const std::size_t size : {55u, 56u, 63u, 64u, 65u, 119u, 120u, 1000u}) {
     std::string bytes;
     for (std::size_t i = 0; i < size; ++i) bytes += static_cast<char>((i * 37 + 11) % 256);
-    const auto file = dir.path() / ("blob" + std::to_string(size));
-    testing::write_text(file, bytes);
+    const auto file = dir / ("blob" + std::to_string(size));
+    std::ofstream(file, std::ios::binary) << bytes;
     const auto result =
         countersign::test::run_command("sha256sum " + countersign::test::quote(file.string()));
     ASSERT_EQ(result.exit_code, 0) << result.err;
     EXPECT_EQ(sha256_hex(bytes), result.out.substr(0, 64)) << size;
   }
+  std::filesystem::remove_all(dir);
 }
 
 }  // namespace
-}  // namespace countersign::beamdata
+}  // namespace countersign::util

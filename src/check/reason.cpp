@@ -1,6 +1,6 @@
-#include <countersign/engine/reason.hpp>
+#include <countersign/check/reason.hpp>
 
-namespace countersign::engine {
+namespace countersign::check {
 
 std::string_view reason_code(Reason reason) {
   switch (reason) {
@@ -58,4 +58,4 @@ std::string_view reason_code(Reason reason) {
 
 bool is_skip(Reason reason) { return reason == Reason::setup_beam || reason == Reason::no_meterset; }
 
-}  // namespace countersign::engine
+}  // namespace countersign::check

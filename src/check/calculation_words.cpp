@@ -1,0 +1,259 @@
+#include <countersign/check/calculation_words.hpp>
+
+#include <countersign/util/units.hpp>
+
+#include <fmt/format.h>
+
+namespace countersign::check {
+
+namespace {
+
+using engine::CalculationProblem;
+using engine::ProblemKind;
+
+std::string attribute_text(const plan::DicomAttribute& attribute) {
+  return fmt::format("{} {}", attribute.name, attribute.tag);
+}
+
+std::string missing_sentence(const CalculationProblem& p) {
+  std::string where;
+  switch (p.scope) {
+    case engine::PlanScope::beam:
+      where = "from the beam";
+      break;
+    case engine::PlanScope::control_point:
+      where = fmt::format("at control point {}", p.control_point.value_or(0));
+      break;
+    case engine::PlanScope::fraction_group:
+      where = "from the fraction group";
+      break;
+    case engine::PlanScope::plan:
+      where = "from the plan";
+      break;
+  }
+  return fmt::format("{} is absent {}", attribute_text(p.attribute), where);
+}
+
+// " at control point N" for a problem seen from a part after control point 0.
+std::string at_part(const CalculationProblem& p) {
+  return p.control_point ? fmt::format(" at control point {}", *p.control_point) : std::string{};
+}
+
+Finding library_finding(Reason reason, const CalculationProblem& p) {
+  return {reason,
+          fmt::format("Treatment Machine Name (300A,00B2) \"{}\", Radiation Type (300A,00C6) {}, Nominal "
+                      "Beam Energy (300A,0114) {:g} MV: {}",
+                      p.machine, p.radiation, p.energy_mv.value_or(0.0), p.library_detail)};
+}
+
+// Problems of the beam and its data (stage: resolve).
+std::optional<Finding> beam_finding(const CalculationProblem& p) {
+  switch (p.kind) {
+    case ProblemKind::radiation_not_photon:
+      return Finding{
+          Reason::unsupported_radiation,
+          fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON beams are checked", p.plan_text)};
+    case ProblemKind::dosimeter_unit_not_mu:
+      return Finding{
+          Reason::unsupported_technique,
+          fmt::format("Primary Dosimeter Unit (300A,00B3) is \"{}\"; only MU is supported", p.plan_text)};
+    case ProblemKind::missing_plan_value:
+      return Finding{Reason::missing_plan_data, missing_sentence(p)};
+    case ProblemKind::patient_setup_not_found:
+      return Finding{
+          Reason::missing_plan_data,
+          "Patient Setup (300A,0180) referenced by Referenced Patient Setup Number (300C,006A) is absent "
+          "from the plan"};
+    case ProblemKind::machine_not_in_library:
+      return library_finding(Reason::unknown_machine, p);
+    case ProblemKind::energy_not_in_library:
+      return library_finding(Reason::unknown_energy, p);
+    case ProblemKind::radiation_not_in_library:
+      return library_finding(Reason::unsupported_radiation, p);
+    case ProblemKind::patient_position_unsupported:
+      return Finding{
+          Reason::unsupported_patient_position,
+          fmt::format("Patient Position (0018,5100) \"{}\" is not supported (HFS, HFP, FFS, FFP are)",
+                      p.plan_text)};
+    default:
+      return std::nullopt;
+  }
+}
+
+// Problems of accessories (stage: resolve; bolus: stage depth).
+std::optional<Finding> accessory_finding(const CalculationProblem& p) {
+  switch (p.kind) {
+    case ProblemKind::compensator_present:
+      return Finding{Reason::unsupported_accessory,
+                     "the beam has a compensator (300A,00E3); compensators are not modelled"};
+    case ProblemKind::applicator_present:
+      return Finding{Reason::unsupported_accessory,
+                     "the beam has an applicator (300A,0107); photon applicators are not modelled"};
+    case ProblemKind::several_wedges:
+      return Finding{Reason::unsupported_accessory, "the beam has more than one wedge (300A,00D1)"};
+    case ProblemKind::wedge_not_in_library:
+      return Finding{Reason::unknown_accessory,
+                     fmt::format("Wedge ID (300A,00D4) \"{}\" is not in the beam data of {} {}", p.plan_text,
+                                 p.library_beam, p.library_radiation)};
+    case ProblemKind::wedge_kind_mismatch:
+      return Finding{
+          Reason::unknown_accessory,
+          fmt::format("Wedge Type (300A,00D3) \"{}\" does not match the library's kind of wedge \"{}\"",
+                      p.plan_text, p.item_id)};
+    case ProblemKind::several_block_trays:
+      return Finding{Reason::unsupported_accessory,
+                     "the beam's blocks name more than one Block Tray ID (300A,00F5)"};
+    case ProblemKind::tray_not_in_library:
+      return Finding{Reason::unknown_accessory,
+                     fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}",
+                                 p.plan_text, p.library_beam)};
+    case ProblemKind::bolus_without_plan_depth:
+      return Finding{
+          Reason::unsupported_accessory,
+          "the beam has a bolus (300C,00B0) and the plan gives no depth for the dose point to include it"};
+    default:
+      return std::nullopt;
+  }
+}
+
+// Problems of geometry, depth, meterset and beam data (stages: geometry to segments).
+Finding geometry_finding(const CalculationProblem& p) {
+  switch (p.kind) {
+    case ProblemKind::sad_mismatch:
+      return {Reason::sad_mismatch,
+              fmt::format("Source-Axis Distance (300A,00B4) is {:.1f} mm but machine {} has "
+                          "{:.1f} mm",
+                          p.plan_value.value_or(0.0), p.machine, p.library_value.value_or(0.0))};
+    case ProblemKind::point_not_in_front_of_source:
+      return {Reason::unsupported_geometry, "the dose point is not in front of the source" + at_part(p)};
+    case ProblemKind::aperture_unusable: {
+      const bool missing = p.cause && p.cause->kind == ErrorKind::missing_attribute;
+      return {missing ? Reason::missing_plan_data : Reason::unsupported_geometry,
+              fmt::format("{} at control point {}", p.cause ? p.cause->message() : std::string{},
+                          p.control_point.value_or(0))};
+    }
+    case ProblemKind::equivalent_depth_missing:
+      return {
+          Reason::missing_plan_data,
+          "Beam Dose Point Equivalent Depth (300A,0089) is absent for this dose point; the equivalent depth "
+          "was asked for"};
+    case ProblemKind::depth_and_ssd_missing:
+      return {Reason::missing_plan_data,
+              "Beam Dose Point Depth (300A,0088) is absent for this dose point and so is Source to Surface "
+              "Distance (300A,0130) at control point 0"};
+    case ProblemKind::point_not_below_surface:
+      if (p.control_point) {
+        return {Reason::unsupported_geometry, "the dose point is not inside the patient" + at_part(p)};
+      }
+      return {Reason::unsupported_geometry,
+              fmt::format("the depth of the dose point is {:.1f} mm: the point is not inside the patient",
+                          p.plan_value.value_or(0.0))};
+    case ProblemKind::final_weight_unusable:
+      return {Reason::missing_plan_data,
+              "Final Cumulative Meterset Weight (300A,010E) is absent or not positive"};
+    case ProblemKind::no_delivered_meterset:
+      return {Reason::missing_plan_data,
+              "a delivered meterset between control points is absent (all weights equal)"};
+    case ProblemKind::mlc_transmission_missing:
+      return {Reason::missing_beam_data,
+              fmt::format("beam {} of machine {} has no mlc_transmission; modulated beams "
+                          "need it",
+                          p.library_beam, p.machine)};
+    case ProblemKind::oar_table_missing:
+      return {Reason::missing_beam_data,
+              fmt::format("beam {} has no OAR table and the point is {:.1f} cm off axis", p.library_beam,
+                          util::mm_to_cm(p.plan_value.value_or(0.0)))};
+    default:
+      return {Reason::missing_plan_data, "the calculation stopped"};
+  }
+}
+
+}  // namespace
+
+Finding finding_for(const CalculationProblem& problem) {
+  if (auto finding = beam_finding(problem)) return std::move(*finding);
+  if (auto finding = accessory_finding(problem)) return std::move(*finding);
+  return geometry_finding(problem);
+}
+
+std::string depth_description(const engine::DepthUsed& depth) {
+  if (!depth.chosen) return {};
+  switch (depth.source) {
+    case engine::DepthSource::derived_from_dose_point_ssd:
+      return "derived: source-to-point distance along the ray minus the plan's Beam Dose Point SSD "
+             "(300A,008A)";
+    case engine::DepthSource::derived_spd_minus_ssd:
+      return "derived: SPD - SSD at control point 0, assuming a flat surface perpendicular to the central "
+             "axis";
+    default:
+      break;
+  }
+  if (depth.kind == engine::DepthChoice::equivalent) {
+    return fmt::format("the plan's equivalent (radiological) depth, {}, as asked",
+                       engine::to_code(depth.source));
+  }
+  return fmt::format("the plan's Beam Dose Point Depth (300A,0088), {}", engine::to_code(depth.source));
+}
+
+std::string method_reason(const engine::BeamDose& dose) {
+  const bool pdd = dose.method == engine::Method::pdd;
+  if (!dose.method_basis) return {};
+  if (dose.method_basis == engine::MethodBasis::user_choice) {
+    return pdd ? "fixed-SSD (PDD) form, chosen by the user" : "isocentric (TMR) form, chosen by the user";
+  }
+  if (pdd) return "fixed-SSD (PDD) form: Setup Technique (300A,01B0) is FIXED_SSD";
+  if (dose.setup_technique.absent()) return "isocentric (TMR) form: Setup Technique (300A,01B0) is absent";
+  return "isocentric (TMR) form: Setup Technique (300A,01B0) is " + dose.setup_technique.text;
+}
+
+std::string approximation_sentence(const engine::Approximation& a, const engine::BeamDose& dose) {
+  switch (a.kind) {
+    case engine::ApproximationKind::bolus_in_plan_depth:
+      return "Bolus: the plan's depth is taken to include the bolus.";
+    case engine::ApproximationKind::derived_depth:
+      return "Depth " + depth_description(dose.depth) + ".";
+    case engine::ApproximationKind::ssd_from_spd_minus_depth:
+      return "SSD derived as SPD - depth: control point 0 has no Source to Surface Distance (300A,0130).";
+    case engine::ApproximationKind::modulated_sum:
+      return fmt::format(
+          "Modulated beam: dose summed over {} parts weighted by meterset; each part uses the equivalent "
+          "square "
+          "(4A/P) of its aperture, edge penumbra is ignored, a point under the leaves gets the jaw field's "
+          "dose "
+          "times the MLC transmission ({:.3f}), and jaw transmission is ignored.",
+          a.part_count, a.mlc_transmission);
+    case engine::ApproximationKind::arc_steps:
+      return fmt::format(
+          "Arc: split into gantry steps of at most {:.0f} degrees; each step's depth is the beam's depth "
+          "shifted "
+          "by the change in source-to-point distance and in SSD from control point 0 (where the plan gives "
+          "no SSD "
+          "per control point, the surface is taken to stay at control point 0's SSD).",
+          a.max_step_deg);
+    case engine::ApproximationKind::mlc_shape_equivalent_square:
+      return "MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.";
+    case engine::ApproximationKind::mlc_envelope_as_collimator:
+      return "No jaw positions for one axis: the MLC envelope stands in for the collimator field (Sc).";
+    case engine::ApproximationKind::blocks_not_modelled:
+      return "Block shapes are not modelled: the field inside the jaws and MLC is used for Sp and TMR/PDD.";
+    case engine::ApproximationKind::mayneord_f_factor:
+      return fmt::format(
+          "PDD at SSD {:.1f} cm from the table at {:.1f} cm by the Mayneord F factor, which ignores the "
+          "change in "
+          "phantom scatter (about half a percent).",
+          a.ssd_cm, a.table_ssd_cm);
+  }
+  return {};
+}
+
+CalculationWords describe_calculation(const engine::BeamDose& dose) {
+  CalculationWords words;
+  if (dose.problem) words.problem = finding_for(*dose.problem);
+  words.method_reason = method_reason(dose);
+  words.depth_description = depth_description(dose.depth);
+  for (const engine::Approximation& a : dose.approximations)
+    words.approximations.push_back(approximation_sentence(a, dose));
+  return words;
+}
+
+}  // namespace countersign::check

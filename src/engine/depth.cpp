@@ -1,0 +1,68 @@
+// Stage 3, depth: the depth at the dose point, from the plan or derived by a stated method.
+
+#include "stages.hpp"
+
+namespace countersign::engine::stages {
+
+namespace {
+
+CalculationProblem problem_of(ProblemKind kind) {
+  CalculationProblem problem;
+  problem.kind = kind;
+  return problem;
+}
+
+bool derived(DepthSource source) {
+  return source == DepthSource::derived_spd_minus_ssd || source == DepthSource::derived_from_dose_point_ssd;
+}
+
+}  // namespace
+
+StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
+                               const DosePoint& point, DepthChoice choice, BeamDose& r) {
+  DepthUsed& depth = r.depth;
+  depth.kind = choice;
+  const PlanDistances distances = plan_distances_for(beam, referenced, point);
+  if (distances.distances != nullptr) {
+    depth.plan_depth_mm = distances.distances->depth_mm;
+    depth.plan_equivalent_depth_mm = distances.distances->equivalent_depth_mm;
+  }
+  if (r.ssd_mm) depth.spd_minus_ssd_mm = r.point.spd_mm - *r.ssd_mm;
+  if (choice == DepthChoice::equivalent) {
+    if (!depth.plan_equivalent_depth_mm) return problem_of(ProblemKind::equivalent_depth_missing);
+    depth.depth_mm = *depth.plan_equivalent_depth_mm;
+    depth.source = distances.layout;
+  } else if (depth.plan_depth_mm) {
+    depth.depth_mm = *depth.plan_depth_mm;
+    depth.source = distances.layout;
+  } else if (distances.distances != nullptr && distances.distances->ssd_mm) {
+    depth.depth_mm = r.point.ray_length_mm - *distances.distances->ssd_mm;
+    depth.source = DepthSource::derived_from_dose_point_ssd;
+  } else if (depth.spd_minus_ssd_mm) {
+    depth.depth_mm = *depth.spd_minus_ssd_mm;
+    depth.source = DepthSource::derived_spd_minus_ssd;
+  } else {
+    return problem_of(ProblemKind::depth_and_ssd_missing);
+  }
+  depth.chosen = true;
+  if (depth.depth_mm <= 0.0) {
+    CalculationProblem problem = problem_of(ProblemKind::point_not_below_surface);
+    problem.plan_value = depth.depth_mm;
+    return problem;
+  }
+  if (!beam.boli.empty()) {
+    if (derived(depth.source)) return problem_of(ProblemKind::bolus_without_plan_depth);
+    r.approximations.push_back({ApproximationKind::bolus_in_plan_depth});
+  }
+  if (derived(depth.source)) r.approximations.push_back({ApproximationKind::derived_depth});
+  return {};
+}
+
+double surface_distance_mm(const BeamDose& r) { return r.ssd_mm.value_or(r.point.spd_mm - r.depth.depth_mm); }
+
+double part_depth_mm(const BeamDose& r, double part_spd_mm, double part_ssd_mm, double ssd0_mm) {
+  // The depth moves with the source-to-point distance and the SSD relative to control point 0.
+  return r.depth.depth_mm + (part_spd_mm - r.point.spd_mm) - (part_ssd_mm - ssd0_mm);
+}
+
+}  // namespace countersign::engine::stages

@@ -1,0 +1,39 @@
+// Stage 6, primary and transmission: whether the point sees the source through a part's opening,
+// lies behind the leaves, or outside the jaws, and what fraction of the primary reaches it.
+
+#include "stages.hpp"
+
+namespace countersign::engine::stages {
+
+namespace {
+
+constexpr double on_axis_limit_mm = 1.0;  // closer than this to the axis, an absent OAR table is harmless
+
+}  // namespace
+
+PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::PointInBeam& point,
+                         bool modulated, const beamdata::BeamData& data) {
+  const double x = point.iso_plane_x_mm;
+  const double y = point.iso_plane_y_mm;
+  const geometry::JawOpening& jaws = aperture.jaws();
+  PrimaryPath path;
+  path.in_opening = aperture.area_mm2() > 0.0 && aperture.contains(x, y);
+  path.in_jaws = x >= jaws.x1_mm && x <= jaws.x2_mm && y >= jaws.y1_mm && y <= jaws.y2_mm;
+  // A static field is judged on its own opening (the check decides about points outside it); a
+  // part of a modulated beam outside the jaws gives no dose, behind the leaves their transmission.
+  path.counted = !modulated || path.in_opening || path.in_jaws;
+  path.under_leaves = modulated && !path.in_opening && path.in_jaws;
+  if (path.under_leaves) path.transmission = data.mlc_transmission.value_or(1.0);
+  return path;
+}
+
+StageResult<void> require_oar(const beamdata::BeamData& data, const geometry::PointInBeam& point) {
+  if (data.oar || point.off_axis_mm <= on_axis_limit_mm) return {};
+  CalculationProblem problem;
+  problem.kind = ProblemKind::oar_table_missing;
+  problem.library_beam = data.id;
+  problem.plan_value = point.off_axis_mm;
+  return problem;
+}
+
+}  // namespace countersign::engine::stages

@@ -1,0 +1,204 @@
+// Stage 8, segments: the meterset split into parts (one per delivering pair of control points, arcs
+// in gantry steps), each part through apertures, scatter, primary and formula, the doses summed.
+
+#include "stages.hpp"
+
+#include <countersign/util/assert.hpp>
+#include <countersign/util/units.hpp>
+
+#include <algorithm>
+#include <cmath>
+
+namespace countersign::engine::stages {
+
+namespace {
+
+namespace attribute = plan::attribute;
+
+// Signed rotation from a to b, following the stated direction when there is one.
+double rotation_step_deg(double from_deg, double to_deg, plan::RotationDirection direction) {
+  double step = std::fmod(to_deg - from_deg, 360.0);
+  if (direction == plan::RotationDirection::cw) {
+    if (step < 0.0) step += 360.0;
+  } else if (direction == plan::RotationDirection::cc) {
+    if (step > 0.0) step -= 360.0;
+  } else {
+    if (step > 180.0) step -= 360.0;
+    if (step < -180.0) step += 360.0;
+  }
+  return step;
+}
+
+double wrap_deg(double angle_deg) {
+  const double a = std::fmod(angle_deg, 360.0);
+  return a < 0.0 ? a + 360.0 : a;
+}
+
+// An angle a fraction t of the way from a to b in the stated direction.
+std::optional<double> angle_between(const std::optional<double>& a, const std::optional<double>& b,
+                                    const plan::Coded<plan::RotationDirection>& direction, double t) {
+  if (!a || !b) return a;
+  return wrap_deg(*a + t * rotation_step_deg(*a, *b, direction.value));
+}
+
+// A control point between a and b at fraction t: angles and device positions interpolated linearly.
+plan::ControlPoint interpolate(const plan::ControlPoint& a, const plan::ControlPoint& b, double t) {
+  plan::ControlPoint c = a;
+  c.gantry_deg = angle_between(a.gantry_deg, b.gantry_deg, a.gantry_rotation, t);
+  c.collimator_deg = angle_between(a.collimator_deg, b.collimator_deg, a.collimator_rotation, t);
+  c.couch_deg = angle_between(a.couch_deg, b.couch_deg, a.couch_rotation, t);
+  for (plan::DevicePositions& d : c.devices) {
+    const plan::DevicePositions* other = b.device(d.type);
+    if (other == nullptr || other->positions_mm.size() != d.positions_mm.size()) continue;
+    for (std::size_t i = 0; i < d.positions_mm.size(); ++i) {
+      d.positions_mm[i] += t * (other->positions_mm[i] - d.positions_mm[i]);
+    }
+  }
+  if (a.ssd_mm && b.ssd_mm) c.ssd_mm = *a.ssd_mm + t * (*b.ssd_mm - *a.ssd_mm);
+  return c;
+}
+
+CalculationProblem at_control_point(ProblemKind kind, int control_point) {
+  CalculationProblem problem;
+  problem.kind = kind;
+  problem.control_point = control_point;
+  return problem;
+}
+
+// One part through stages 4-7 (apertures, scatter, primary, formula).
+StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point,
+                                  const ResolvedBeam& resolved, const PartPlan& part, double ssd0_mm,
+                                  const BeamDose& r) {
+  const plan::ControlPoint& cp = part.geometry();
+  const plan::ControlPoint& cp0 = beam.control_points.front();
+  Segment s;
+  s.from_control_point = part.from_control_point;
+  s.meterset_mu = part.meterset_mu;
+  s.angles = {cp.gantry_deg.value_or(r.angles.gantry_deg),
+              cp.collimator_deg.value_or(r.angles.collimator_deg), cp.couch_deg.value_or(r.angles.couch_deg)};
+  const geometry::BeamFrame frame(resolved.position, s.angles, cp.isocenter_mm.value_or(r.isocenter_mm),
+                                  r.sad_mm);
+  s.point = frame.locate(point.point_mm);
+  if (s.point.spd_mm <= 0.0)
+    return at_control_point(ProblemKind::point_not_in_front_of_source, s.from_control_point);
+
+  // Control point 0's opening is already built; other parts build their own.
+  std::optional<geometry::Aperture> own;
+  if (&cp != &cp0 && !same_geometry(cp, cp0)) TRY_ASSIGN(own, aperture_at(beam, cp, s.from_control_point));
+  const geometry::Aperture& aperture = own ? *own : r.aperture;
+  s.jaws = aperture.jaws();
+  s.open_area_mm2 = aperture.area_mm2();
+  s.open_perimeter_mm = aperture.perimeter_mm();
+
+  const PrimaryPath path = primary_path(aperture, s.point, r.features.modulated, *resolved.data);
+  s.point_in_opening = path.in_opening;
+  s.point_in_jaws = path.in_jaws;
+  s.ssd_mm = cp.ssd_mm.value_or(ssd0_mm);
+  s.depth_mm = part_depth_mm(r, s.point.spd_mm, s.ssd_mm, ssd0_mm);
+  if (s.depth_mm <= 0.0) {
+    CalculationProblem problem = at_control_point(ProblemKind::point_not_below_surface, s.from_control_point);
+    problem.plan_value = s.depth_mm;
+    return problem;
+  }
+
+  const PartGeometry geometry{s.meterset_mu, s.depth_mm, s.point.spd_mm, s.ssd_mm, s.point.off_axis_mm};
+  s.inputs = formula_inputs(r, resolved, geometry, scatter_inputs(aperture), path);
+  if (path.counted) {
+    TRY(require_oar(*resolved.data, s.point));
+    s.dose = compute_point_dose(*resolved.data, s.inputs);
+  } else {
+    s.dose.method = r.method;  // outside the jaws: no dose counted
+  }
+  return s;
+}
+
+}  // namespace
+
+const plan::ControlPoint& PartPlan::geometry() const {
+  return interpolated ? *interpolated : util::checked(control_point);
+}
+
+bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b) {
+  if (a.gantry_deg != b.gantry_deg || a.collimator_deg != b.collimator_deg || a.couch_deg != b.couch_deg ||
+      a.isocenter_mm != b.isocenter_mm || a.ssd_mm != b.ssd_mm || a.devices.size() != b.devices.size()) {
+    return false;
+  }
+  for (const plan::DevicePositions& d : a.devices) {
+    const plan::DevicePositions* other = b.device(d.type);
+    if (other == nullptr || other->positions_mm != d.positions_mm) return false;
+  }
+  return true;
+}
+
+StageResult<MetersetSplit> split_meterset(const plan::Beam& beam, double meterset_mu) {
+  const double final_weight = beam.final_cumulative_meterset_weight.value_or(
+      beam.control_points.back().cumulative_meterset_weight.value_or(0.0));
+  if (!(final_weight > 0.0)) {
+    CalculationProblem problem;
+    problem.kind = ProblemKind::final_weight_unusable;
+    problem.attribute = attribute::final_cumulative_meterset_weight;
+    return problem;
+  }
+  MetersetSplit split;
+  const plan::ControlPoint& cp0 = beam.control_points.front();
+  if (beam.control_points.size() == 1) split.parts.push_back({cp0.index, meterset_mu, &cp0, std::nullopt});
+  for (std::size_t i = 0; i + 1 < beam.control_points.size(); ++i) {
+    const plan::ControlPoint& a = beam.control_points[i];
+    const plan::ControlPoint& b = beam.control_points[i + 1];
+    if (!a.cumulative_meterset_weight || !b.cumulative_meterset_weight) {
+      return missing_value(attribute::cumulative_meterset_weight, PlanScope::control_point, b.index);
+    }
+    const double weight = *b.cumulative_meterset_weight - *a.cumulative_meterset_weight;
+    if (weight <= 1e-9 * final_weight) continue;
+    const double gantry_step = (a.gantry_deg && b.gantry_deg)
+                                   ? rotation_step_deg(*a.gantry_deg, *b.gantry_deg, a.gantry_rotation.value)
+                                   : 0.0;
+    if (std::abs(gantry_step) > 1e-6) split.moving = true;
+    const int steps =
+        std::max(1, static_cast<int>(std::ceil(std::abs(gantry_step) / max_arc_step_deg - 1e-9)));
+    const double part_mu = meterset_mu * weight / final_weight / steps;
+    if (steps == 1 && same_geometry(a, b)) {
+      split.parts.push_back({a.index, part_mu, &a, std::nullopt});
+      continue;
+    }
+    for (int k = 0; k < steps; ++k) {
+      split.parts.push_back({a.index, part_mu, nullptr, interpolate(a, b, (k + 0.5) / steps)});
+    }
+  }
+  if (split.parts.empty()) {
+    CalculationProblem problem;
+    problem.kind = ProblemKind::no_delivered_meterset;
+    return problem;
+  }
+  return split;
+}
+
+StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
+                                   const ResolvedBeam& resolved, const MetersetSplit& split, BeamDose& r) {
+  const beamdata::BeamData& data = *resolved.data;
+  if (r.features.modulated && !data.mlc_transmission) {
+    const bool needs_transmission =
+        std::any_of(split.parts.begin(), split.parts.end(),
+                    [](const PartPlan& p) { return p.geometry().device(plan::DeviceType::mlcx) != nullptr; });
+    if (needs_transmission) {
+      CalculationProblem problem;
+      problem.kind = ProblemKind::mlc_transmission_missing;
+      problem.library_beam = data.id;
+      problem.machine = resolved.machine->name;
+      return problem;
+    }
+  }
+  const double ssd0_mm = surface_distance_mm(r);
+  r.segments.reserve(split.parts.size());
+  double total_cgy = 0.0;
+  for (const PartPlan& part : split.parts) {
+    Segment s;
+    TRY_ASSIGN(s, compute_part(beam, point, resolved, part, ssd0_mm, r));
+    total_cgy += s.dose.dose_cgy;
+    r.segments.push_back(std::move(s));
+  }
+  r.computed_dose_gy = util::cgy_to_gy(total_cgy);
+  return {};
+}
+
+}  // namespace countersign::engine::stages

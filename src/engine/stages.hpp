@@ -1,0 +1,154 @@
+#pragma once
+
+// The stages of one beam's calculation (internal to the engine; DEVELOPERS.md, "Engine stages").
+// compute_beam_dose (beam_dose.cpp) runs them in this order:
+//
+//   1. resolve      resolve_beam.cpp   the beam's data in the library, accessories, patient setup
+//   2. geometry     beam_geometry.cpp  IEC 61217 frame of control point 0, the point seen from it, SAD
+//   3. depth        depth.cpp          the depth at the point: the plan's, or derived by a stated method
+//   4. apertures    apertures.cpp      the opening of each part (and the outline a drawing shows)
+//   5. scatter      scatter.cpp        the scatter inputs of each part: today equivalent squares
+//   6. primary      primary.cpp        the primary's path to the point: open, under the leaves, blocked
+//   7. formula      formula.cpp        the formalism (TMR/PDD) and the point-dose formula's inputs
+//   8. segments     segments.cpp       the meterset split into parts, each part through 4-7, summed
+//
+// Each stage returns its facts or the CalculationProblem that stops the calculation; a stage reads
+// only what the stages before it produced.
+
+#include <countersign/beamdata/library.hpp>
+#include <countersign/engine/beam_dose.hpp>
+#include <countersign/engine/problem.hpp>
+#include <countersign/geometry/aperture.hpp>
+#include <countersign/geometry/beam_frame.hpp>
+#include <countersign/plan/plan.hpp>
+#include <countersign/util/error.hpp>
+
+#include <optional>
+#include <vector>
+
+namespace countersign::engine::stages {
+
+// What a stage gives: its facts, or what stopped the calculation.
+template <class T>
+using StageResult = Expected<T, CalculationProblem>;
+
+// ---- 1. resolve ----------------------------------------------------------------------------------
+struct ResolvedBeam {
+  const beamdata::Machine* machine = nullptr;
+  const beamdata::BeamData* data = nullptr;
+  const beamdata::WedgeData* wedge = nullptr;  // the wedge in the beam, or none
+  const beamdata::TrayData* tray = nullptr;    // the block tray in the beam, or none
+  const plan::PatientSetup* setup = nullptr;
+  geometry::PatientPosition position = geometry::PatientPosition::hfs;
+  double meterset_mu = 0.0;
+};
+
+// The beam's machine and energy in the library, its accessories, its patient setup and meterset.
+// Fills `r` (machine, beam data, features of accessories, patient position) as it goes, so that a
+// report can show what was found before a problem.
+[[nodiscard]] StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam& beam,
+                                                     const plan::ReferencedBeam& referenced,
+                                                     const beamdata::Library& library, BeamDose& r);
+
+// ---- 2. geometry ---------------------------------------------------------------------------------
+// Angles, isocentre and SAD of control point 0, and the dose point seen from the source (sets
+// r.angles, r.isocenter_mm, r.sad_mm, r.point, r.ssd_mm).
+[[nodiscard]] StageResult<void> locate_point(const plan::Beam& beam, const ResolvedBeam& resolved,
+                                             const DosePoint& point, BeamDose& r);
+
+// ---- 3. depth ------------------------------------------------------------------------------------
+// The depth at the point (control point 0), into r.depth: today the plan's Beam Dose Point Depth
+// (or equivalent depth when asked for), else derived from the dose point SSD or from SPD - SSD with
+// a flat surface; a bolus needs the plan's depth. Adds the approximations it makes.
+// Seam: a depth along the ray through a CT volume would be one more DepthSource chosen here.
+[[nodiscard]] StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
+                                             const DosePoint& point, DepthChoice choice, BeamDose& r);
+
+// The SSD of control point 0: the plan's, else SPD - depth (the surface the depth implies).
+[[nodiscard]] double surface_distance_mm(const BeamDose& r);
+
+// The depth of a later part: the depth of control point 0 moved by the change in source-to-point
+// distance and in SSD (flat surface).
+[[nodiscard]] double part_depth_mm(const BeamDose& r, double part_spd_mm, double part_ssd_mm, double ssd0_mm);
+
+// ---- 4. apertures --------------------------------------------------------------------------------
+// The opening at one control point, in the isocentre plane: jaws intersected with the MLC.
+// Seam: blocks and polygon apertures would be intersected here.
+[[nodiscard]] StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam,
+                                                          const plan::ControlPoint& cp,
+                                                          int control_point_index);
+
+// What the beam's-eye view draws: control point 0's opening for a static beam, the swept area of
+// every delivering pair of control points for a modulated one.
+[[nodiscard]] BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0,
+                                       bool modulated);
+
+// ---- 5. scatter ----------------------------------------------------------------------------------
+// The field sizes the scatter factors are looked up with, at the isocentre plane.
+struct ScatterInputs {
+  double collimator_field_cm = 0.0;  // s_c: equivalent square of the jaw opening (Sc)
+  double open_field_cm = 0.0;        // equivalent square (4A/P) of the opening (Sp, TMR/PDD column)
+};
+// Today: equivalent squares (Sterling's 4A/P). Seam: sector integration (Clarkson) over the
+// aperture would replace open_field_cm with per-sector scatter sums here.
+[[nodiscard]] ScatterInputs scatter_inputs(const geometry::Aperture& aperture);
+
+// ---- 6. primary and transmission -----------------------------------------------------------------
+struct PrimaryPath {
+  bool in_opening = false;    // the point sees the source through the opening
+  bool in_jaws = false;       // the point lies inside the jaw rectangle
+  bool under_leaves = false;  // modulated part: inside the jaws, behind the leaves
+  bool counted = false;       // the part contributes dose at the point
+  double transmission = 1.0;  // 1 in the open field; the MLC transmission under the leaves
+};
+// Where the point lies relative to one part's opening, and what reaches it.
+[[nodiscard]] PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::PointInBeam& point,
+                                       bool modulated, const beamdata::BeamData& data);
+// The off-axis ratio needs a table off the axis (closer than 1 mm an absent table is harmless).
+[[nodiscard]] StageResult<void> require_oar(const beamdata::BeamData& data,
+                                            const geometry::PointInBeam& point);
+
+// ---- 7. formula ----------------------------------------------------------------------------------
+// The formalism: the user's choice, else by the patient setup's Setup Technique (sets r.method,
+// r.method_basis, r.setup_technique).
+void choose_method(const ResolvedBeam& resolved, MethodChoice choice, BeamDose& r);
+
+// The point-dose formula's inputs for one part (units converted here, mm to cm).
+struct PartGeometry {
+  double meterset_mu = 0.0;
+  double depth_mm = 0.0;
+  double spd_mm = 0.0;
+  double ssd_mm = 0.0;
+  double off_axis_mm = 0.0;
+};
+[[nodiscard]] DoseInputs formula_inputs(const BeamDose& r, const ResolvedBeam& resolved,
+                                        const PartGeometry& part, const ScatterInputs& scatter,
+                                        const PrimaryPath& path);
+
+// ---- 8. segments ---------------------------------------------------------------------------------
+// One part of the meterset: a plan control point, or one interpolated in the middle of an arc step.
+struct PartPlan {
+  int from_control_point = 0;
+  double meterset_mu = 0.0;
+  const plan::ControlPoint* control_point = nullptr;  // the part's geometry: a plan control point ...
+  std::optional<plan::ControlPoint> interpolated;     // ... or one interpolated at the middle of the part
+  [[nodiscard]] const plan::ControlPoint& geometry() const;
+};
+struct MetersetSplit {
+  std::vector<PartPlan> parts;
+  bool moving = false;  // the gantry moves while meterset is delivered
+};
+// One part per pair of control points between which meterset is delivered; arcs split into gantry
+// steps of at most max_arc_step_deg.
+[[nodiscard]] StageResult<MetersetSplit> split_meterset(const plan::Beam& beam, double meterset_mu);
+
+// Every part through apertures, scatter, primary and formula; their doses summed into r (sets
+// r.segments and r.computed_dose_gy). A modulated beam with leaves needs the MLC transmission.
+[[nodiscard]] StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
+                                                 const ResolvedBeam& resolved, const MetersetSplit& split,
+                                                 BeamDose& r);
+
+// Whether nothing that shapes or aims the beam changes between two control points.
+[[nodiscard]] bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b);
+
+}  // namespace countersign::engine::stages
