@@ -156,8 +156,13 @@ Finding geometry_finding(const CalculationProblem& p) {
               "a delivered meterset between control points is absent (all weights equal)"};
     case ProblemKind::mlc_transmission_missing:
       return {Reason::missing_beam_data,
-              fmt::format("beam {} of machine {} has no mlc_transmission; modulated beams "
-                          "need it",
+              fmt::format("beam {} of machine {} has no mlc_transmission; beams shaped or "
+                          "modulated by leaves need it",
+                          p.library_beam, p.machine)};
+    case ProblemKind::leaf_end_offset_missing:
+      return {Reason::missing_beam_data,
+              fmt::format("beam {} of machine {} has no mlc_leaf_end_offset_mm; the openings of beams "
+                          "shaped by leaves depend on it and the contract gives no default",
                           p.library_beam, p.machine)};
     case ProblemKind::oar_table_missing:
       return {Reason::missing_beam_data,
@@ -230,6 +235,16 @@ std::string approximation_sentence(const engine::Approximation& a, const engine:
           "no SSD "
           "per control point, the surface is taken to stay at control point 0's SSD).",
           a.max_step_deg);
+    case engine::ApproximationKind::sector_integration:
+      return fmt::format(
+          "Shaped field: phantom scatter by sector integration ({} sectors of at most {:.0f} degrees) of "
+          "scatter-maximum ratios from the TMR and Sp tables, circles as equal-area squares, TMR(d, 0) and "
+          "Sp(0) extrapolated linearly through the two smallest fields; parts under leaves or blocks count "
+          "with their transmission, jaw transmission is ignored, the OAR multiplies the primary only{}. "
+          "The equivalent-square (4A/P) dose is {:.4f} Gy ({:+.2f} %).",
+          a.part_count, a.max_step_deg,
+          a.beyond_largest_field ? "; scatter from beyond the largest tabulated field is not counted" : "",
+          dose.equivalent_square_dose_gy, dose.sector_vs_equivalent_square_percent);
     case engine::ApproximationKind::mlc_shape_equivalent_square:
       return "MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.";
     case engine::ApproximationKind::mlc_envelope_as_collimator:

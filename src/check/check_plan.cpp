@@ -123,6 +123,13 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
                           [](const engine::Segment& s) { return s.point_in_opening; })) {
     return Finding{Reason::point_outside_field,
                    "the dose point is under the leaves or jaws in every segment"};
+  } else if (c.edge_meterset_share > policy.max_edge_meterset_share) {
+    return Finding{
+        Reason::point_near_segment_edges,
+        fmt::format("{:.0f} % of the meterset is delivered with the dose point closer than {:.1f} mm "
+                    "to a segment's edge (policy maximum {:.0f} %)",
+                    100.0 * c.edge_meterset_share, util::cm_to_mm(policy.min_edge_distance_cm),
+                    100.0 * policy.max_edge_meterset_share)};
   }
   if (c.features.wedged && c.point.off_axis_mm > util::cm_to_mm(policy.wedge_max_off_axis_cm)) {
     return Finding{

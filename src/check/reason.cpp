@@ -46,6 +46,8 @@ std::string_view reason_code(Reason reason) {
       return "point_outside_field";
     case Reason::point_near_field_edge:
       return "point_near_field_edge";
+    case Reason::point_near_segment_edges:
+      return "point_near_segment_edges";
     case Reason::table_extrapolated:
       return "table_extrapolated";
     case Reason::inconsistent_depth:

@@ -68,6 +68,8 @@ const std::map<std::string, Key>& keys() {
       {"limits.depth_check_max_off_axis_cm", {&TolerancePolicy::depth_check_max_off_axis_cm, 0.0, 30.0}},
       {"limits.wedge_max_off_axis_cm", {&TolerancePolicy::wedge_max_off_axis_cm, 0.0, 30.0}},
       {"limits.small_share_fraction", {&TolerancePolicy::small_share_fraction, 0.0, 1.0}},
+      {"sectors.max_sector_deg", {&TolerancePolicy::max_sector_deg, 1.0, 10.0}},
+      {"sectors.max_edge_meterset_share", {&TolerancePolicy::max_edge_meterset_share, 0.0, 1.0}},
   };
   return all;
 }

@@ -1,6 +1,7 @@
 #include "shared_options.hpp"
 
 #include <countersign/dicom/plan_files.hpp>
+#include <countersign/util/units.hpp>
 #include "bundled_data.hpp"
 
 #include <algorithm>
@@ -41,6 +42,8 @@ Expected<check::CheckOptions> check_options_from(const CheckFlags& flags) {
   options.engine.method = flags.method;
   options.engine.depth = flags.depth;
   if (!flags.policy.empty()) TRY_ASSIGN(options.policy, check::load_policy(flags.policy));
+  options.engine.max_sector_deg = options.policy.max_sector_deg;
+  options.engine.segment_edge_distance_mm = util::cm_to_mm(options.policy.min_edge_distance_cm);
   return options;
 }
 

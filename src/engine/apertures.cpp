@@ -7,8 +7,8 @@
 namespace countersign::engine::stages {
 
 StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam, const plan::ControlPoint& cp,
-                                            int control_point_index) {
-  auto built = geometry::build_aperture(beam, cp);
+                                            int control_point_index, const beamdata::BeamData& data) {
+  auto built = geometry::build_aperture(beam, cp, data.mlc_leaf_end_offset_mm.value_or(0.0));
   if (!built) {
     CalculationProblem problem;
     problem.kind = ProblemKind::aperture_unusable;
@@ -17,6 +17,10 @@ StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam, const plan::
     return problem;
   }
   return std::move(built).value();
+}
+
+bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolved) {
+  return aperture.shaped_by_mlc() || !resolved.blocks.empty();
 }
 
 BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0, bool modulated) {

@@ -7,6 +7,7 @@
 
 #include <countersign/util/units.hpp>
 
+#include <algorithm>
 #include <cmath>
 
 namespace countersign::engine {
@@ -29,8 +30,17 @@ void add_beam_approximations(const ResolvedBeam& resolved, const MetersetSplit& 
     a.max_step_deg = max_arc_step_deg;
     r.approximations.push_back(a);
   }
-  if (r.aperture.shaped_by_mlc() && r.features.open_to_jaw_area_ratio < 0.999 && !r.features.modulated) {
-    r.approximations.push_back({ApproximationKind::mlc_shape_equivalent_square});
+  const auto sectored = std::find_if(r.segments.begin(), r.segments.end(), [](const Segment& s) {
+    return s.scatter_method == ScatterMethod::sector_integration;
+  });
+  if (sectored != r.segments.end()) {
+    Approximation a{ApproximationKind::sector_integration};
+    a.part_count = static_cast<std::size_t>(sectored->sectors->sectors);
+    a.max_step_deg = 360.0 / sectored->sectors->sectors;
+    a.beyond_largest_field = std::any_of(r.segments.begin(), r.segments.end(), [](const Segment& s) {
+      return s.sectors && s.sectors->beyond_largest_field;
+    });
+    r.approximations.push_back(a);
   }
   if (r.aperture.jaws().x_source == geometry::JawSource::mlc_envelope ||
       r.aperture.jaws().y_source == geometry::JawSource::mlc_envelope) {
@@ -47,9 +57,9 @@ void add_beam_approximations(const ResolvedBeam& resolved, const MetersetSplit& 
 }
 
 // Control point 0's opening, where the point lies in it, and the shape facts the policy sorts by.
-StageResult<void> open_field(const plan::Beam& beam, BeamDose& r) {
+StageResult<void> open_field(const plan::Beam& beam, const ResolvedBeam& resolved, BeamDose& r) {
   const plan::ControlPoint& cp0 = beam.control_points.front();
-  TRY_ASSIGN(r.aperture, aperture_at(beam, cp0, 0));
+  TRY_ASSIGN(r.aperture, aperture_at(beam, cp0, 0, *resolved.data));
   r.point_in_field = r.aperture.contains(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
   r.edge_distance_mm = r.aperture.distance_to_edge_mm(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
   r.features.jaw_centre_offset_mm = r.aperture.jaws().centre_offset_mm();
@@ -66,7 +76,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   ResolvedBeam resolved;
   TRY_ASSIGN(resolved, resolve_beam(plan, beam, referenced, library, r));  // 1. resolve
   TRY(locate_point(beam, resolved, point, r));                             // 2. geometry
-  TRY(open_field(beam, r));                                                //    (control point 0's opening)
+  TRY(open_field(beam, resolved, r));                                      //    (control point 0's opening)
   TRY(choose_depth(beam, referenced, point, options.depth, r));            // 3. depth
   choose_method(resolved, options.method, r);                              // 7. formula: the formalism
   if (!r.ssd_mm && r.method == Method::pdd)
@@ -76,7 +86,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   TRY_ASSIGN(split, split_meterset(beam, resolved.meterset_mu));  // 8. segments: the parts
   r.features.modulated = split.moving || split.parts.size() > 1;
   if (r.features.modulated) r.outline = beam_outline(beam, r.aperture, true);
-  TRY(compute_segments(beam, point, resolved, split, r));  // 4-7 per part, summed
+  TRY(compute_segments(beam, point, resolved, split, options, r));  // 4-7 per part, summed
 
   r.inputs = r.segments.front().inputs;
   r.dose = r.segments.front().dose;
@@ -86,6 +96,10 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
 }
 
 }  // namespace
+
+std::string_view to_code(ScatterMethod method) {
+  return method == ScatterMethod::sector_integration ? "sector_integration" : "equivalent_square";
+}
 
 const Factor* BeamDose::first_extrapolated() const {
   for (const Segment& s : segments) {

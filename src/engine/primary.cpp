@@ -12,7 +12,8 @@ constexpr double on_axis_limit_mm = 1.0;  // closer than this to the axis, an ab
 }  // namespace
 
 PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::PointInBeam& point,
-                         bool modulated, const beamdata::BeamData& data) {
+                         bool modulated, const ResolvedBeam& resolved) {
+  const beamdata::BeamData& data = *resolved.data;
   const double x = point.iso_plane_x_mm;
   const double y = point.iso_plane_y_mm;
   const geometry::JawOpening& jaws = aperture.jaws();
@@ -24,6 +25,13 @@ PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::Poi
   path.counted = !modulated || path.in_opening || path.in_jaws;
   path.under_leaves = modulated && !path.in_opening && path.in_jaws;
   if (path.under_leaves) path.transmission = data.mlc_transmission.value_or(1.0);
+  // Behind a block (outside an APERTURE block's outline, inside a SHIELDING block's): its transmission.
+  for (const BlockShape& block : resolved.blocks) {
+    if (block.contains(x, y) != block.aperture) {
+      path.under_block = true;
+      path.transmission *= block.transmission;
+    }
+  }
   return path;
 }
 

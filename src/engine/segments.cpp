@@ -68,7 +68,8 @@ CalculationProblem at_control_point(ProblemKind kind, int control_point) {
 // One part through stages 4-7 (apertures, scatter, primary, formula).
 StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point,
                                   const ResolvedBeam& resolved, const PartPlan& part, double ssd0_mm,
-                                  const BeamDose& r) {
+                                  const EngineOptions& options, const BeamDose& r) {
+  const double max_sector_deg = options.max_sector_deg;
   const plan::ControlPoint& cp = part.geometry();
   const plan::ControlPoint& cp0 = beam.control_points.front();
   Segment s;
@@ -84,13 +85,15 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
 
   // Control point 0's opening is already built; other parts build their own.
   std::optional<geometry::Aperture> own;
-  if (&cp != &cp0 && !same_geometry(cp, cp0)) TRY_ASSIGN(own, aperture_at(beam, cp, s.from_control_point));
+  if (&cp != &cp0 && !same_geometry(cp, cp0))
+    TRY_ASSIGN(own, aperture_at(beam, cp, s.from_control_point, *resolved.data));
   const geometry::Aperture& aperture = own ? *own : r.aperture;
   s.jaws = aperture.jaws();
   s.open_area_mm2 = aperture.area_mm2();
   s.open_perimeter_mm = aperture.perimeter_mm();
+  s.edge_distance_mm = aperture.distance_to_edge_mm(s.point.iso_plane_x_mm, s.point.iso_plane_y_mm);
 
-  const PrimaryPath path = primary_path(aperture, s.point, r.features.modulated, *resolved.data);
+  const PrimaryPath path = primary_path(aperture, s.point, r.features.modulated, resolved);
   s.point_in_opening = path.in_opening;
   s.point_in_jaws = path.in_jaws;
   s.ssd_mm = cp.ssd_mm.value_or(ssd0_mm);
@@ -101,15 +104,42 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
     return problem;
   }
 
+  const bool sectors = shaped_field(aperture, resolved) && path.counted;
+  const SectorSetup setup{s.point, s.depth_mm, s.point.spd_mm, r.sad_mm, max_sector_deg, &options};
+  const ScatterInputs scatter = scatter_inputs(aperture, resolved, sectors ? &setup : nullptr);
   const PartGeometry geometry{s.meterset_mu, s.depth_mm, s.point.spd_mm, s.ssd_mm, s.point.off_axis_mm};
-  s.inputs = formula_inputs(r, resolved, geometry, scatter_inputs(aperture), path);
+  s.inputs = formula_inputs(r, resolved, geometry, scatter, path);
   if (path.counted) {
     TRY(require_oar(*resolved.data, s.point));
     s.dose = compute_point_dose(*resolved.data, s.inputs);
+    s.equivalent_square_dose_cgy = s.dose.dose_cgy;
+    if (scatter.sectors) {
+      s.scatter_method = ScatterMethod::sector_integration;
+      s.sectors = scatter.sectors;
+      s.primary = scatter.sectors->sp0 * scatter.sectors->tmr0 * scatter.sectors->primary_transmission *
+                  s.dose.factors.oar.value;
+      apply_sector_scatter(*resolved.data, s.inputs, *scatter.sectors, s.dose);
+    }
   } else {
     s.dose.method = r.method;  // outside the jaws: no dose counted
   }
   return s;
+}
+
+// What a shaped or modulated beam needs from the library before any part is computed: the MLC
+// transmission and the leaf-end offset (the contract gives neither a default).
+StageResult<void> require_mlc_data(const MetersetSplit& split, const ResolvedBeam& resolved) {
+  const beamdata::BeamData& data = *resolved.data;
+  const bool leaves = std::any_of(split.parts.begin(), split.parts.end(), [](const PartPlan& p) {
+    return p.geometry().device(plan::DeviceType::mlcx) != nullptr;
+  });
+  if (!leaves || (data.mlc_transmission && data.mlc_leaf_end_offset_mm)) return {};
+  CalculationProblem problem;
+  problem.kind =
+      data.mlc_transmission ? ProblemKind::leaf_end_offset_missing : ProblemKind::mlc_transmission_missing;
+  problem.library_beam = data.id;
+  problem.machine = resolved.machine->name;
+  return problem;
 }
 
 }  // namespace
@@ -174,30 +204,32 @@ StageResult<MetersetSplit> split_meterset(const plan::Beam& beam, double meterse
 }
 
 StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
-                                   const ResolvedBeam& resolved, const MetersetSplit& split, BeamDose& r) {
-  const beamdata::BeamData& data = *resolved.data;
-  if (r.features.modulated && !data.mlc_transmission) {
-    const bool needs_transmission =
-        std::any_of(split.parts.begin(), split.parts.end(),
-                    [](const PartPlan& p) { return p.geometry().device(plan::DeviceType::mlcx) != nullptr; });
-    if (needs_transmission) {
-      CalculationProblem problem;
-      problem.kind = ProblemKind::mlc_transmission_missing;
-      problem.library_beam = data.id;
-      problem.machine = resolved.machine->name;
-      return problem;
-    }
-  }
+                                   const ResolvedBeam& resolved, const MetersetSplit& split,
+                                   const EngineOptions& options, BeamDose& r) {
+  TRY(require_mlc_data(split, resolved));
   const double ssd0_mm = surface_distance_mm(r);
   r.segments.reserve(split.parts.size());
   double total_cgy = 0.0;
+  double equivalent_square_cgy = 0.0;
   for (const PartPlan& part : split.parts) {
     Segment s;
-    TRY_ASSIGN(s, compute_part(beam, point, resolved, part, ssd0_mm, r));
+    TRY_ASSIGN(s, compute_part(beam, point, resolved, part, ssd0_mm, options, r));
     total_cgy += s.dose.dose_cgy;
+    equivalent_square_cgy += s.equivalent_square_dose_cgy;
     r.segments.push_back(std::move(s));
   }
   r.computed_dose_gy = util::cgy_to_gy(total_cgy);
+  double near_edge_mu = 0.0;
+  double counted_mu = 0.0;
+  for (const Segment& s : r.segments) {
+    if (s.point_in_opening || s.point_in_jaws) counted_mu += s.meterset_mu;
+    if (s.point_in_jaws && s.edge_distance_mm < options.segment_edge_distance_mm)
+      near_edge_mu += s.meterset_mu;
+  }
+  r.edge_meterset_share = counted_mu > 0.0 ? near_edge_mu / counted_mu : 0.0;
+  r.equivalent_square_dose_gy = util::cgy_to_gy(equivalent_square_cgy);
+  r.sector_vs_equivalent_square_percent =
+      equivalent_square_cgy > 0.0 ? 100.0 * (total_cgy - equivalent_square_cgy) / equivalent_square_cgy : 0.0;
   return {};
 }
 

@@ -18,6 +18,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/beam_dose.hpp>
 #include <countersign/engine/problem.hpp>
+#include <countersign/engine/sector_scatter.hpp>
 #include <countersign/geometry/aperture.hpp>
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
@@ -41,6 +42,7 @@ struct ResolvedBeam {
   const plan::PatientSetup* setup = nullptr;
   geometry::PatientPosition position = geometry::PatientPosition::hfs;
   double meterset_mu = 0.0;
+  std::vector<BlockShape> blocks;  // the beam's blocks at the isocentre plane (Block Data)
 };
 
 // The beam's machine and energy in the library, its accessories, its patient setup and meterset.
@@ -74,9 +76,15 @@ struct ResolvedBeam {
 // ---- 4. apertures --------------------------------------------------------------------------------
 // The opening at one control point, in the isocentre plane: jaws intersected with the MLC.
 // Seam: blocks and polygon apertures would be intersected here.
+// Rounded leaf ends open every open leaf pair by twice the library's mlc_leaf_end_offset_mm.
 [[nodiscard]] StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam,
                                                           const plan::ControlPoint& cp,
-                                                          int control_point_index);
+                                                          int control_point_index,
+                                                          const beamdata::BeamData& data);
+
+// Whether the opening is shaped by anything but the jaws (MLC or blocks): such parts get sector
+// integration.
+[[nodiscard]] bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolved);
 
 // What the beam's-eye view draws: control point 0's opening for a static beam, the swept area of
 // every delivering pair of control points for a modulated one.
@@ -86,24 +94,40 @@ struct ResolvedBeam {
 // ---- 5. scatter ----------------------------------------------------------------------------------
 // The field sizes the scatter factors are looked up with, at the isocentre plane.
 struct ScatterInputs {
-  double collimator_field_cm = 0.0;  // s_c: equivalent square of the jaw opening (Sc)
-  double open_field_cm = 0.0;        // equivalent square (4A/P) of the opening (Sp, TMR/PDD column)
+  double collimator_field_cm = 0.0;      // s_c: equivalent square of the opening named by head_scatter_field
+  double open_field_cm = 0.0;            // equivalent square (4A/P) of the opening (Sp, TMR/PDD column)
+  std::optional<SectorScatter> sectors;  // shaped fields: the sector integration at the point
 };
-// Today: equivalent squares (Sterling's 4A/P). Seam: sector integration (Clarkson) over the
-// aperture would replace open_field_cm with per-sector scatter sums here.
-[[nodiscard]] ScatterInputs scatter_inputs(const geometry::Aperture& aperture);
+// Where a part's sectors are integrated: the point, its depth and distance, the sector width.
+struct SectorSetup {
+  geometry::PointInBeam point;
+  double depth_mm = 0.0;
+  double spd_mm = 0.0;
+  double sad_mm = 0.0;
+  double max_sector_deg = 10.0;
+  const EngineOptions* options = nullptr;  // the body-outline hook, when one is given
+};
+// Equivalent squares always (Sterling's 4A/P: Sc from the opening head_scatter_field names, Sp and
+// the TMR/PDD column from the opening); with `sectors`, the sector integration at the point too.
+[[nodiscard]] ScatterInputs scatter_inputs(const geometry::Aperture& aperture, const ResolvedBeam& resolved,
+                                           const SectorSetup* sectors);
+// The sector integration in the dose: the factor sector Sp·TMR / equivalent-square Sp·TMR (the OAR
+// multiplies only the sector primary) set on `dose` and its dose scaled by it.
+void apply_sector_scatter(const beamdata::BeamData& data, const DoseInputs& inputs,
+                          const SectorScatter& sectors, PointDose& dose);
 
 // ---- 6. primary and transmission -----------------------------------------------------------------
 struct PrimaryPath {
   bool in_opening = false;    // the point sees the source through the opening
   bool in_jaws = false;       // the point lies inside the jaw rectangle
   bool under_leaves = false;  // modulated part: inside the jaws, behind the leaves
+  bool under_block = false;   // behind a block (static or modulated)
   bool counted = false;       // the part contributes dose at the point
-  double transmission = 1.0;  // 1 in the open field; the MLC transmission under the leaves
+  double transmission = 1.0;  // 1 in the open field; the MLC's under the leaves, times the block's
 };
 // Where the point lies relative to one part's opening, and what reaches it.
 [[nodiscard]] PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::PointInBeam& point,
-                                       bool modulated, const beamdata::BeamData& data);
+                                       bool modulated, const ResolvedBeam& resolved);
 // The off-axis ratio needs a table off the axis (closer than 1 mm an absent table is harmless).
 [[nodiscard]] StageResult<void> require_oar(const beamdata::BeamData& data,
                                             const geometry::PointInBeam& point);
@@ -143,10 +167,11 @@ struct MetersetSplit {
 [[nodiscard]] StageResult<MetersetSplit> split_meterset(const plan::Beam& beam, double meterset_mu);
 
 // Every part through apertures, scatter, primary and formula; their doses summed into r (sets
-// r.segments and r.computed_dose_gy). A modulated beam with leaves needs the MLC transmission.
+// r.segments, r.computed_dose_gy and the equivalent-square column). A beam with leaves needs the
+// MLC transmission and the leaf-end offset from the library.
 [[nodiscard]] StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
                                                  const ResolvedBeam& resolved, const MetersetSplit& split,
-                                                 BeamDose& r);
+                                                 const EngineOptions& options, BeamDose& r);
 
 // Whether nothing that shapes or aims the beam changes between two control points.
 [[nodiscard]] bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b);

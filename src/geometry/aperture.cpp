@@ -91,7 +91,8 @@ double Aperture::distance_to_edge_mm(double x_mm, double y_mm) const {
   return nearest;
 }
 
-Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoint& cp) {
+Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoint& cp,
+                                  double leaf_end_offset_mm) {
   const auto find = [&cp](plan::DeviceType a, plan::DeviceType b) {
     const plan::DevicePositions* d = cp.device(a);
     return d != nullptr ? d : cp.device(b);
@@ -176,8 +177,13 @@ Expected<Aperture> build_aperture(const plan::Beam& beam, const plan::ControlPoi
     const double y_lower = std::max(boundaries[i], jaws.y1_mm);
     const double y_upper = std::min(boundaries[i + 1], jaws.y2_mm);
     if (y_upper <= y_lower) continue;  // leaf pair hidden behind the Y jaws
-    rows.push_back({y_lower, y_upper, std::max(mlc->positions_mm[i], jaws.x1_mm),
-                    std::min(mlc->positions_mm[pairs + i], jaws.x2_mm)});
+    double lo = mlc->positions_mm[i];
+    double hi = mlc->positions_mm[pairs + i];
+    if (hi > lo) {  // a closed pair stays closed: the offset describes an open pair's tips
+      lo -= leaf_end_offset_mm;
+      hi += leaf_end_offset_mm;
+    }
+    rows.push_back({y_lower, y_upper, std::max(lo, jaws.x1_mm), std::min(hi, jaws.x2_mm)});
   }
   return Aperture(jaws, std::move(rows), true);
 }

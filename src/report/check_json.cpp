@@ -79,21 +79,35 @@ json fields_json(const engine::PointDose& d, const geometry::JawOpening& jaws, d
               {"normalisation_depth_cm", d.fields.normalisation_depth_cm}};
 }
 
+// How phantom scatter was obtained for one part, and the equivalent-square dose beside it.
+void add_scatter(json& j, const engine::Segment& s) {
+  const bool sectors = s.sectors.has_value();
+  j["scatter_method"] = std::string(engine::to_code(s.scatter_method));
+  j["sectors"] = sectors ? json(s.sectors->sectors) : json(nullptr);
+  j["smr"] = sectors ? json(s.sectors->smr) : json(nullptr);
+  j["primary"] = sectors ? json(s.primary) : json(nullptr);
+  j["transmission"] = s.inputs.transmission;
+  j["equivalent_square_dose_gy"] = util::cgy_to_gy(s.equivalent_square_dose_cgy);
+  j["edge_distance_cm"] = util::mm_to_cm(s.edge_distance_mm);
+}
+
 json segment_json(const engine::Segment& s) {
-  return json{{"from_control_point", s.from_control_point},
-              {"meterset_mu", s.meterset_mu},
-              {"gantry_deg", s.angles.gantry_deg},
-              {"collimator_deg", s.angles.collimator_deg},
-              {"couch_deg", s.angles.couch_deg},
-              {"depth_cm", util::mm_to_cm(s.depth_mm)},
-              {"spd_cm", util::mm_to_cm(s.point.spd_mm)},
-              {"ssd_cm", util::mm_to_cm(s.ssd_mm)},
-              {"off_axis_cm", util::mm_to_cm(s.point.off_axis_mm)},
-              {"point_in_opening", s.point_in_opening},
-              {"point_in_jaws", s.point_in_jaws},
-              {"fields", fields_json(s.dose, s.jaws, s.open_area_mm2, s.open_area_mm2 > 0.0)},
-              {"factors", factors_json(s.dose)},
-              {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)}};
+  json j{{"from_control_point", s.from_control_point},
+         {"meterset_mu", s.meterset_mu},
+         {"gantry_deg", s.angles.gantry_deg},
+         {"collimator_deg", s.angles.collimator_deg},
+         {"couch_deg", s.angles.couch_deg},
+         {"depth_cm", util::mm_to_cm(s.depth_mm)},
+         {"spd_cm", util::mm_to_cm(s.point.spd_mm)},
+         {"ssd_cm", util::mm_to_cm(s.ssd_mm)},
+         {"off_axis_cm", util::mm_to_cm(s.point.off_axis_mm)},
+         {"point_in_opening", s.point_in_opening},
+         {"point_in_jaws", s.point_in_jaws},
+         {"fields", fields_json(s.dose, s.jaws, s.open_area_mm2, s.open_area_mm2 > 0.0)},
+         {"factors", factors_json(s.dose)},
+         {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)}};
+  add_scatter(j, s);
+  return j;
 }
 
 void add_calculation(json& j, const engine::BeamDose& c, const check::CalculationWords& words) {
@@ -128,6 +142,10 @@ void add_calculation(json& j, const engine::BeamDose& c, const check::Calculatio
   j["edge_distance_cm"] = util::mm_to_cm(c.edge_distance_mm);
   j["modulated"] = c.features.modulated;
   j["segment_count"] = c.segments.size();
+  add_scatter(j, c.segments.front());  // static beam: its one part; modulated: see segments
+  j["equivalent_square_dose_gy"] = c.equivalent_square_dose_gy;
+  j["sector_vs_equivalent_square_percent"] = c.sector_vs_equivalent_square_percent;
+  j["edge_meterset_share"] = c.edge_meterset_share;
   j["fields"] = fields_json(c.dose, c.aperture.jaws(), c.aperture.area_mm2(), c.aperture.shaped_by_mlc());
   if (c.features.modulated) {
     j["factors"] = nullptr;
@@ -181,21 +199,44 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"medium", std::string(check::to_code(b.medium))},
          {"point_total_planned_dose_gy", optional_json(b.point_total_planned_dose_gy)}};
   // Keys of the calculation are always present (null when there was none).
-  for (const char* key : {"machine",          "beam_data_id",
-                          "energy_mv",        "dose_point",
-                          "method",           "method_reason",
-                          "patient_position", "gantry_deg",
-                          "collimator_deg",   "couch_deg",
-                          "depth_cm",         "depth_source",
-                          "depth_kind",       "depth_description",
-                          "plan_depth_cm",    "plan_equivalent_depth_cm",
-                          "spd_minus_ssd_cm", "spd_cm",
-                          "ssd_cm",           "sad_cm",
-                          "off_axis_cm",      "point_in_field",
-                          "edge_distance_cm", "modulated",
-                          "segment_count",    "fields",
-                          "factors",          "provenance",
-                          "segments",         "approximations"}) {
+  for (const char* key : {"machine",
+                          "beam_data_id",
+                          "energy_mv",
+                          "dose_point",
+                          "method",
+                          "method_reason",
+                          "patient_position",
+                          "gantry_deg",
+                          "collimator_deg",
+                          "couch_deg",
+                          "depth_cm",
+                          "depth_source",
+                          "depth_kind",
+                          "depth_description",
+                          "plan_depth_cm",
+                          "plan_equivalent_depth_cm",
+                          "spd_minus_ssd_cm",
+                          "spd_cm",
+                          "ssd_cm",
+                          "sad_cm",
+                          "off_axis_cm",
+                          "point_in_field",
+                          "edge_distance_cm",
+                          "modulated",
+                          "segment_count",
+                          "fields",
+                          "factors",
+                          "provenance",
+                          "segments",
+                          "approximations",
+                          "scatter_method",
+                          "sectors",
+                          "smr",
+                          "primary",
+                          "transmission",
+                          "equivalent_square_dose_gy",
+                          "sector_vs_equivalent_square_percent",
+                          "edge_meterset_share"}) {
     j[key] = nullptr;
   }
   if (b.calculation) add_calculation(j, *b.calculation, b.words);

@@ -72,6 +72,7 @@ inline beamdata::BeamData test_beam() {
   }
   b.oar = beamdata::Table2D("test/oar.csv", "oar", "depth_cm", oar_depths, "off_axis_cm", oar_radii, oar);
   b.mlc_transmission = 0.015;
+  b.mlc_leaf_end_offset_mm = 0.0;  // square leaf ends in the test beam (keeps hand calculations exact)
   b.wedges.push_back({"W30", 30.0, beamdata::WedgeKind::physical, 0.70, std::nullopt});
   b.wedges.push_back(
       {"W45", 45.0, beamdata::WedgeKind::physical, std::nullopt,

@@ -34,6 +34,7 @@ enum class Reason {
   planned_dose_not_beam_level,  // Beam Dose Meaning FRACTION_LEVEL: no beam dose to compare with
   point_outside_field,
   point_near_field_edge,
+  point_near_segment_edges,  // modulated: too much of the meterset with the point near a segment's edge
   table_extrapolated,
   inconsistent_depth,  // the plan's depth and SPD - SSD disagree beyond the policy limit
   // Plan level.

@@ -53,6 +53,12 @@ struct TolerancePolicy {
   // point's total (common practice, no source).
   double small_share_fraction = 0.1;
 
+  // Shaped and modulated fields (block [sectors]).
+  double max_sector_deg = 10.0;           // sector integration: widest sector
+  double max_edge_meterset_share = 0.2;   // modulated beams: above this share of the meterset delivered
+                                          // with the point within min_edge_distance_cm of a part's edge,
+                                          // the beam is not checked (common practice, no source)
+
   [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
 };
 

@@ -17,15 +17,17 @@ enum class ApproximationKind {
   mlc_envelope_as_collimator,   // no jaws for one axis: the MLC envelope stands in for them (Sc)
   blocks_not_modelled,          // block shapes present and not modelled
   mayneord_f_factor,            // ssd_cm, table_ssd_cm: PDD at another SSD by the Mayneord F factor
+  sector_integration,           // part_count = sectors, max_step_deg = widest sector, beyond_largest_field
 };
 
 struct Approximation {
   ApproximationKind kind = ApproximationKind::derived_depth;
-  std::size_t part_count = 0;     // modulated_sum
-  double mlc_transmission = 0.0;  // modulated_sum
-  double max_step_deg = 0.0;      // arc_steps
-  double ssd_cm = 0.0;            // mayneord_f_factor: the SSD of the calculation
-  double table_ssd_cm = 0.0;      // mayneord_f_factor: the SSD of the PDD table
+  std::size_t part_count = 0;         // modulated_sum
+  double mlc_transmission = 0.0;      // modulated_sum
+  double max_step_deg = 0.0;          // arc_steps
+  double ssd_cm = 0.0;                // mayneord_f_factor: the SSD of the calculation
+  double table_ssd_cm = 0.0;          // mayneord_f_factor: the SSD of the PDD table
+  bool beyond_largest_field = false;  // sector_integration: a ray ran past the largest tabulated field
 };
 
 }  // namespace countersign::engine

@@ -11,12 +11,15 @@
 #include <countersign/engine/dose_point.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/engine/problem.hpp>
+#include <countersign/engine/sector_scatter.hpp>
 #include <countersign/geometry/aperture.hpp>
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
 
+#include <functional>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace countersign::engine {
@@ -32,15 +35,29 @@ enum class MethodBasis {
 struct EngineOptions {
   MethodChoice method = MethodChoice::by_setup_technique;  // FIXED_SSD -> pdd, otherwise tmr
   DepthChoice depth = DepthChoice::planned;
+  double max_sector_deg = 10.0;  // sector integration: widest sector (the policy's sectors.max_sector_deg)
+  double segment_edge_distance_mm = 10.0;  // a part's point closer than this to its opening's edge counts
+                                           // towards edge_meterset_share (the policy's min_edge_distance_cm)
+  // Optional seam for the body outline (CT studies): for a part's point and a sector direction
+  // (degrees in the beam-limiting-device frame), the isocentre-plane distance (mm) at which the
+  // outline cuts the ray, or nullopt. Unset: rays end at the aperture's edges only.
+  std::function<std::optional<double>(const geometry::PointInBeam&, double direction_deg)> outline_radius_mm;
 };
+
+// How phantom scatter was obtained for a part.
+enum class ScatterMethod {
+  equivalent_square,   // an open jaw rectangle: Sterling's 4A/P
+  sector_integration,  // an MLC- or block-shaped opening: sector integration (sector_scatter.hpp)
+};
+[[nodiscard]] std::string_view to_code(ScatterMethod method);
 
 // The depth used and how it was obtained.
 struct DepthUsed {
   double depth_mm = 0.0;
   DepthSource source = DepthSource::derived_spd_minus_ssd;
   DepthChoice kind = DepthChoice::planned;
-  bool chosen = false;  // a source was found (false when the calculation stopped before)
-  std::optional<double> plan_depth_mm;             // the plan's Beam Dose Point Depth for this point
+  bool chosen = false;                  // a source was found (false when the calculation stopped before)
+  std::optional<double> plan_depth_mm;  // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
   std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
 };
@@ -78,6 +95,12 @@ struct Segment {
   double open_perimeter_mm = 0.0;
   bool point_in_opening = false;
   bool point_in_jaws = false;
+  double edge_distance_mm =
+      0.0;  // from the point to the nearest edge of this part's opening (isocentre plane)
+  ScatterMethod scatter_method = ScatterMethod::equivalent_square;
+  std::optional<SectorScatter> sectors;  // sector_integration: the sums at the point
+  double primary = 0.0;  // sector_integration: Sp(0)·TMR(d,0)·T·OAR, the primary part of Sp·TMR·OAR
+  double equivalent_square_dose_cgy = 0.0;  // the same part by Sterling's 4A/P (equals dose without sectors)
   DoseInputs inputs;
   PointDose dose;
 };
@@ -105,12 +128,20 @@ struct BeamDose {
   std::optional<MethodBasis> method_basis;            // why this formalism (set once it is chosen)
   plan::Coded<plan::SetupTechnique> setup_technique;  // the patient setup's, as the plan has it
   BeamOutline outline;                                // what a drawing of the beam shows
-  DoseInputs inputs;              // static beam: the inputs of `dose`
-  PointDose dose;                 // static beam: the dose and its factors
-  std::vector<Segment> segments;  // modulated beam: each part (static beam: its one part)
+  DoseInputs inputs;                                  // static beam: the inputs of `dose`
+  PointDose dose;                                     // static beam: the dose and its factors
+  std::vector<Segment> segments;                      // modulated beam: each part (static beam: its one part)
   BeamFeatures features;
   double meterset_mu = 0.0;
   double computed_dose_gy = 0.0;
+  // The same beam with every part through Sterling's equivalent square (a second column), and the
+  // percentage by which the dose computed differs from it: one component of the calculation's
+  // uncertainty, as a plain number.
+  double equivalent_square_dose_gy = 0.0;
+  double sector_vs_equivalent_square_percent = 0.0;
+  // The share of the meterset delivered (in parts that reach the point) with the point closer than
+  // EngineOptions::segment_edge_distance_mm to the part's opening's edge.
+  double edge_meterset_share = 0.0;
   std::vector<Approximation> approximations;
 
   // The first extrapolated factor in any part, or nullptr.

@@ -78,6 +78,9 @@ struct DoseFactors {
   Factor tray;
   Factor transmission;  // MLC transmission when the point is under the leaves
   Factor inverse_square;
+  // Shaped fields: sector-integrated Sp·TMR·OAR / the equivalent square's (set by the engine's
+  // scatter stage after this formula; 1 and not_applicable otherwise).
+  Factor sector_scatter;
 };
 
 struct PointDose {

@@ -42,7 +42,8 @@ enum class ProblemKind {
   final_weight_unusable,  // Final Cumulative Meterset Weight absent or not positive
   no_delivered_meterset,  // all cumulative weights equal
   // Beam data the calculation needs (stages: segments, primary).
-  mlc_transmission_missing,  // library_beam, machine: modulated beams need mlc_transmission
+  mlc_transmission_missing,  // library_beam, machine: beams with leaves need mlc_transmission
+  leaf_end_offset_missing,   // library_beam, machine: beams with leaves need mlc_leaf_end_offset_mm
   oar_table_missing,         // library_beam, plan_value = off-axis distance mm
 };
 

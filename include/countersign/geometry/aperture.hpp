@@ -62,8 +62,11 @@ class Aperture {
 };
 
 // The opening at a control point from its jaw and MLCX positions and the beam's leaf boundaries.
+// Rounded leaf ends: every open leaf pair's tips move apart by leaf_end_offset_mm each (their
+// radiological positions), before clipping to the jaws.
 // Errors: a missing device or positions (missing_attribute), MLCY or malformed positions (bad_value).
 [[nodiscard]] Expected<Aperture> build_aperture(const plan::Beam& beam,
-                                                const plan::ControlPoint& control_point);
+                                                const plan::ControlPoint& control_point,
+                                                double leaf_end_offset_mm = 0.0);
 
 }  // namespace countersign::geometry
