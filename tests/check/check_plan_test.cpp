@@ -173,9 +173,13 @@ TEST_F(Verdict, ExtrapolatedTableIsNotChecked) {
 }
 
 // The plan's depth 100 mm against SPD - SSD = 1000 - 880 = 120 mm: 20 mm apart, over the 10 mm limit.
+// (With the default policy the 3 mm geometry-consistency rule answers first: geometry_inconsistent.)
 TEST_F(Verdict, InconsistentDepth) {
   plan::Beam beam = static_beam(1, 0);
   test_fixtures::set_ssd(beam, 880.0);
+  EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}), {1.0})).beams[0].reason.reason,
+            Reason::geometry_inconsistent);
+  options.policy.geometry_consistency_max_mm = 50.0;
   EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}), {1.0})).beams[0].reason.reason,
             Reason::inconsistent_depth);
   test_fixtures::set_ssd(beam, 905.0);  // 5 mm: fine

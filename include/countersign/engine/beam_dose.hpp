@@ -9,6 +9,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/approximation.hpp>
 #include <countersign/engine/dose_point.hpp>
+#include <countersign/engine/model_facts.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/engine/problem.hpp>
 #include <countersign/geometry/aperture.hpp>
@@ -39,8 +40,8 @@ struct DepthUsed {
   double depth_mm = 0.0;
   DepthSource source = DepthSource::derived_spd_minus_ssd;
   DepthChoice kind = DepthChoice::planned;
-  bool chosen = false;  // a source was found (false when the calculation stopped before)
-  std::optional<double> plan_depth_mm;             // the plan's Beam Dose Point Depth for this point
+  bool chosen = false;                  // a source was found (false when the calculation stopped before)
+  std::optional<double> plan_depth_mm;  // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
   std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
 };
@@ -105,13 +106,18 @@ struct BeamDose {
   std::optional<MethodBasis> method_basis;            // why this formalism (set once it is chosen)
   plan::Coded<plan::SetupTechnique> setup_technique;  // the patient setup's, as the plan has it
   BeamOutline outline;                                // what a drawing of the beam shows
-  DoseInputs inputs;              // static beam: the inputs of `dose`
-  PointDose dose;                 // static beam: the dose and its factors
-  std::vector<Segment> segments;  // modulated beam: each part (static beam: its one part)
+  DoseInputs inputs;                                  // static beam: the inputs of `dose`
+  PointDose dose;                                     // static beam: the dose and its factors
+  std::vector<Segment> segments;                      // modulated beam: each part (static beam: its one part)
   BeamFeatures features;
   double meterset_mu = 0.0;
   double computed_dose_gy = 0.0;
   std::vector<Approximation> approximations;
+  // Input for the uncertainty estimate: the relative difference (percent) between sector
+  // integration and the equivalent square at the point. Absent until sector integration sets it
+  // (the scatter stage); absent counts as 0 in the estimate.
+  std::optional<double> sector_vs_equivalent_square_percent;
+  ModelFacts model;  // consistency step: geometry consistency, other formalism, uncertainty
 
   // The first extrapolated factor in any part, or nullptr.
   [[nodiscard]] const Factor* first_extrapolated() const;
