@@ -178,6 +178,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"planned_dose_gy", optional_json(b.planned_dose_gy)},
          {"computed_dose_gy", optional_json(b.computed_dose_gy)},
          {"deviation_percent", optional_json(b.deviation_percent)},
+         {"calc_uncertainty_percent", optional_json(b.calc_uncertainty_percent)},
          {"tolerance_percent", optional_json(b.tolerance_percent)},
          {"meterset_mu", optional_json(b.meterset_mu)},
          {"independent_mu", optional_json(b.independent_mu)},
