@@ -182,11 +182,12 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     beam.reason = std::move(*finding);
     return;
   }
-  if (auto finding = safety_findings(c, policy)) {
+  // The edges of the model first: they say why a table would be extrapolated (build-up, small field).
+  if (auto finding = model_edge_finding(c, policy)) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
-  if (auto finding = model_edge_finding(c, policy)) {
+  if (auto finding = safety_findings(c, policy)) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
