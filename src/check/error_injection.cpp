@@ -1,4 +1,5 @@
 #include <countersign/check/error_injection.hpp>
+#include <countersign/check/synthetic_plans.hpp>
 
 #include <fmt/format.h>
 
@@ -115,8 +116,8 @@ bool toggle_wedge(plan::Beam& beam, const beamdata::Library& library, Injection&
   }
   if (data == nullptr || data->wedges.empty()) return false;
   const beamdata::WedgeData& wedge = data->wedges.front();
-  beam.wedges.push_back(
-      {1, plan::parse_term<plan::WedgeType>("STANDARD"), wedge.id, wedge.angle_deg, std::nullopt, 0.0});
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>(wedge_type(wedge)), wedge.id, wedge.angle_deg,
+                         std::nullopt, 0.0});
   for (plan::ControlPoint& cp : beam.control_points)
     cp.wedge_positions.push_back({1, plan::parse_term<plan::WedgePositionState>("IN")});
   out.wedge_added = &wedge;

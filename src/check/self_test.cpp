@@ -24,8 +24,9 @@ bool flagged(Status status) { return status == Status::outside_tolerance || stat
 // Reasons that say the library cannot describe a clean synthetic case: the case is excluded, not failed.
 bool library_limitation(Reason reason) {
   return reason == Reason::missing_beam_data || reason == Reason::table_extrapolated ||
-         reason == Reason::ssd_out_of_range || reason == Reason::extended_distance ||
-         reason == Reason::small_field || reason == Reason::point_in_buildup;
+         reason == Reason::unsupported_accessory || reason == Reason::ssd_out_of_range ||
+         reason == Reason::extended_distance || reason == Reason::small_field ||
+         reason == Reason::point_in_buildup;
 }
 
 const BeamCheck& only_beam(const PlanCheck& check) { return check.beams.front(); }

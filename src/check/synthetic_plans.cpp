@@ -166,6 +166,8 @@ SyntheticPlan make_plan(const beamdata::Machine& machine, const beamdata::BeamDa
   p.sop_class_uid = "1.2.840.10008.5.1.4.1.1.481.5";
   p.sop_instance_uid = fmt::format("2.25.{}{:03d}", 1000000 + serial, serial);
   p.patient_id = "SELFTEST";
+  p.specific_character_set = "ISO_IR 192";  // what the writer declares: the model's text is UTF-8
+  p.date = "20260101";
   p.patient_name = "SELFTEST^PHANTOM";
   p.label = fmt::format("ST{:03d}", serial);
   p.name = out.name;
@@ -196,7 +198,7 @@ SyntheticPlan make_plan(const beamdata::Machine& machine, const beamdata::BeamDa
   beam.beam_limiting_devices = devices(spec.shape);
   beam.control_points = control_points(spec.shape, ssd_mm, data.energy_mv);
   if (spec.wedge != nullptr) {
-    beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), spec.wedge->id,
+    beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>(wedge_type(*spec.wedge)), spec.wedge->id,
                            spec.wedge->angle_deg, std::nullopt, 0.0});
     for (plan::ControlPoint& cp : beam.control_points)
       cp.wedge_positions.push_back({1, plan::parse_term<plan::WedgePositionState>("IN")});
@@ -209,6 +211,10 @@ SyntheticPlan make_plan(const beamdata::Machine& machine, const beamdata::BeamDa
 }
 
 }  // namespace
+
+const char* wedge_type(const beamdata::WedgeData& wedge) {
+  return wedge.kind == beamdata::WedgeKind::dynamic ? "DYNAMIC" : "STANDARD";
+}
 
 std::vector<SyntheticPlan> synthetic_plans(const beamdata::Library& library) {
   std::vector<SyntheticPlan> plans;

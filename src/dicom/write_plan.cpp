@@ -70,7 +70,7 @@ void write_distances(DcmItem& item, const plan::DosePointDistances& d) {
 }
 
 void write_header(DcmDataset& data, const plan::Plan& plan) {
-  const std::string date = plan.date.empty() ? "20260101" : plan.date;
+  const std::string& date = plan.date;                // type 2: empty when the plan has none
   put(data, DCM_SpecificCharacterSet, "ISO_IR 192");  // UTF-8: the model's text is UTF-8
   put(data, DCM_SOPClassUID, UID_RTPlanStorage);
   put(data, DCM_SOPInstanceUID, plan.sop_instance_uid);
@@ -107,7 +107,7 @@ void write_header(DcmDataset& data, const plan::Plan& plan) {
     }
   }
   if (!plan.approval_status.empty()) put(data, DCM_ApprovalStatus, plan.approval_status);
-  if (plan.approval_status == "APPROVED") {
+  if (plan.approval_status == "APPROVED" && !date.empty()) {
     put(data, DCM_ReviewDate, date);
     put(data, DCM_ReviewTime, "120000");
   }
@@ -199,9 +199,9 @@ void write_accessories(DcmItem& item, const plan::Beam& beam) {
     put(out, DCM_WedgeNumber, std::to_string(wedge.number.value_or(static_cast<int>(w) + 1)));
     put(out, DCM_WedgeType, wedge.type.absent() ? "STANDARD" : wedge.type.text);
     put(out, DCM_WedgeID, wedge.id);
-    put(out, DCM_WedgeAngle, ds(wedge.angle_deg.value_or(0.0)));
-    put(out, DCM_WedgeFactor, ds(wedge.factor.value_or(1.0)));
-    put(out, DCM_WedgeOrientation, ds(wedge.orientation_deg.value_or(0.0)));
+    put(out, DCM_WedgeAngle, wedge.angle_deg ? ds(*wedge.angle_deg) : "");  // type 2: empty when absent
+    put(out, DCM_WedgeFactor, wedge.factor ? ds(*wedge.factor) : "");       // type 2C: empty when absent
+    put(out, DCM_WedgeOrientation, wedge.orientation_deg ? ds(*wedge.orientation_deg) : "");
   }
   put(item, DCM_NumberOfCompensators, "0");
   put(item, DCM_NumberOfBoli, "0");

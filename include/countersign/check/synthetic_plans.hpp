@@ -21,4 +21,7 @@ struct SyntheticPlan {
 
 [[nodiscard]] std::vector<SyntheticPlan> synthetic_plans(const beamdata::Library& library);
 
+// The Wedge Type (300A,00D3) a plan gives the library's wedge: STANDARD (physical) or DYNAMIC.
+[[nodiscard]] const char* wedge_type(const beamdata::WedgeData& wedge);
+
 }  // namespace countersign::check
