@@ -1,4 +1,7 @@
 #include <countersign/check/check_plan.hpp>
+
+#include "model_limits.hpp"
+
 #include <countersign/util/assert.hpp>
 #include <countersign/util/units.hpp>
 
@@ -179,6 +182,18 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   const double computed = c.computed_dose_gy;
   if (computed > 0.0 && beam.meterset_mu) beam.independent_mu = *beam.meterset_mu * planned / computed;
   beam.deviation_percent = 100.0 * (computed - planned) / planned;
+  beam.calc_uncertainty_percent = c.model.uncertainty.combined_percent;
+  // The plan contradicts itself: a person must look, whatever the dose says.
+  if (auto finding = geometry_finding(c, policy)) {
+    beam.status = Status::outside_tolerance;
+    beam.reason = std::move(*finding);
+    return;
+  }
+  // The edges of the model first: they say why a table would be extrapolated (build-up, small field).
+  if (auto finding = model_edge_finding(c, policy)) {
+    set_not_checked(beam, finding->reason, std::move(finding->sentence));
+    return;
+  }
   if (auto finding = safety_findings(c, policy)) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
@@ -196,6 +211,17 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     const double total = *beam.point_total_planned_dose_gy;
     const double share = planned / total;
     const double of_total = 100.0 * (computed - planned) / total;
+    const bool own_within = std::abs(deviation) <= policy.small_beam_max_deviation_percent;
+    if (share < policy.small_share_fraction && std::abs(of_total) <= tolerance && !own_within) {
+      beam.status = Status::outside_tolerance;
+      beam.reason = {
+          Reason::small_beam_deviation,
+          fmt::format(
+              "deviation {:+.2f} % of this beam's dose: within tolerance of the point's total ({:+.2f} %) "
+              "but beyond the policy's {:.1f} % limit for a small beam's own deviation",
+              deviation, of_total, policy.small_beam_max_deviation_percent)};
+      return;
+    }
     if (share < policy.small_share_fraction && std::abs(of_total) <= tolerance) {
       beam.status = Status::within_tolerance;
       beam.reason = {

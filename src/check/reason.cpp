@@ -52,6 +52,20 @@ std::string_view reason_code(Reason reason) {
       return "table_extrapolated";
     case Reason::inconsistent_depth:
       return "inconsistent_depth";
+    case Reason::geometry_inconsistent:
+      return "geometry_inconsistent";
+    case Reason::small_beam_deviation:
+      return "small_beam_deviation";
+    case Reason::point_in_buildup:
+      return "point_in_buildup";
+    case Reason::small_field:
+      return "small_field";
+    case Reason::ssd_out_of_range:
+      return "ssd_out_of_range";
+    case Reason::extended_distance:
+      return "extended_distance";
+    case Reason::beam_data_inconsistent_here:
+      return "beam_data_inconsistent_here";
     case Reason::nothing_to_check:
       return "nothing_to_check";
   }

@@ -70,6 +70,16 @@ const std::map<std::string, Key>& keys() {
       {"limits.small_share_fraction", {&TolerancePolicy::small_share_fraction, 0.0, 1.0}},
       {"sectors.max_sector_deg", {&TolerancePolicy::max_sector_deg, 1.0, 10.0}},
       {"sectors.max_edge_meterset_share", {&TolerancePolicy::max_edge_meterset_share, 0.0, 1.0}},
+      {"model_limits.geometry_consistency_max_mm",
+       {&TolerancePolicy::geometry_consistency_max_mm, 0.0, 100.0}},
+      {"model_limits.small_beam_max_deviation_percent",
+       {&TolerancePolicy::small_beam_max_deviation_percent, 0.1, 100.0}},
+      {"model_limits.buildup_margin_mm", {&TolerancePolicy::buildup_margin_mm, 0.0, 50.0}},
+      {"model_limits.min_equivalent_square_cm", {&TolerancePolicy::min_equivalent_square_cm, 0.0, 40.0}},
+      {"model_limits.max_ssd_offset_without_range_cm",
+       {&TolerancePolicy::max_ssd_offset_without_range_cm, 0.0, 100.0}},
+      {"model_limits.formalism_max_difference_percent",
+       {&TolerancePolicy::formalism_max_difference_percent, 0.1, 20.0}},
   };
   return all;
 }

@@ -92,6 +92,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   r.dose = r.segments.front().dose;
   r.dose_computed = true;
   add_beam_approximations(resolved, split, r);
+  assess_model(beam, referenced, point, r);  // 9. consistency
   return {};
 }
 

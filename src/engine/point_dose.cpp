@@ -47,25 +47,46 @@ double squared(double x) { return x * x; }
 }  // namespace
 
 const Factor* PointDose::first_extrapolated() const {
-  const std::array<const Factor*, 9> all{&factors.calibration_depth,
-                                         &factors.sc,
-                                         &factors.sp,
-                                         &factors.tmr,
-                                         &factors.pdd,
-                                         &factors.oar,
-                                         &factors.wedge,
-                                         &factors.tray,
-                                         &factors.transmission};
+  const std::array<const Factor*, 11> all{&factors.calibration_depth,
+                                          &factors.calibration_sc,
+                                          &factors.calibration_sp,
+                                          &factors.sc,
+                                          &factors.sp,
+                                          &factors.tmr,
+                                          &factors.pdd,
+                                          &factors.oar,
+                                          &factors.wedge,
+                                          &factors.tray,
+                                          &factors.transmission};
   for (const Factor* f : all) {
     if (f->extrapolated()) return f;
   }
   return nullptr;
 }
 
+ReferenceConditions reference_conditions(const beamdata::BeamData& beam, double sad_cm) {
+  const beamdata::Calibration& cal = beam.calibration;
+  ReferenceConditions ref;
+  ref.geometry = cal.geometry;
+  ref.geometry_defaulted = cal.geometry_defaulted();
+  ref.source_to_point_cm = cal.source_to_point_cm();
+  if (cal.geometry == beamdata::CalibrationGeometry::ssd) {
+    ref.field_at_surface_cm = cal.field_cm;
+    ref.field_at_point_cm = cal.field_cm * ref.source_to_point_cm / cal.ssd_cm;
+  } else {
+    ref.field_at_point_cm = cal.field_cm;
+    ref.field_at_surface_cm = cal.field_cm * cal.ssd_cm / ref.source_to_point_cm;
+  }
+  ref.collimator_field_cm = ref.field_at_point_cm * sad_cm / ref.source_to_point_cm;
+  return ref;
+}
+
 PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& in) {
   PointDose result;
   result.method = in.method;
   const beamdata::Calibration& cal = beam.calibration;
+  const ReferenceConditions ref = reference_conditions(beam, in.sad_cm);
+  result.reference = ref;
   DoseFactors& f = result.factors;
   FieldSizes& s = result.fields;
 
@@ -77,6 +98,7 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
 
   f.output_cgy_per_mu = cal.output_cgy_per_mu;
   f.sc = from_lookup(beam.sc.at(s.collimator_cm));
+  f.calibration_sc = from_lookup(beam.sc.at(ref.collimator_field_cm));
   f.wedge = wedge_factor(in.wedge, in.depth_cm, s.isocentre_cm);
   if (in.tray != nullptr) f.tray = Factor{in.tray->factor, FactorBasis::manifest_constant, std::nullopt};
   if (in.transmission != 1.0)
@@ -89,15 +111,17 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
 
   double depth_term = 0.0;
   if (in.method == Method::tmr) {
-    f.calibration_depth = from_lookup(beam.tmr.at(cal.depth_cm, cal.field_cm));
+    f.calibration_depth = from_lookup(beam.tmr.at(cal.depth_cm, ref.field_at_point_cm));
+    f.calibration_sp = from_lookup(beam.sp.at(ref.field_at_point_cm));
     f.sp = from_lookup(beam.sp.at(s.point_cm));
     f.tmr = from_lookup(beam.tmr.at(in.depth_cm, s.point_cm));
     f.inverse_square = from_formula(squared(cal.source_to_point_cm() / in.spd_cm));
     depth_term = f.tmr.value;
   } else {
-    const double cal_surface_field_cm = cal.field_cm * cal.ssd_cm / cal.source_to_point_cm();
     const double cal_f = beamdata::mayneord_f_factor(cal.ssd_cm, beam.pdd_ssd_cm, beam.dmax_cm, cal.depth_cm);
-    f.calibration_depth = from_lookup(beam.pdd.at(cal.depth_cm, cal_surface_field_cm), cal_f / 100.0);
+    f.calibration_depth = from_lookup(beam.pdd.at(cal.depth_cm, ref.field_at_surface_cm), cal_f / 100.0);
+    f.calibration_sp =
+        from_lookup(beam.sp.at(ref.field_at_surface_cm * (cal.ssd_cm + beam.dmax_cm) / cal.ssd_cm));
     f.sp = from_lookup(beam.sp.at(s.normalisation_depth_cm));
     f.pdd = from_lookup(beam.pdd.at(in.depth_cm, s.surface_cm), 0.01);
     f.mayneord_f =
@@ -106,8 +130,9 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
     depth_term = f.pdd.value * f.mayneord_f.value;
   }
 
-  result.dose_per_mu_cgy = f.output_cgy_per_mu / f.calibration_depth.value * f.sc.value * f.sp.value *
-                           depth_term * f.oar.value * f.wedge.value * f.tray.value * f.transmission.value *
+  const double reference = f.calibration_depth.value * f.calibration_sc.value * f.calibration_sp.value;
+  result.dose_per_mu_cgy = f.output_cgy_per_mu / reference * f.sc.value * f.sp.value * depth_term *
+                           f.oar.value * f.wedge.value * f.tray.value * f.transmission.value *
                            f.inverse_square.value;
   result.dose_cgy = in.meterset_mu * result.dose_per_mu_cgy;
   return result;

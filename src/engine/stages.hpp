@@ -11,6 +11,8 @@
 //   6. primary      primary.cpp        the primary's path to the point: open, under the leaves, blocked
 //   7. formula      formula.cpp        the formalism (TMR/PDD) and the point-dose formula's inputs
 //   8. segments     segments.cpp       the meterset split into parts, each part through 4-7, summed
+//   9. consistency  consistency.cpp    facts on the model's trust: plan geometry, other formalism,
+//   uncertainty
 //
 // Each stage returns its facts or the CalculationProblem that stops the calculation; a stage reads
 // only what the stages before it produced.
@@ -175,5 +177,11 @@ struct MetersetSplit {
 
 // Whether nothing that shapes or aims the beam changes between two control points.
 [[nodiscard]] bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b);
+
+// ---- 9. consistency ------------------------------------------------------------------------------
+// After the dose: the plan's distances against each other, the other formalism (static beams) and
+// the estimated uncertainty, into r.model. Never stops the calculation.
+void assess_model(const plan::Beam& beam, const plan::ReferencedBeam& referenced, const DosePoint& point,
+                  BeamDose& r);
 
 }  // namespace countersign::engine::stages

@@ -31,6 +31,8 @@ json factors_json(const engine::PointDose& d) {
   const bool tmr = d.method == engine::Method::tmr;
   return json{{"output_cgy_per_mu", f.output_cgy_per_mu},
               {"calibration_depth", factor_value(f.calibration_depth)},
+              {"calibration_sc", factor_value(f.calibration_sc)},
+              {"calibration_sp", factor_value(f.calibration_sp)},
               {"sc", factor_value(f.sc)},
               {"sp", factor_value(f.sp)},
               {"tmr", tmr ? factor_value(f.tmr) : json(nullptr)},
@@ -48,6 +50,8 @@ json provenance_json(const engine::PointDose& d) {
   const engine::DoseFactors& f = d.factors;
   const bool tmr = d.method == engine::Method::tmr;
   json j{{"calibration_depth", factor_provenance(f.calibration_depth)},
+         {"calibration_sc", factor_provenance(f.calibration_sc)},
+         {"calibration_sp", factor_provenance(f.calibration_sp)},
          {"sc", factor_provenance(f.sc)},
          {"sp", factor_provenance(f.sp)},
          {"oar", factor_provenance(f.oar)},
@@ -192,6 +196,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"planned_dose_gy", optional_json(b.planned_dose_gy)},
          {"computed_dose_gy", optional_json(b.computed_dose_gy)},
          {"deviation_percent", optional_json(b.deviation_percent)},
+         {"calc_uncertainty_percent", optional_json(b.calc_uncertainty_percent)},
          {"tolerance_percent", optional_json(b.tolerance_percent)},
          {"meterset_mu", optional_json(b.meterset_mu)},
          {"independent_mu", optional_json(b.independent_mu)},

@@ -39,16 +39,17 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   for (const std::string& warning : c.warnings)
     out << "Warning: " << escape_control_characters(warning) << "\n";
   out << "\n";
-  out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG",
-                     "Beam", "Name", "MU", "Plan Gy", "Calc Gy", "Dev %", "Tol %", "Indep MU", "Method",
-                     "Depth cm", "Status");
+  out << fmt::format("{:>2} {:>4} {:<12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>5} {:>8} {:>6} {:>12}  {}\n", "FG",
+                     "Beam", "Name", "MU", "Plan Gy", "Calc Gy", "Dev %", "u %", "Tol %", "Indep MU",
+                     "Method", "Depth cm", "Status");
   for (const check::BeamCheck& b : c.beams) {
     const bool computed = b.calculation && b.calculation->dose_computed;
-    out << fmt::format("{:>2} {:>4} {:<12.12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>8} {:>6} {:>12}  {}\n",
+    out << fmt::format("{:>2} {:>4} {:<12.12} {:>8} {:>9} {:>9} {:>7} {:>5} {:>5} {:>8} {:>6} {:>12}  {}\n",
                        b.fraction_group_number, b.beam_number, shown(b.beam_name),
                        number(b.meterset_mu, "{:.1f}"), number(b.planned_dose_gy, "{:.4f}"),
                        number(b.computed_dose_gy, "{:.4f}"), number(b.deviation_percent, "{:+.2f}"),
-                       number(b.tolerance_percent, "{:.1f}"), number(b.independent_mu, "{:.1f}"),
+                       number(b.calc_uncertainty_percent, "{:.1f}"), number(b.tolerance_percent, "{:.1f}"),
+                       number(b.independent_mu, "{:.1f}"),
                        computed ? std::string(engine::to_code(b.calculation->method)) : std::string("-"),
                        depth_label(b), check::to_code(b.status));
   }

@@ -193,6 +193,41 @@ json parts_json(const engine::BeamDose& c) {
 
 }  // namespace
 
+namespace {
+
+json model_checks_json(const engine::BeamDose& c) {
+  const engine::ReferenceConditions& ref = c.dose.reference;
+  const engine::FormalismComparison& f = c.model.formalism;
+  const engine::GeometryConsistency& g = c.model.geometry;
+  const engine::UncertaintyEstimate& u = c.model.uncertainty;
+  return json{
+      {"calibration",
+       {{"geometry", beamdata::to_string(ref.geometry)},
+        {"geometry_defaulted", ref.geometry_defaulted},
+        {"source_to_point_cm", ref.source_to_point_cm},
+        {"field_at_point_cm", ref.field_at_point_cm},
+        {"field_at_surface_cm", ref.field_at_surface_cm},
+        {"collimator_field_cm", ref.collimator_field_cm}}},
+      {"formalisms", f.computed ? json{{"used", engine::to_code(c.method)},
+                                       {"other", engine::to_code(f.other)},
+                                       {"used_dose_per_mu_cgy", f.used_dose_per_mu_cgy},
+                                       {"other_dose_per_mu_cgy", f.other_dose_per_mu_cgy},
+                                       {"difference_percent", f.difference_percent},
+                                       {"other_extrapolated", f.other_extrapolated}}
+                                : json(nullptr)},
+      {"geometry_consistency",
+       {{"ray_mismatch_mm", optional_json(g.ray_mismatch_mm)},
+        {"ssd_mismatch_mm", optional_json(g.ssd_mismatch_mm)}}},
+      {"uncertainty",
+       {{"combined_percent", u.combined_percent},
+        {"interpolation_percent", u.interpolation_percent},
+        {"formalism_percent", u.formalism_percent},
+        {"sector_percent", c.sector_vs_equivalent_square_percent ? json(u.sector_percent) : json(nullptr)},
+        {"heterogeneity_percent", u.heterogeneity_percent}}}};
+}
+
+}  // namespace
+
 nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::BeamCheck& beam,
                                    const BeamExplanation& e) {
   json j;
@@ -209,6 +244,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["planned_dose_gy"] = optional_json(beam.planned_dose_gy);
   j["computed_dose_gy"] = optional_json(beam.computed_dose_gy);
   j["deviation_percent"] = optional_json(beam.deviation_percent);
+  j["calc_uncertainty_percent"] = optional_json(beam.calc_uncertainty_percent);
   j["tolerance_percent"] = optional_json(beam.tolerance_percent);
   j["independent_mu"] = optional_json(beam.independent_mu);
   j["category"] = beam.category ? json(check::to_code(*beam.category)) : json(nullptr);
@@ -241,6 +277,7 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   } else {
     j["formalisms"] = nullptr;
   }
+  j["model_checks"] = c != nullptr && c->dose_computed ? model_checks_json(*c) : json(nullptr);
   j["sensitivity"] = sensitivity_json(e);
   j["approximations"] = c != nullptr ? json(beam.words.approximations) : json::array();
   j["caution"] = caution_text();

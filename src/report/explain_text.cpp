@@ -50,6 +50,53 @@ void factor_lines(std::string& out, const engine::PointDose& dose) {
   out += fmt::format("    {:<52} {:>8.4f}\n", "dose per MU (cGy/MU)", dose.dose_per_mu_cgy);
 }
 
+std::string percent_or_dash(const std::optional<double>& v) {
+  return v ? fmt::format("{:+.1f} mm", *v) : std::string{"- (not in the plan)"};
+}
+
+// What the model's own checks found: calibration geometry, the two formalisms, the plan's distances
+// against each other, and the estimated uncertainty (issue 12).
+std::string model_checks_text(const check::PlanCheck& check, const engine::BeamDose& c) {
+  std::string out = "\nModel checks\n";
+  const check::TolerancePolicy& policy = check.options.policy;
+  const engine::ReferenceConditions& ref = c.dose.reference;
+  out += fmt::format(
+      "  calibration geometry {} ({}): reference field {:.2f} cm at the calibration point ({:g} cm from the "
+      "source), {:.2f} cm at the surface, {:.2f} cm collimator setting; the output is divided by the factors "
+      "there\n",
+      beamdata::to_string(ref.geometry),
+      ref.geometry_defaulted ? "not stated in the library: FORMAT.md's default rule"
+                             : "stated in the library",
+      ref.field_at_point_cm, ref.source_to_point_cm, ref.field_at_surface_cm, ref.collimator_field_cm);
+  const engine::FormalismComparison& f = c.model.formalism;
+  if (f.computed) {
+    out += fmt::format(
+        "  formalisms: {} {:.4f} cGy/MU (used), {} {:.4f} cGy/MU: difference {:+.2f} % (policy "
+        "limit {:.1f} %){}\n",
+        engine::to_code(c.method), f.used_dose_per_mu_cgy, engine::to_code(f.other), f.other_dose_per_mu_cgy,
+        f.difference_percent, policy.formalism_max_difference_percent,
+        f.other_extrapolated ? "; the other form extrapolated its table" : "");
+  } else {
+    out += "  formalisms: not compared (modulated beam: each part uses the chosen form)\n";
+  }
+  const engine::GeometryConsistency& g = c.model.geometry;
+  out += fmt::format(
+      "  geometry consistency (policy limit {:.1f} mm): depth + dose point SSD - ray length {}; "
+      "SSD - (SPD - depth), flat surface, {}\n",
+      policy.geometry_consistency_max_mm, percent_or_dash(g.ray_mismatch_mm),
+      percent_or_dash(g.ssd_mismatch_mm));
+  const engine::UncertaintyEstimate& u = c.model.uncertainty;
+  out += fmt::format(
+      "  estimated standard uncertainty of the calculation {:.2f} %: interpolation {:.2f} %, formalisms "
+      "{:.2f} %, "
+      "sector vs equivalent square {}, heterogeneity {:.2f} % (our estimate, common practice, no source)\n",
+      u.combined_percent, u.interpolation_percent, u.formalism_percent,
+      c.sector_vs_equivalent_square_percent ? fmt::format("{:.2f} %", u.sector_percent)
+                                            : std::string{"not computed (no sector integration)"},
+      u.heterogeneity_percent);
+  return out;
+}
+
 }  // namespace
 
 std::string explanation_text(const check::PlanCheck& check, const check::BeamCheck& beam,
@@ -66,6 +113,9 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
       opt(beam.meterset_mu, 1), opt(beam.planned_dose_gy, 4), opt(beam.computed_dose_gy, 4),
       beam.deviation_percent ? fmt::format("{:+.2f}", *beam.deviation_percent) : "-",
       opt(beam.tolerance_percent, 1), opt(beam.independent_mu, 1));
+  if (beam.calc_uncertainty_percent)
+    out += fmt::format("  estimated standard uncertainty of the calculation {:.2f} % (see Model checks)\n",
+                       *beam.calc_uncertainty_percent);
   if (beam.category) {
     out += fmt::format("  category {} ({}), policy: {}\n", check::to_code(*beam.category),
                        check::to_code(beam.medium), check.options.policy.source);
@@ -92,6 +142,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
                        d.calibration.output_cgy_per_mu, d.calibration.field_cm, d.calibration.ssd_cm,
                        d.calibration.depth_cm);
   }
+
+  if (c.dose_computed) out += model_checks_text(check, c);
 
   if (c.point.spd_mm > 0.0) {
     out += "\nGeometry\n";

@@ -15,6 +15,10 @@ std::vector<FactorRow> factor_rows(const engine::PointDose& dose, FactorSelectio
   add("calibration_depth",
       tmr ? "Calibration-depth term TMR(d_c, s_ref)" : "Calibration-depth term PDD(d_c, s_ref)/100 x F",
       "divides", f.calibration_depth);
+  add("calibration_sc", "Reference collimator scatter Sc(s_c,ref)", "divides", f.calibration_sc);
+  add("calibration_sp",
+      tmr ? "Reference phantom scatter Sp(s_ref)" : "Reference phantom scatter Sp(s_ref,d0)", "divides",
+      f.calibration_sp);
   add("sc", "Collimator scatter Sc(s_c)", "multiplies", f.sc);
   add("sp", tmr ? "Phantom scatter Sp(s_d)" : "Phantom scatter Sp(s_d0)", "multiplies", f.sp);
   if (tmr || selection == FactorSelection::all_factors)

@@ -176,16 +176,20 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
 
   out +=
       "<table class=\"summary\"><thead><tr><th class=\"num\">MU</th><th class=\"num\">Planned Gy</th>"
-      "<th class=\"num\">Independent Gy</th><th class=\"num\">Deviation %</th><th class=\"num\">Tolerance "
+      "<th class=\"num\">Independent Gy</th><th class=\"num\">Deviation %</th><th class=\"num\">Uncertainty "
+      "%</th><th class=\"num\">Tolerance "
       "%</th>"
       "<th class=\"num\">Independent MU</th><th>Outcome</th></tr></thead><tbody>\n";
   out += fmt::format(
-      "<tr class=\"{}\"><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>"
+      "<tr class=\"{}\"><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td "
+      "class=\"num\">{}</td>"
       "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td "
       "class=\"word\">{}</td></tr>\n"
       "</tbody></table>\n",
       status_class(beam.status), fixed(beam.meterset_mu, 1), fixed(beam.planned_dose_gy, 3),
       fixed(beam.computed_dose_gy, 3), signed_fixed(beam.deviation_percent, 1),
+      beam.calc_uncertainty_percent ? "\u00B1" + fixed(beam.calc_uncertainty_percent, 1)
+                                    : std::string{"\u2013"},
       beam.tolerance_percent ? "\u00B1" + fixed(beam.tolerance_percent, 1) : std::string{"\u2013"},
       fixed(beam.independent_mu, 1), status_words(beam.status));
   out +=

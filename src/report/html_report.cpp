@@ -89,7 +89,8 @@ std::string summary_table(const check::PlanCheck& check) {
   std::string out =
       "<table class=\"summary\"><thead><tr><th class=\"num\">FG</th><th class=\"num\">Beam</th><th>Name</th>"
       "<th class=\"num\">MU</th><th class=\"num\">Planned Gy</th><th class=\"num\">Independent Gy</th>"
-      "<th class=\"num\">Deviation %</th><th class=\"num\">Tolerance %</th><th class=\"num\">Independent "
+      "<th class=\"num\">Deviation %</th><th class=\"num\">Uncertainty %</th><th class=\"num\">Tolerance "
+      "%</th><th class=\"num\">Independent "
       "MU</th>"
       "<th>Outcome</th></tr></thead><tbody>\n";
   for (const auto& b : check.beams) {
@@ -97,10 +98,11 @@ std::string summary_table(const check::PlanCheck& check) {
         "<tr class=\"{}\"><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td><td "
         "class=\"num\">{}</td>"
         "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>"
-        "<td class=\"num\">{}</td><td class=\"word\">{}</td></tr>\n",
+        "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"word\">{}</td></tr>\n",
         html::status_class(b.status), b.fraction_group_number, b.beam_number,
         html_escape(or_dash(b.beam_name)), fixed(b.meterset_mu, 1), fixed(b.planned_dose_gy, 3),
         fixed(b.computed_dose_gy, 3), signed_fixed(b.deviation_percent, 1),
+        b.calc_uncertainty_percent ? "\u00B1" + fixed(b.calc_uncertainty_percent, 1) : std::string{"\u2013"},
         b.tolerance_percent ? "\u00B1" + fixed(b.tolerance_percent, 1) : std::string{"\u2013"},
         fixed(b.independent_mu, 1), html::status_words(b.status));
   }

@@ -166,6 +166,8 @@ TEST_F(Verdict, PointNearTheFieldEdge) {
 }
 
 TEST_F(Verdict, ExtrapolatedTableIsNotChecked) {
+  options.policy.max_ssd_offset_without_range_cm =
+      50.0;  // SPD - depth = 60 cm: not an extended distance here
   const PlanCheck c = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 400.0}}));  // depth 40 cm > 35 cm table
   EXPECT_EQ(c.beams[0].reason.reason, Reason::table_extrapolated);
   EXPECT_NE(c.beams[0].reason.sentence.find("tmr"), std::string::npos);
@@ -173,9 +175,14 @@ TEST_F(Verdict, ExtrapolatedTableIsNotChecked) {
 }
 
 // The plan's depth 100 mm against SPD - SSD = 1000 - 880 = 120 mm: 20 mm apart, over the 10 mm limit.
+// (With the default policy the 3 mm geometry-consistency rule answers first: geometry_inconsistent.)
 TEST_F(Verdict, InconsistentDepth) {
   plan::Beam beam = static_beam(1, 0);
   test_fixtures::set_ssd(beam, 880.0);
+  EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}), {1.0})).beams[0].reason.reason,
+            Reason::geometry_inconsistent);
+  options.policy.geometry_consistency_max_mm = 50.0;
+  options.policy.formalism_max_difference_percent = 20.0;  // the PDD form is fed the wrong SSD too
   EXPECT_EQ(run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}), {1.0})).beams[0].reason.reason,
             Reason::inconsistent_depth);
   test_fixtures::set_ssd(beam, 905.0);  // 5 mm: fine

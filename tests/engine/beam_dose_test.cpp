@@ -42,8 +42,13 @@ std::string shown(const std::optional<CalculationProblem>& problem) {
 // Hand calculation on the fixture's tables, on the axis of a 10 x 10 cm field at SPD 100 cm: the
 // library is calibrated 1 cGy/MU at dmax 1.5 cm, SSD 100 cm, so (TG-71 isocentric form)
 //   D = MU · 1 · Sc(10) · Sp(10) · TMR(d, 10) · OAR(d, 0) · (101.5/100)²
-// with Sc(10) = Sp(10) = 1 and OAR(d, 0) = 1 by the model's normalisation.
-constexpr double inverse_square_10x10 = 1.015 * 1.015;
+//       / Sp(s_ref)
+// with Sc(10) = Sp(10) = 1 and OAR(d, 0) = 1 by the model's normalisation. The output is normalised at
+// the calibration conditions (TG-71: the formula must give Ḋref there): the library's field_cm 10 is
+// at the surface (SSD geometry), 10 x 101.5/100 = 10.15 cm at the calibration point, so the output is
+// divided by Sp(10.15), linear between the 10 and 12 cm nodes; Sc(10) = 1 and TMR(1.5, 10.15) = 1.
+const double reference_sp_10x10 = 1.0 + (10.15 - 10.0) / 2.0 * (test_fixtures::model_sp(12.0) - 1.0);
+const double inverse_square_10x10 = 1.015 * 1.015 / reference_sp_10x10;
 double tmr_10x10(double depth_cm) { return test_fixtures::model_tmr(depth_cm, 10.0); }
 
 TEST_F(Fixture, StaticIsocentricBeamUsesThePlansDepth) {

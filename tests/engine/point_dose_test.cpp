@@ -52,13 +52,23 @@ DoseInputs isocentric_15x15_at_10cm() {
   return in;
 }
 
-// Hand calculation, TG-71 isocentric form: D/MU = 1.000 · Sc(15) 1.020 · Sp(15) 1.010 · TMR(10,15) 0.800
-// · (101.5/100)² = 0.849070 cGy/MU; 200 cGy need 235.55 MU.
+// The calibration (10 x 10 at the surface, SSD 100, depth 1.5: "SSD" geometry by FORMAT.md's default
+// rule) puts 10 x 101.5/100 = 10.15 cm at the calibration point; the output is divided by the
+// factors there (TG-71: the formula gives Ḋref at the calibration conditions): Sc(10) 1.000,
+// TMR(1.5, 10.15) 1.000 and Sp(10.15) = 1.000 + 0.010 · 0.15/5 = 1.0003 (linear between 10 and 15).
+constexpr double reference_sp = 1.0003;
+
+// Hand calculation, TG-71 isocentric form: D/MU = 1.000 / 1.0003 · Sc(15) 1.020 · Sp(15) 1.010
+// · TMR(10,15) 0.800 · (101.5/100)² = 0.848815 cGy/MU; 200 cGy need 235.62 MU.
 TEST(PointDose, IsocentricHandCalculation) {
   const PointDose d = compute_point_dose(hand_beam(), isocentric_15x15_at_10cm());
-  EXPECT_NEAR(d.dose_per_mu_cgy, 0.849070, 5e-6);
-  EXPECT_NEAR(200.0 / d.dose_per_mu_cgy, 235.55, 0.01);
-  EXPECT_NEAR(d.dose_cgy, 84.9070, 5e-4);
+  EXPECT_NEAR(d.dose_per_mu_cgy, 0.848815, 5e-6);
+  EXPECT_NEAR(200.0 / d.dose_per_mu_cgy, 235.62, 0.01);
+  EXPECT_NEAR(d.dose_cgy, 84.8815, 5e-4);
+  EXPECT_EQ(d.reference.geometry, beamdata::CalibrationGeometry::ssd);
+  EXPECT_TRUE(d.reference.geometry_defaulted);
+  EXPECT_NEAR(d.reference.field_at_point_cm, 10.15, 1e-12);
+  EXPECT_NEAR(d.factors.calibration_sp.value, reference_sp, 1e-12);
   EXPECT_EQ(d.factors.sc.basis, FactorBasis::table);
   ASSERT_TRUE(d.factors.tmr.lookup);
   EXPECT_EQ(d.factors.tmr.lookup->table_file, "tmr.csv");
@@ -71,7 +81,8 @@ TEST(PointDose, IsocentricHandCalculation) {
 
 // Hand calculation, TG-71 SSD form at the table's SSD: 10x10 at the isocentre = 10x10 at the
 // surface (SSD 100), depth 10 cm. Sp at s_d0 = 10 (100 + 1.5)/100 = 10.15 cm is interpolated
-// between 1.000 (10) and 1.010 (15): 1.0003. D/MU = 1.000 · 1.0003 · 0.668 = 0.6682004 cGy/MU.
+// between 1.000 (10) and 1.010 (15): 1.0003; the reference field is the same 10 x 10 at the surface
+// with the same Sp(10.15), so D/MU = 1.000 / 1.0003 · 1.0003 · 0.668 = 0.668 cGy/MU: the PDD itself.
 TEST(PointDose, FixedSsdHandCalculation) {
   DoseInputs in = isocentric_15x15_at_10cm();
   in.method = Method::pdd;
@@ -86,7 +97,7 @@ TEST(PointDose, FixedSsdHandCalculation) {
   EXPECT_NEAR(d.factors.pdd.value, 0.668, 1e-12);
   EXPECT_DOUBLE_EQ(d.factors.mayneord_f.value, 1.0);
   EXPECT_DOUBLE_EQ(d.factors.inverse_square.value, 1.0);
-  EXPECT_NEAR(d.dose_per_mu_cgy, 0.6682004, 1e-9);
+  EXPECT_NEAR(d.dose_per_mu_cgy, 0.668, 1e-9);
 }
 
 // Extended SSD 120 cm: Mayneord F = [(120+1.5)/(100+1.5) · (100+10)/(120+10)]² = 1.025933 (> 1, as
@@ -104,7 +115,8 @@ TEST(PointDose, ExtendedSsdUsesMayneordAndInverseSquare) {
   EXPECT_GT(d.factors.mayneord_f.value, 1.0);
   EXPECT_NEAR(d.factors.inverse_square.value, (101.5 / 121.5) * (101.5 / 121.5), 1e-12);
   const double sp = 1.0 + 0.010 * (10.0 * 121.5 / 120.0 - 10.0) / 5.0;  // Sp(s_d0 = 10.125 cm)
-  EXPECT_NEAR(d.dose_per_mu_cgy, 1.0 * 1.0 * sp * 0.668 * 1.025933 * (101.5 / 121.5) * (101.5 / 121.5), 1e-6);
+  EXPECT_NEAR(d.dose_per_mu_cgy,
+              1.0 / reference_sp * sp * 0.668 * 1.025933 * (101.5 / 121.5) * (101.5 / 121.5), 1e-6);
 }
 
 // Hand calculation: the isocentric case above, 1.000 · 1.020 · 1.010 · 0.800 · (101.5/100)², times the
@@ -117,7 +129,8 @@ TEST(PointDose, WedgeTrayAndTransmissionMultiply) {
   in.transmission = 0.015;
   const PointDose d = compute_point_dose(b, in);
   EXPECT_EQ(d.factors.wedge.basis, FactorBasis::manifest_constant);
-  EXPECT_NEAR(d.dose_per_mu_cgy, 1.020 * 1.010 * 0.800 * 1.015 * 1.015 * 0.700 * 0.970 * 0.015, 1e-12);
+  EXPECT_NEAR(d.dose_per_mu_cgy, 1.020 * 1.010 * 0.800 * 1.015 * 1.015 / reference_sp * 0.700 * 0.970 * 0.015,
+              1e-12);
 }
 
 TEST(PointDose, WedgeFactorTableIsLookedUp) {
@@ -150,10 +163,74 @@ TEST(PointDose, ExtrapolationIsMarked) {
 TEST(PointDose, CalibrationAtDepthReproducesTheOutput) {
   beamdata::BeamData b = hand_beam();
   b.calibration = {0.800, 10.0, 90.0, 10.0};
+  b.calibration.stated_geometry = beamdata::CalibrationGeometry::sad;
+  b.calibration.geometry = beamdata::CalibrationGeometry::sad;
   DoseInputs in = isocentric_15x15_at_10cm();
   in.collimator_field_cm = 10.0;
   in.field_at_isocentre_cm = 10.0;
   EXPECT_NEAR(compute_point_dose(b, in).dose_per_mu_cgy, 0.800, 1e-12);
+}
+
+beamdata::Calibration calibration(double output, double ssd_cm, double depth_cm,
+                                  beamdata::CalibrationGeometry geometry) {
+  beamdata::Calibration c{output, 10.0, ssd_cm, depth_cm};
+  c.stated_geometry = geometry;
+  c.geometry = geometry;
+  return c;
+}
+
+// Issue 12 ("a different but equally valid calibration shifts doses"): the same machine described
+// by three libraries calibrated differently gives the same dose. The hand beam's "truth" is its own
+// TMR-form model, D/MU = K · Sc · Sp · TMR / SPD², with K fixed by library A:
+//   A: 1.000 cGy/MU, 10 x 10 at the surface, SSD 100, depth 1.5 ("SSD"): K = 1.000 · 101.5² / Sp(10.15)
+//   B: 10 x 10 at the point, SSD 90, depth 10 ("SAD"): Ḋ = K · Sc(10) Sp(10) TMR(10, 10) / 100²
+//      = 1.030225 / 1.0003 · 0.780 = 0.803339 cGy/MU
+//   C: 10 x 10 at the surface, SSD 100, depth 10 ("SSD"): field 11 at the point, Sp(11) = 1.002,
+//      TMR(10, 11) = 0.784, Ḋ = K · 1.002 · 0.784 / 110²
+// The old rule (field_cm always at the calibration point) gave C a dose 0.5 % off.
+TEST(PointDose, CalibrationGeometryDoesNotChangeTheDose) {
+  const double k = 101.5 * 101.5 / reference_sp;
+  beamdata::BeamData a = hand_beam();
+  a.calibration = calibration(1.000, 100.0, 1.5, beamdata::CalibrationGeometry::ssd);
+  beamdata::BeamData b = hand_beam();
+  b.calibration = calibration(k * 0.780 / (100.0 * 100.0), 90.0, 10.0, beamdata::CalibrationGeometry::sad);
+  EXPECT_NEAR(b.calibration.output_cgy_per_mu, 0.803339, 5e-6);
+  beamdata::BeamData c = hand_beam();
+  c.calibration =
+      calibration(k * 1.002 * 0.784 / (110.0 * 110.0), 100.0, 10.0, beamdata::CalibrationGeometry::ssd);
+  const DoseInputs in = isocentric_15x15_at_10cm();
+  const double expected = 0.848815;  // IsocentricHandCalculation
+  EXPECT_NEAR(compute_point_dose(a, in).dose_per_mu_cgy, expected, 5e-6);
+  EXPECT_NEAR(compute_point_dose(b, in).dose_per_mu_cgy, expected, 5e-6);
+  EXPECT_NEAR(compute_point_dose(c, in).dose_per_mu_cgy, expected, 5e-6);
+  EXPECT_NEAR(compute_point_dose(c, in).reference.field_at_point_cm, 11.0, 1e-12);
+}
+
+// The PDD form, on the fixture whose PDD is derived from its TMR and Sp: an SSD-calibrated and an
+// SAD-calibrated library (output from the TMR model at the SAD point, hand-computed as above) agree
+// within 0.3 % (the fixture's interpolation; common practice, no source).
+TEST(PointDose, CalibrationGeometryInThePddForm) {
+  beamdata::BeamData ssd = test_fixtures::test_beam();
+  ssd.calibration = calibration(1.0, 100.0, test_fixtures::dmax_cm, beamdata::CalibrationGeometry::ssd);
+  beamdata::BeamData sad = test_fixtures::test_beam();
+  const double reference_sp_fixture =
+      1.0 + (10.15 - 10.0) / 2.0 * (test_fixtures::model_sp(12.0) - 1.0);  // linear, nodes 10 and 12
+  const double k = 101.5 * 101.5 / reference_sp_fixture;
+  sad.calibration = calibration(k * test_fixtures::model_tmr(10.0, 10.0) / (100.0 * 100.0), 90.0, 10.0,
+                                beamdata::CalibrationGeometry::sad);
+  DoseInputs in;
+  in.method = Method::pdd;
+  in.meterset_mu = 100.0;
+  in.depth_cm = 10.0;
+  in.ssd_cm = 100.0;
+  in.spd_cm = 110.0;
+  in.collimator_field_cm = 10.0;
+  in.field_at_isocentre_cm = 10.0;
+  const double d_ssd = compute_point_dose(ssd, in).dose_cgy;
+  const double d_sad = compute_point_dose(sad, in).dose_cgy;
+  EXPECT_NEAR(d_sad / d_ssd, 1.0, 0.003);
+  in.method = Method::tmr;
+  EXPECT_NEAR(compute_point_dose(sad, in).dose_cgy / compute_point_dose(ssd, in).dose_cgy, 1.0, 1e-9);
 }
 
 // With PDD, TMR and Sp consistent (the fixture derives PDD from TMR and Sp), the two formalisms give

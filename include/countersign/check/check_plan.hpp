@@ -40,11 +40,12 @@ struct BeamCheck {
   Status status = Status::not_checked;
   Finding reason;  // code and sentence, for every status
   std::optional<double> meterset_mu;
-  std::optional<double> planned_dose_gy;    // Beam Dose (300A,0084)
-  std::optional<double> computed_dose_gy;   // set whenever the engine computed a dose
-  std::optional<double> deviation_percent;  // 100 (computed - planned) / planned
-  std::optional<double> tolerance_percent;  // from the policy for this beam's category
-  std::optional<double> independent_mu;     // the MU this calculation needs for the planned dose
+  std::optional<double> planned_dose_gy;           // Beam Dose (300A,0084)
+  std::optional<double> computed_dose_gy;          // set whenever the engine computed a dose
+  std::optional<double> deviation_percent;         // 100 (computed - planned) / planned
+  std::optional<double> tolerance_percent;         // from the policy for this beam's category
+  std::optional<double> independent_mu;            // the MU this calculation needs for the planned dose
+  std::optional<double> calc_uncertainty_percent;  // estimated standard uncertainty of the computed dose
   std::optional<FieldCategory> category;
   Medium medium = Medium::homogeneous;
   std::optional<double> point_total_planned_dose_gy;  // all beams of the fraction group at this point

@@ -2,7 +2,9 @@
 
 // Known errors put into a plan in memory, to show that the check catches them (AAPM TG-114 (2011)
 // advises testing a verification program with deliberate errors). Each injection changes one beam
-// of one fraction group of a copy of the plan, the way a transcription or export slip would.
+// of one fraction group of a copy of the plan by a stated size, the way a transcription or export
+// slip would. Whether the change must be flagged is decided by the self-test's rules
+// (self_test.hpp), never by the check's verdict.
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/plan/plan.hpp>
@@ -14,43 +16,49 @@
 
 namespace countersign::check {
 
-enum class InjectedError {
-  meterset_plus_5_percent,    // Beam Meterset (300A,0086) x 1.05
-  meterset_minus_5_percent,   // Beam Meterset (300A,0086) x 0.95
-  wrong_energy,               // Nominal Beam Energy (300A,0114): another energy of the machine in the library
-  ssd_plus_20_mm,             // Source to Surface Distance (300A,0130) + 20 mm at every control point
-  wedge_removed,              // Wedge Sequence (300A,00D1) and Wedge Position Sequence (300A,0116) removed
-  jaws_swapped,               // the two X jaw positions (300A,011C) exchanged at every control point
-  beam_dose_plus_10_percent,  // the fraction group's Beam Dose (300A,0084) x 1.10
+enum class ErrorKind {
+  meterset,          // Beam Meterset (300A,0086) x (1 + size/100)
+  beam_dose,         // Beam Dose (300A,0084) x (1 + size/100)
+  ssd,               // Source to Surface Distance (300A,0130) + size mm at every control point
+  depth,             // Beam Dose Point Depth (300A,0088) + size mm (the SSDs kept)
+  energy,            // Nominal Beam Energy (300A,0114): the library's nearest other energy (size unused)
+  wedge,             // the wedge removed, or the library's first wedge added to an open beam
+  tray,              // the block tray removed, or the library's first tray added
+  jaw,               // the X2 jaw (300A,011C) opened by size mm at every control point
+  point_position,    // the dose point moved size mm along the central axis, away from the source
+  patient_position,  // Patient Position (0018,5100) HFS -> HFP (size unused)
 };
+inline constexpr std::array<ErrorKind, 10> all_error_kinds = {
+    ErrorKind::meterset,       ErrorKind::beam_dose,       ErrorKind::ssd,  ErrorKind::depth,
+    ErrorKind::energy,         ErrorKind::wedge,           ErrorKind::tray, ErrorKind::jaw,
+    ErrorKind::point_position, ErrorKind::patient_position};
 
-inline constexpr std::array<InjectedError, 7> all_injected_errors = {
-    InjectedError::meterset_plus_5_percent,
-    InjectedError::meterset_minus_5_percent,
-    InjectedError::wrong_energy,
-    InjectedError::ssd_plus_20_mm,
-    InjectedError::wedge_removed,
-    InjectedError::jaws_swapped,
-    InjectedError::beam_dose_plus_10_percent};
+// snake_case code, as printed.
+[[nodiscard]] std::string_view to_code(ErrorKind kind);
+// The unit of the kind's size: "%", "mm" or "" (a discrete change).
+[[nodiscard]] std::string_view size_unit(ErrorKind kind);
 
-// snake_case code, as printed in the self-test table.
-[[nodiscard]] std::string_view to_code(InjectedError error);
-
-// The relative change of the computed-to-planned dose ratio the error causes by definition (dose is
-// proportional to MU; the ratio is inversely proportional to the planned dose), or nullopt when its
-// size depends on the beam data and the geometry.
-[[nodiscard]] std::optional<double> known_ratio_change(InjectedError error);
+struct InjectedError {
+  ErrorKind kind = ErrorKind::meterset;
+  double size = 0.0;  // percent or mm (size_unit); 0 for discrete changes
+};
 
 struct Injection {
   plan::Plan plan;          // the copy with the error
   std::string description;  // what was changed, e.g. "Beam Meterset 177.6 -> 186.5 MU"
+  // For accessory and energy changes: the library item now in (or no longer in) the beam.
+  const beamdata::WedgeData* wedge_added = nullptr;
+  const beamdata::WedgeData* wedge_removed = nullptr;
+  const beamdata::TrayData* tray_added = nullptr;
+  const beamdata::TrayData* tray_removed = nullptr;
+  const beamdata::BeamData* energy_to = nullptr;  // nullptr: an energy the library lacks
 };
 
 // Applies `error` to beam `beam_number` referenced by fraction group `fraction_group_number` of a
-// copy of `plan`. nullopt when the error does not apply to that beam (no wedge to remove, no SSD,
-// no X jaws, no meterset or beam dose to change).
+// copy of `plan`. nullopt when the error does not apply to that beam (no SSD, no depth, no X jaw,
+// no meterset or beam dose, a patient position other than HFS, no wedge or tray in the library).
 [[nodiscard]] std::optional<Injection> inject_error(const plan::Plan& plan, int fraction_group_number,
-                                                    int beam_number, InjectedError error,
+                                                    int beam_number, const InjectedError& error,
                                                     const beamdata::Library& library);
 
 }  // namespace countersign::check

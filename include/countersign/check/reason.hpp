@@ -37,6 +37,14 @@ enum class Reason {
   point_near_segment_edges,  // modulated: too much of the meterset with the point near a segment's edge
   table_extrapolated,
   inconsistent_depth,  // the plan's depth and SPD - SSD disagree beyond the policy limit
+  // Verdict honesty (issue 12).
+  geometry_inconsistent,  // outside: depth + dose point SSD vs ray, or SSD vs SPD - depth, beyond the limit
+  small_beam_deviation,   // outside: a small contributor's own deviation beyond the policy limit
+  point_in_buildup,       // not checked: point shallower than dmax + the policy margin
+  small_field,            // not checked: equivalent square below the policy minimum or the tables
+  ssd_out_of_range,       // not checked: SSD outside the library's ssd_range_cm
+  extended_distance,      // not checked: no ssd_range_cm and the SSD far from the PDD table's SSD
+  beam_data_inconsistent_here,  // not checked: TMR and PDD forms disagree beyond the policy limit
   // Plan level.
   nothing_to_check,  // no beam of the plan could be judged (all skipped)
 };

@@ -59,6 +59,22 @@ struct TolerancePolicy {
                                           // with the point within min_edge_distance_cm of a part's edge,
                                           // the beam is not checked (common practice, no source)
 
+  // Verdict honesty ([model_limits] in the policy file; defaults: common practice, no source).
+  // Geometry consistency: plan depth + Beam Dose Point SSD against the ray length, and the SSD
+  // against SPD - depth (flat surface), at any off-axis distance; beyond this: outside tolerance.
+  double geometry_consistency_max_mm = 3.0;
+  // A small contributor judged against its point's total must also keep its own deviation within this.
+  double small_beam_max_deviation_percent = 10.0;
+  // A point shallower than dmax + this margin is in the build-up region: not checked.
+  double buildup_margin_mm = 0.0;
+  // Static fields whose equivalent square is below this (or below the table's smallest field): not checked.
+  double min_equivalent_square_cm = 4.0;
+  // When the library gives no ssd_range_cm: an SSD farther than this from the PDD table's SSD is
+  // an extended distance the tables do not support: not checked.
+  double max_ssd_offset_without_range_cm = 20.0;
+  // TMR and PDD forms differing by more than this: the beam data are inconsistent at the point.
+  double formalism_max_difference_percent = 1.5;
+
   [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
 };
 

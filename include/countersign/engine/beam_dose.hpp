@@ -9,6 +9,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/approximation.hpp>
 #include <countersign/engine/dose_point.hpp>
+#include <countersign/engine/model_facts.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/engine/problem.hpp>
 #include <countersign/engine/sector_scatter.hpp>
@@ -143,6 +144,11 @@ struct BeamDose {
   // EngineOptions::segment_edge_distance_mm to the part's opening's edge.
   double edge_meterset_share = 0.0;
   std::vector<Approximation> approximations;
+  // Input for the uncertainty estimate: the relative difference (percent) between sector
+  // integration and the equivalent square at the point. Absent until sector integration sets it
+  // (the scatter stage); absent counts as 0 in the estimate.
+  std::optional<double> sector_vs_equivalent_square_percent;
+  ModelFacts model;  // consistency step: geometry consistency, other formalism, uncertainty
 
   // The first extrapolated factor in any part, or nullptr.
   [[nodiscard]] const Factor* first_extrapolated() const;

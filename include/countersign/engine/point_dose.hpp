@@ -9,9 +9,12 @@
 // SSD (PDD) form, normalised at d0 = dmax:
 //   D = MU · Ḋref / (PDD(d_c, s_ref)/100) · Sc(s_c) · Sp(s_d0) · F · PDD(d, s_s, SSDt)/100 · WF · TF · OAR
 //       · ((SSDref + d0)/(SSD + d0))²
-// The calibration-depth term is 1 when the calibration point is at dmax (TMR(dmax) = 1,
-// PDD(dmax) = 100); it keeps the formulas right for a library calibrated at another depth.
-// The reference field (calibration field_cm) is taken at the calibration point.
+// Both forms are normalised so that they give exactly Ḋref at the library's calibration conditions:
+// the output is divided by the same factors evaluated there (Sc, Sp and TMR or PDD of the reference
+// field). Where the reference field_cm lies follows the library's [beam.calibration] geometry
+// (beamdata FORMAT.md): "SSD" - at the surface (the field at the calibration point is
+// field_cm (ssd_cm + depth_cm)/ssd_cm); "SAD" - at the calibration point. An SSD- and an
+// SAD-calibrated library of the same machine therefore give the same dose.
 
 #include <countersign/beamdata/library.hpp>
 
@@ -65,9 +68,22 @@ struct FieldSizes {
   double normalisation_depth_cm = 0.0;  // s_d0, at SSD + dmax (PDD form)
 };
 
+// The reference conditions the output is normalised at, from the library's calibration.
+struct ReferenceConditions {
+  beamdata::CalibrationGeometry geometry = beamdata::CalibrationGeometry::ssd;
+  bool geometry_defaulted = false;   // the library does not state it (FORMAT.md default rule used)
+  double source_to_point_cm = 0.0;   // ssd_cm + depth_cm
+  double field_at_point_cm = 0.0;    // reference field at the calibration point
+  double field_at_surface_cm = 0.0;  // reference field at the calibration SSD
+  double collimator_field_cm = 0.0;  // reference collimator setting projected to the isocentre plane
+};
+[[nodiscard]] ReferenceConditions reference_conditions(const beamdata::BeamData& beam, double sad_cm);
+
 struct DoseFactors {
   double output_cgy_per_mu = 0.0;
-  Factor calibration_depth;  // TMR(d_c, s_ref) or PDD(d_c, s_ref)/100: the output divides by it
+  Factor calibration_depth;  // TMR(d_c, s_ref) or PDD(d_c, s_ref, SSD_ref)/100: the output divides by it
+  Factor calibration_sc;     // Sc of the reference collimator setting: the output divides by it
+  Factor calibration_sp;     // Sp of the reference field (at d_c, or at dmax in the PDD form): divides
   Factor sc;
   Factor sp;
   Factor tmr;         // TMR form
@@ -85,6 +101,7 @@ struct DoseFactors {
 
 struct PointDose {
   Method method = Method::tmr;
+  ReferenceConditions reference;
   FieldSizes fields;
   DoseFactors factors;
   double dose_per_mu_cgy = 0.0;
