@@ -92,6 +92,8 @@ FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& polic
 }
 
 Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
+  // With a CT, the densities on the ray decide (not a plan value).
+  if (c.patient) return ray_is_heterogeneous(c.patient->ray, policy) ? Medium::heterogeneous : Medium::homogeneous;
   const auto& geometric = c.depth.plan_depth_mm;
   const auto& equivalent = c.depth.plan_equivalent_depth_mm;
   if (!geometric || !equivalent || *geometric <= 0.0) return Medium::homogeneous;
@@ -131,7 +133,7 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
                     "(policy limit {:.1f} cm)",
                     util::mm_to_cm(c.point.off_axis_mm), policy.wedge_max_off_axis_cm)};
   }
-  const bool plan_depth_used = c.depth.kind == engine::DepthChoice::planned &&
+  const bool plan_depth_used = !c.patient && c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&
                                c.depth.source != engine::DepthSource::derived_from_dose_point_ssd;
   if (plan_depth_used && c.depth.spd_minus_ssd_mm &&
@@ -172,7 +174,17 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   const double computed = c.computed_dose_gy;
   if (computed > 0.0 && beam.meterset_mu) beam.independent_mu = *beam.meterset_mu * planned / computed;
   beam.deviation_percent = 100.0 * (computed - planned) / planned;
+  // The plan's geometry against the CT's needs a person even when the doses agree.
+  if (auto finding = plan_versus_ct_finding(c, policy)) {
+    beam.status = Status::outside_tolerance;
+    beam.reason = std::move(*finding);
+    return;
+  }
   if (auto finding = safety_findings(c, policy)) {
+    set_not_checked(beam, finding->reason, std::move(finding->sentence));
+    return;
+  }
+  if (auto finding = missing_tissue_finding(c, policy)) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
@@ -246,6 +258,10 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
         out, Reason::no_dose_point,
         "no Beam Dose Specification Point (300A,0082), no dose reference with a final coefficient of 1 "
         "for this beam, and not exactly one dose reference with coordinates");
+    return out;
+  }
+  if (options.study.problem) {
+    set_not_checked(out, options.study.problem->reason, options.study.problem->sentence);
     return out;
   }
   out.calculation = engine::compute_beam_dose(plan, *beam, rb, *point, library, options.engine);
@@ -369,11 +385,12 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.beamdata_root = library.root.string();
   check.beamdata_sha256 = library.sha256_hex;
   check.options = options;
+  check.options.engine.equivalent_depth_switch_percent = options.policy.patient_plan_equivalent_depth_switch_percent;
 
   for (const plan::FractionGroup& group : plan.fraction_groups) {
     const bool beam_level = group.beam_dose_meaning != plan::BeamDoseMeaning::fraction_level;
     for (const plan::ReferencedBeam& rb : group.beams) {
-      BeamCheck beam = check_one_beam(plan, group, rb, library, options);
+      BeamCheck beam = check_one_beam(plan, group, rb, library, check.options);
       if (beam.calculation && !beam_level) {
         judge_beam(beam, options.policy);
         if (!beam.calculation->problem) {
@@ -408,7 +425,7 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   for (BeamCheck& beam : check.beams) {
     if (pending(beam)) judge_beam(beam, options.policy);
   }
-  total_dose_references(plan, library, options, check);
+  total_dose_references(plan, library, check.options, check);
   judge_plan(check);
   return check;
 }

@@ -50,6 +50,14 @@ std::string_view reason_code(Reason reason) {
       return "table_extrapolated";
     case Reason::inconsistent_depth:
       return "inconsistent_depth";
+    case Reason::study_unusable:
+      return "study_unusable";
+    case Reason::patient_geometry_unusable:
+      return "patient_geometry_unusable";
+    case Reason::missing_tissue:
+      return "missing_tissue";
+    case Reason::plan_geometry_differs_from_ct:
+      return "plan_geometry_differs_from_ct";
     case Reason::nothing_to_check:
       return "nothing_to_check";
   }

@@ -67,7 +67,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   TRY_ASSIGN(resolved, resolve_beam(plan, beam, referenced, library, r));  // 1. resolve
   TRY(locate_point(beam, resolved, point, r));                             // 2. geometry
   TRY(open_field(beam, r));                                                //    (control point 0's opening)
-  TRY(choose_depth(beam, referenced, point, options.depth, r));            // 3. depth
+  TRY(choose_depth(beam, referenced, point, options, r));                  // 3. depth (plan or CT)
   choose_method(resolved, options.method, r);                              // 7. formula: the formalism
   if (!r.ssd_mm && r.method == Method::pdd)
     r.approximations.push_back({ApproximationKind::ssd_from_spd_minus_depth});
@@ -76,7 +76,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   TRY_ASSIGN(split, split_meterset(beam, resolved.meterset_mu));  // 8. segments: the parts
   r.features.modulated = split.moving || split.parts.size() > 1;
   if (r.features.modulated) r.outline = beam_outline(beam, r.aperture, true);
-  TRY(compute_segments(beam, point, resolved, split, r));  // 4-7 per part, summed
+  TRY(compute_segments(beam, point, resolved, split, options.patient, r));  // 4-7 per part, summed
 
   r.inputs = r.segments.front().inputs;
   r.dose = r.segments.front().dose;

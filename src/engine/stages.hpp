@@ -18,6 +18,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/beam_dose.hpp>
 #include <countersign/engine/problem.hpp>
+#include <countersign/engine/patient_geometry.hpp>
 #include <countersign/geometry/aperture.hpp>
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
@@ -62,7 +63,24 @@ struct ResolvedBeam {
 // a flat surface; a bolus needs the plan's depth. Adds the approximations it makes.
 // Seam: a depth along the ray through a CT volume would be one more DepthSource chosen here.
 [[nodiscard]] StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
-                                             const DosePoint& point, DepthChoice choice, BeamDose& r);
+                                             const DosePoint& point, const EngineOptions& options, BeamDose& r);
+
+// With a CT (ct_depth.cpp): the ray from a part's source to the point through the CT, the SSD along
+// its central axis and the missing tissue of its jaw opening at the point's depth.
+[[nodiscard]] StageResult<CtRay> trace_ct(const patient::PatientModel& model, const geometry::BeamFrame& frame,
+                                          const plan::PointMm& point_mm, const geometry::JawOpening& jaws,
+                                          std::optional<int> control_point);
+
+// With a CT: control point 0's depth from the CT (r.patient, r.depth); the method says which depth.
+[[nodiscard]] StageResult<void> choose_ct_depth(const patient::PatientModel& model, Heterogeneity method,
+                                                const DosePoint& point, BeamDose& r);
+
+// The depth a part's dose is looked up at, and its geometric depth (homogeneous dose).
+struct PartDepths {
+  double dose_depth_mm = 0.0;
+  double geometric_depth_mm = 0.0;
+};
+[[nodiscard]] PartDepths ct_part_depths(const CtRay& ray, Heterogeneity method);
 
 // The SSD of control point 0: the plan's, else SPD - depth (the surface the depth implies).
 [[nodiscard]] double surface_distance_mm(const BeamDose& r);
@@ -144,9 +162,10 @@ struct MetersetSplit {
 
 // Every part through apertures, scatter, primary and formula; their doses summed into r (sets
 // r.segments and r.computed_dose_gy). A modulated beam with leaves needs the MLC transmission.
+// With a CT (model not null) each part's depth comes from its own ray through the CT.
 [[nodiscard]] StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
                                                  const ResolvedBeam& resolved, const MetersetSplit& split,
-                                                 BeamDose& r);
+                                                 const patient::PatientModel* model, BeamDose& r);
 
 // Whether nothing that shapes or aims the beam changes between two control points.
 [[nodiscard]] bool same_geometry(const plan::ControlPoint& a, const plan::ControlPoint& b);

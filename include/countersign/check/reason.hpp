@@ -36,6 +36,10 @@ enum class Reason {
   point_near_field_edge,
   table_extrapolated,
   inconsistent_depth,  // the plan's depth and SPD - SSD disagree beyond the policy limit
+  study_unusable,             // the CT / structure set could not be used (never a fall-back to water)
+  patient_geometry_unusable,  // the ray through the CT: point outside the body or CT, ray leaves the CT, ...
+  missing_tissue,             // too much of the field at the point's depth lies outside the body
+  plan_geometry_differs_from_ct,  // outside tolerance: the plan's SSD or depth disagrees with the CT
   // Plan level.
   nothing_to_check,  // no beam of the plan could be judged (all skipped)
 };
