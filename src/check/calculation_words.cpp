@@ -108,6 +108,11 @@ std::optional<Finding> accessory_finding(const CalculationProblem& p) {
                      fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}",
                                  p.plan_text, p.library_beam)};
     case ProblemKind::bolus_without_plan_depth:
+      if (p.plan_text == "ct") {
+        return Finding{Reason::unsupported_accessory,
+                       "the beam has a bolus (300C,00B0): the CT's body outline need not include it, so the "
+                       "depth from the CT cannot be used"};
+      }
       return Finding{
           Reason::unsupported_accessory,
           "the beam has a bolus (300C,00B0) and the plan gives no depth for the dose point to include it"};
@@ -156,8 +161,9 @@ Finding geometry_finding(const CalculationProblem& p) {
               "the ray through the CT cannot be used" + at_part(p) + ": " + p.library_detail};
     case ProblemKind::batho_not_computable:
       return {Reason::missing_beam_data,
-              fmt::format("beam {}: the TMR table gives no positive ratio at a layer depth the Batho factor needs",
-                          p.library_beam)};
+              fmt::format(
+                  "beam {}: the TMR table gives no positive ratio at a layer depth the Batho factor needs",
+                  p.library_beam)};
     case ProblemKind::final_weight_unusable:
       return {Reason::missing_plan_data,
               "Final Cumulative Meterset Weight (300A,010E) is absent or not positive"};
@@ -204,9 +210,10 @@ std::string depth_description(const engine::DepthUsed& depth) {
       break;
   }
   if (depth.equivalent_by_policy) {
-    return fmt::format("the plan's equivalent (radiological) depth, {}, from the plan, not independent: it "
-                       "differs from the plan's depth beyond the policy limit",
-                       engine::to_code(depth.source));
+    return fmt::format(
+        "the plan's equivalent (radiological) depth, {}, from the plan, not independent: it "
+        "differs from the plan's depth beyond the policy limit",
+        engine::to_code(depth.source));
   }
   if (depth.kind == engine::DepthChoice::equivalent) {
     return fmt::format("the plan's equivalent (radiological) depth, {}, as asked",

@@ -93,7 +93,8 @@ FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& polic
 
 Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
   // With a CT, the densities on the ray decide (not a plan value).
-  if (c.patient) return ray_is_heterogeneous(c.patient->ray, policy) ? Medium::heterogeneous : Medium::homogeneous;
+  if (c.patient)
+    return ray_is_heterogeneous(c.patient->ray, policy) ? Medium::heterogeneous : Medium::homogeneous;
   const auto& geometric = c.depth.plan_depth_mm;
   const auto& equivalent = c.depth.plan_equivalent_depth_mm;
   if (!geometric || !equivalent || *geometric <= 0.0) return Medium::homogeneous;
@@ -138,13 +139,15 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
                                c.depth.source != engine::DepthSource::derived_from_dose_point_ssd;
   if (plan_depth_used && c.depth.spd_minus_ssd_mm &&
       c.point.off_axis_mm <= util::cm_to_mm(policy.depth_check_max_off_axis_cm)) {
-    const double discrepancy_mm = c.depth.depth_mm - *c.depth.spd_minus_ssd_mm;
+    // The geometric depth (not the plan's equivalent depth when that is used instead).
+    const double geometric_mm = c.depth.geometric_depth_mm.value_or(c.depth.depth_mm);
+    const double discrepancy_mm = geometric_mm - *c.depth.spd_minus_ssd_mm;
     if (std::abs(discrepancy_mm) > util::cm_to_mm(policy.max_depth_discrepancy_cm)) {
       return Finding{
           Reason::inconsistent_depth,
           fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
                       "{:.1f} mm): check the SSD and the dose point",
-                      c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
+                      geometric_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
                       util::cm_to_mm(policy.max_depth_discrepancy_cm))};
     }
   }
@@ -385,7 +388,8 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.beamdata_root = library.root.string();
   check.beamdata_sha256 = library.sha256_hex;
   check.options = options;
-  check.options.engine.equivalent_depth_switch_percent = options.policy.patient_plan_equivalent_depth_switch_percent;
+  check.options.engine.equivalent_depth_switch_percent =
+      options.policy.patient_plan_equivalent_depth_switch_percent;
 
   for (const plan::FractionGroup& group : plan.fraction_groups) {
     const bool beam_level = group.beam_dose_meaning != plan::BeamDoseMeaning::fraction_level;

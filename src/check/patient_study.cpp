@@ -26,8 +26,8 @@ PatientStudy PatientStudy::from(study::Result<study::Study> loaded, const beamda
   PatientStudy out;
   out.used_.present = true;
   if (!loaded) {
-    out.used_.problem = Finding{Reason::study_unusable, "the patient's CT study cannot be used: " +
-                                                            loaded.problem().message()};
+    out.used_.problem = Finding{Reason::study_unusable,
+                                "the patient's CT study cannot be used: " + loaded.problem().message()};
     return out;
   }
   out.study_ = std::make_unique<study::Study>(std::move(loaded).value());
@@ -39,9 +39,10 @@ PatientStudy PatientStudy::from(study::Result<study::Study> loaded, const beamda
   if (table == nullptr || table->hu.empty()) {
     out.used_.problem = Finding{
         Reason::study_unusable,
-        fmt::format("the beam-data library has no CT-number-to-density table (ct/default.csv, or ct/{}.csv for "
-                    "Station Name (0008,1010) \"{}\")",
-                    s.station_name, s.station_name)};
+        fmt::format(
+            "the beam-data library has no CT-number-to-density table (ct/default.csv, or ct/{}.csv for "
+            "Station Name (0008,1010) \"{}\")",
+            s.station_name, s.station_name)};
     return out;
   }
   out.used_.density_table = table->file;
@@ -71,15 +72,17 @@ bool ray_is_heterogeneous(const engine::CtRay& ray, const TolerancePolicy& polic
 
 std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (!c.patient) return std::nullopt;
-  const auto check_ray = [&policy](const engine::CtRay& ray, const std::string& where) -> std::optional<Finding> {
+  const auto check_ray = [&policy](const engine::CtRay& ray,
+                                   const std::string& where) -> std::optional<Finding> {
     const double missing = ray.missing_tissue_fraction + ray.outside_ct_fraction;
     if (missing <= policy.patient_max_missing_tissue_fraction) return std::nullopt;
     return Finding{
         Reason::missing_tissue,
-        fmt::format("{:.0f} % of the field at the point's depth lies outside the body{} (policy limit {:.0f} %){}: "
-                    "the scatter of full tissue would be assumed, so the beam is not checked",
-                    100.0 * missing, ray.outside_ct_fraction > 0.0 ? " or the CT" : "",
-                    100.0 * policy.patient_max_missing_tissue_fraction, where)};
+        fmt::format(
+            "{:.0f} % of the field at the point's depth lies outside the body{} (policy limit {:.0f} %){}: "
+            "the scatter of full tissue would be assumed, so the beam is not checked",
+            100.0 * missing, ray.outside_ct_fraction > 0.0 ? " or the CT" : "",
+            100.0 * policy.patient_max_missing_tissue_fraction, where)};
   };
   if (auto f = check_ray(c.patient->ray, "")) return f;
   for (const engine::Segment& s : c.segments) {
@@ -93,15 +96,18 @@ std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c, const T
 std::optional<Finding> plan_versus_ct_finding(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (!c.patient) return std::nullopt;
   const engine::CtRay& ct = c.patient->ray;
-  const auto differs_mm = [](const char* what, double plan_mm, double ct_mm, double limit_mm) -> std::optional<Finding> {
+  const auto differs_mm = [](const char* what, double plan_mm, double ct_mm,
+                             double limit_mm) -> std::optional<Finding> {
     if (std::abs(plan_mm - ct_mm) <= limit_mm) return std::nullopt;
-    return Finding{Reason::plan_geometry_differs_from_ct,
-                   fmt::format("the plan's {} {:.1f} mm and the CT's {:.1f} mm differ by {:+.1f} mm (policy limit "
-                               "{:.1f} mm): check the SSD, the isocentre, the CT and the dose point",
-                               what, plan_mm, ct_mm, plan_mm - ct_mm, limit_mm)};
+    return Finding{
+        Reason::plan_geometry_differs_from_ct,
+        fmt::format("the plan's {} {:.1f} mm and the CT's {:.1f} mm differ by {:+.1f} mm (policy limit "
+                    "{:.1f} mm): check the SSD, the isocentre, the CT and the dose point",
+                    what, plan_mm, ct_mm, plan_mm - ct_mm, limit_mm)};
   };
   if (c.ssd_mm) {
-    if (auto f = differs_mm("SSD (300A,0130)", *c.ssd_mm, ct.ssd_mm, policy.patient_max_ssd_difference_mm)) return f;
+    if (auto f = differs_mm("SSD (300A,0130)", *c.ssd_mm, ct.ssd_mm, policy.patient_max_ssd_difference_mm))
+      return f;
   }
   if (c.depth.plan_dose_point_ssd_mm) {
     if (auto f = differs_mm("Beam Dose Point SSD (300A,008A)", *c.depth.plan_dose_point_ssd_mm,
@@ -117,12 +123,13 @@ std::optional<Finding> plan_versus_ct_finding(const engine::BeamDose& c, const T
     const double plan_mm = *c.depth.plan_equivalent_depth_mm;
     const double percent = 100.0 * (plan_mm - ct.radiological_depth_mm) / ct.radiological_depth_mm;
     if (std::abs(percent) > policy.patient_max_radiological_depth_difference_percent) {
-      return Finding{Reason::plan_geometry_differs_from_ct,
-                     fmt::format("the plan's Beam Dose Point Equivalent Depth (300A,0089) {:.1f} mm and the CT's "
-                                 "radiological depth {:.1f} mm differ by {:+.1f} % (policy limit {:.1f} %): check "
-                                 "the CT, its density table and any density override",
-                                 plan_mm, ct.radiological_depth_mm, percent,
-                                 policy.patient_max_radiological_depth_difference_percent)};
+      return Finding{
+          Reason::plan_geometry_differs_from_ct,
+          fmt::format("the plan's Beam Dose Point Equivalent Depth (300A,0089) {:.1f} mm and the CT's "
+                      "radiological depth {:.1f} mm differ by {:+.1f} % (policy limit {:.1f} %): check "
+                      "the CT, its density table and any density override",
+                      plan_mm, ct.radiological_depth_mm, percent,
+                      policy.patient_max_radiological_depth_difference_percent)};
     }
   }
   return std::nullopt;

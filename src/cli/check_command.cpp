@@ -98,8 +98,8 @@ struct CheckRun {
   Io& io;
   check::CheckOptions check_options;
   beamdata::Library library;
-  std::optional<fs::path> chromium;     // set when a PDF is asked for
-  std::optional<ResultSender> sender;   // set with --send-to
+  std::optional<fs::path> chromium;    // set when a PDF is asked for
+  std::optional<ResultSender> sender;  // set with --send-to
   std::vector<MadeObject> dicom_objects;
   std::size_t plan_count = 0;
   ExitCode exit_code = ExitCode::all_within_tolerance;
@@ -135,13 +135,14 @@ void write_records(CheckRun& run, const check::PlanCheck& result, const fs::path
   };
   const report::HtmlOptions record_options;
   if (!run.options.html.empty()) {
-    auto written = report::write_html(result, record_file(run.options.html, file, run.plan_count), record_options);
+    auto written =
+        report::write_html(result, record_file(run.options.html, file, run.plan_count), record_options);
     if (!written) note(written.error(), "");
   }
   std::optional<fs::path> pdf;
   if (run.chromium) {
-    auto written = report::write_pdf(result, record_file(run.options.pdf, file, run.plan_count), *run.chromium,
-                                     record_options);
+    auto written = report::write_pdf(result, record_file(run.options.pdf, file, run.plan_count),
+                                     *run.chromium, record_options);
     if (written) pdf = written.value();
     if (!written) note(written.error(), "");
   }
@@ -163,11 +164,13 @@ check::PatientStudy study_for_plan(const CheckRun& run, const plan::Plan& plan) 
         "the plan names no structure set (Referenced Structure Set Sequence (300C,0060)): homogeneous water "
         "with the plan's depths");
   }
-  const bool found = std::any_of(run.study_index.files.begin(), run.study_index.files.end(),
-                                 [&refs](const dicom::StudyFile& f) { return f.sop_instance_uid == refs.front(); });
+  const bool found =
+      std::any_of(run.study_index.files.begin(), run.study_index.files.end(),
+                  [&refs](const dicom::StudyFile& f) { return f.sop_instance_uid == refs.front(); });
   if (!found && run.options.study.empty()) {
     return check::PatientStudy::none(
-        "the plan's structure set and CT were not among the files given (--study DIR names them): homogeneous "
+        "the plan's structure set and CT were not among the files given (--study DIR names them): "
+        "homogeneous "
         "water with the plan's depths");
   }
   std::vector<fs::path> paths;
@@ -175,8 +178,8 @@ check::PatientStudy study_for_plan(const CheckRun& run, const plan::Plan& plan) 
     for (const auto& p : run.options.study) paths.emplace_back(p);
     return check::PatientStudy::from(dicom::load_study_for_plan(plan, paths), run.library);
   }
-  return check::PatientStudy::from(dicom::load_study(run.study_index, refs.front(), plan.frame_of_reference_uid),
-                                   run.library);
+  return check::PatientStudy::from(
+      dicom::load_study(run.study_index, refs.front(), plan.frame_of_reference_uid), run.library);
 }
 
 // Reads and checks one file; a bad file, or a defect met while checking it, does not stop the others.
@@ -187,7 +190,8 @@ void check_file(CheckRun& run, const PlanFileCandidate& candidate) {
   if (!plan && is_skipped_non_plan(candidate, plan.error())) {
     // Not a plan file (the rule the watcher uses): listed, not an error.
     const std::string message = plan.error().message();
-    if (!run.options.json) run.io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
+    if (!run.options.json)
+      run.io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
     run.skipped.push_back(message);
     return;
   }
@@ -268,14 +272,14 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     for (const auto& p : options.study.empty() ? options.paths : options.study) study_paths.emplace_back(p);
     run.study_index = dicom::index_study_files(study_paths);
     for (const dicom::StudyFile& f : run.study_index.files) {
-      if (f.sop_class_uid == dicom::ct_image_storage_uid || f.sop_class_uid == dicom::rt_structure_set_storage_uid)
+      if (f.sop_class_uid == dicom::ct_image_storage_uid ||
+          f.sop_class_uid == dicom::rt_structure_set_storage_uid)
         run.study_files.insert(f.path.lexically_normal());
     }
   }
-  run.plan_count = static_cast<std::size_t>(
-      std::count_if(candidates.files.begin(), candidates.files.end(), [&run](const PlanFileCandidate& c) {
-        return run.study_files.count(c.file.lexically_normal()) == 0;
-      }));
+  run.plan_count = static_cast<std::size_t>(std::count_if(
+      candidates.files.begin(), candidates.files.end(),
+      [&run](const PlanFileCandidate& c) { return run.study_files.count(c.file.lexically_normal()) == 0; }));
   // A progress line only when a person is watching: both streams on a terminal, several plans.
   const bool show_progress = io.out_is_terminal && io.err_is_terminal && run.plan_count > 1 && !options.json;
   std::size_t done = 0;
@@ -312,9 +316,10 @@ void add_check_command(CLI::App& app, CommandContext& context) {
                    "whatever its name (hidden and temporary files are passed over, as by `watch`)")
       ->required();
   add_check_flags(*command, options->flags);
-  command->add_option("--study", options->study,
-                      "folder(s) or files with the plan's CT series and RT Structure Set (default: the plans' own "
-                      "paths, so `check STUDY_FOLDER/` finds them); depths and SSD then come from the CT");
+  command->add_option(
+      "--study", options->study,
+      "folder(s) or files with the plan's CT series and RT Structure Set (default: the plans' own "
+      "paths, so `check STUDY_FOLDER/` finds them); depths and SSD then come from the CT");
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

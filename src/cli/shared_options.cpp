@@ -6,7 +6,6 @@
 #include <algorithm>
 #include <map>
 
-
 namespace countersign::cli {
 
 namespace fs = std::filesystem;
@@ -88,9 +87,10 @@ void add_check_flags(CLI::App& command, CheckFlags& flags) {
                                                                    {"epl", engine::Heterogeneity::epl},
                                                                    {"batho", engine::Heterogeneity::batho}};
   command
-      .add_option("--heterogeneity", flags.heterogeneity,
-                  "with a CT study: epl (radiological depth in the TMR/PDD look-ups; the default), batho (Batho "
-                  "power-law factor on the dose at the geometric depth) or off (water at the CT's geometric depth)")
+      .add_option(
+          "--heterogeneity", flags.heterogeneity,
+          "with a CT study: epl (radiological depth in the TMR/PDD look-ups; the default), batho (Batho "
+          "power-law factor on the dose at the geometric depth) or off (water at the CT's geometric depth)")
       ->transform(CLI::CheckedTransformer(heterogeneity, CLI::ignore_case).description(""))
       ->option_text("off|epl|batho");
 }

@@ -7,6 +7,7 @@
 #include <countersign/patient/patient_model.hpp>
 #include <countersign/util/units.hpp>
 
+#include <algorithm>
 #include <cmath>
 
 namespace countersign::engine::stages {
@@ -23,6 +24,32 @@ CalculationProblem study_problem(const study::Problem& p, std::optional<int> con
 }
 
 plan::PointMm to_point(const Eigen::Vector3d& v) { return {v.x(), v.y(), v.z()}; }
+
+bool inside_body(const study::Study& s, const Eigen::Vector3d& p) {
+  const auto voxel = s.ct.grid.voxel_at({p.x(), p.y(), p.z()});
+  return voxel && s.body.mask.contains((*voxel)[0], (*voxel)[1], (*voxel)[2]);
+}
+
+// The body outline in the plane at spd_mm (see PatientDose::body_outline_iso_mm).
+std::vector<std::array<double, 2>> body_outline_in_plane(const patient::PatientModel& model,
+                                                         const geometry::BeamFrame& frame, double spd_mm,
+                                                         double reach_mm) {
+  constexpr int directions = 72;
+  constexpr double step_mm = 1.0;
+  const patient::FieldPlane plane = patient::field_plane(frame, spd_mm);
+  std::vector<std::array<double, 2>> outline;
+  if (!inside_body(model.study(), plane.centre_mm)) return outline;
+  const double to_iso = frame.sad_mm() / spd_mm;
+  for (int k = 0; k < directions; ++k) {
+    const double angle = 2.0 * 3.14159265358979323846 * k / directions;
+    const Eigen::Vector3d direction = std::cos(angle) * plane.u_axis + std::sin(angle) * plane.v_axis;
+    double r = 0.0;
+    while (r < reach_mm && inside_body(model.study(), plane.centre_mm + (r + step_mm) * direction))
+      r += step_mm;
+    outline.push_back({r * std::cos(angle) * to_iso, r * std::sin(angle) * to_iso});
+  }
+  return outline;
+}
 
 }  // namespace
 
@@ -50,8 +77,8 @@ StageResult<CtRay> trace_ct(const patient::PatientModel& model, const geometry::
   // The jaw opening projected to the plane through the point, perpendicular to the central axis.
   const double spd_mm = frame.locate(point_mm).spd_mm;
   const double scale = spd_mm / frame.sad_mm();
-  const auto field = patient::rectangle_mm(jaws.x1_mm * scale, jaws.x2_mm * scale, jaws.y1_mm * scale,
-                                           jaws.y2_mm * scale);
+  const auto field =
+      patient::rectangle_mm(jaws.x1_mm * scale, jaws.x2_mm * scale, jaws.y1_mm * scale, jaws.y2_mm * scale);
   const patient::MissingTissue missing = model.missing_tissue(patient::field_plane(frame, spd_mm), field);
   ray.missing_tissue_fraction = missing.outside_body_fraction;
   ray.outside_ct_fraction = missing.outside_ct_fraction;
@@ -74,6 +101,12 @@ StageResult<void> choose_ct_depth(const patient::PatientModel& model, Heterogene
   r.depth.depth_mm = depths.dose_depth_mm;
   r.depth.source = method == Heterogeneity::epl ? DepthSource::ct_radiological : DepthSource::ct_geometric;
   if (method != Heterogeneity::off) r.depth.geometric_depth_mm = depths.geometric_depth_mm;
+  const geometry::JawOpening& j = r.aperture.jaws();
+  const double reach_mm = 1.5 *
+                          std::max({std::abs(j.x1_mm), std::abs(j.x2_mm), std::abs(j.y1_mm),
+                                    std::abs(j.y2_mm), r.point.off_axis_mm, 50.0}) *
+                          r.point.spd_mm / r.sad_mm;
+  patient.body_outline_iso_mm = body_outline_in_plane(model, frame0, r.point.spd_mm, reach_mm);
   r.patient = std::move(patient);
   return {};
 }

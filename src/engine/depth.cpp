@@ -27,7 +27,8 @@ void prefer_plan_equivalent_depth(const EngineOptions& options, DepthUsed& depth
     depth.geometric_depth_mm = depth.plan_depth_mm;
     return;
   }
-  if (depth.source != DepthSource::referenced_beam_item && depth.source != DepthSource::fraction_verification_item &&
+  if (depth.source != DepthSource::referenced_beam_item &&
+      depth.source != DepthSource::fraction_verification_item &&
       depth.source != DepthSource::beam_dose_reference_item)
     return;
   const double difference_percent =
@@ -78,9 +79,14 @@ StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBea
     return problem;
   }
   if (!beam.boli.empty()) {
-    // A bolus on the CT is part of the body outline only when the structure set includes it: the
-    // plan's depth is needed either way.
-    if (derived(depth.source) || options.patient != nullptr) return problem_of(ProblemKind::bolus_without_plan_depth);
+    // A bolus is part of the CT's body outline only when the structure set includes it, which is not
+    // known here: the CT's depth is not used. Without a CT the plan's own depth must include it.
+    if (options.patient != nullptr) {
+      CalculationProblem problem = problem_of(ProblemKind::bolus_without_plan_depth);
+      problem.plan_text = "ct";
+      return problem;
+    }
+    if (derived(depth.source)) return problem_of(ProblemKind::bolus_without_plan_depth);
     r.approximations.push_back({ApproximationKind::bolus_in_plan_depth});
   }
   if (derived(depth.source)) r.approximations.push_back({ApproximationKind::derived_depth});

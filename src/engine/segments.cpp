@@ -93,15 +93,17 @@ StageResult<void> apply_batho(const beamdata::BeamData& data, const PointDose& h
 }
 
 StageResult<PartDepths> part_depths(const plan::ControlPoint& cp, const geometry::BeamFrame& frame,
-                                    const DosePoint& point, const geometry::Aperture& aperture, double ssd0_mm,
-                                    const patient::PatientModel* model, const BeamDose& r, Segment& s) {
+                                    const DosePoint& point, const geometry::Aperture& aperture,
+                                    double ssd0_mm, const patient::PatientModel* model, const BeamDose& r,
+                                    Segment& s) {
   if (r.patient) {
     const geometry::BeamFrame frame0(r.patient_position.value_or(geometry::PatientPosition::hfs), r.angles,
                                      r.isocenter_mm, r.sad_mm);
     const bool same_ray = (frame.source_in_patient_mm() - frame0.source_in_patient_mm()).norm() < 1e-6 &&
                           same_jaws(aperture.jaws(), r.aperture.jaws());
     if (!same_ray) {
-      TRY_ASSIGN(s.ct, trace_ct(util::checked(model), frame, point.point_mm, aperture.jaws(), s.from_control_point));
+      TRY_ASSIGN(
+          s.ct, trace_ct(util::checked(model), frame, point.point_mm, aperture.jaws(), s.from_control_point));
     } else {
       s.ct = r.patient->ray;
     }
@@ -169,7 +171,8 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
     const PointDose homogeneous =
         compute_point_dose(*resolved.data, formula_inputs(r, resolved, water, scatter, path));
     s.homogeneous_dose_cgy = homogeneous.dose_cgy;
-    if (r.patient && r.patient->method == Heterogeneity::batho) TRY(apply_batho(*resolved.data, homogeneous, s));
+    if (r.patient && r.patient->method == Heterogeneity::batho)
+      TRY(apply_batho(*resolved.data, homogeneous, s));
   }
   return s;
 }

@@ -17,8 +17,8 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/beam_dose.hpp>
-#include <countersign/engine/problem.hpp>
 #include <countersign/engine/patient_geometry.hpp>
+#include <countersign/engine/problem.hpp>
 #include <countersign/geometry/aperture.hpp>
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
@@ -63,13 +63,14 @@ struct ResolvedBeam {
 // a flat surface; a bolus needs the plan's depth. Adds the approximations it makes.
 // Seam: a depth along the ray through a CT volume would be one more DepthSource chosen here.
 [[nodiscard]] StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
-                                             const DosePoint& point, const EngineOptions& options, BeamDose& r);
+                                             const DosePoint& point, const EngineOptions& options,
+                                             BeamDose& r);
 
 // With a CT (ct_depth.cpp): the ray from a part's source to the point through the CT, the SSD along
 // its central axis and the missing tissue of its jaw opening at the point's depth.
-[[nodiscard]] StageResult<CtRay> trace_ct(const patient::PatientModel& model, const geometry::BeamFrame& frame,
-                                          const plan::PointMm& point_mm, const geometry::JawOpening& jaws,
-                                          std::optional<int> control_point);
+[[nodiscard]] StageResult<CtRay> trace_ct(const patient::PatientModel& model,
+                                          const geometry::BeamFrame& frame, const plan::PointMm& point_mm,
+                                          const geometry::JawOpening& jaws, std::optional<int> control_point);
 
 // With a CT: control point 0's depth from the CT (r.patient, r.depth); the method says which depth.
 [[nodiscard]] StageResult<void> choose_ct_depth(const patient::PatientModel& model, Heterogeneity method,

@@ -51,13 +51,15 @@ void write_study_line(std::ostream& out, const check::StudyUsed& study) {
 void write_medium_lines(std::ostream& out, const check::BeamCheck& b) {
   if (!b.calculation || !b.calculation->dose_computed) return;
   const engine::BeamDose& c = *b.calculation;
-  out << fmt::format("  beam {} {}: medium: {}; depth {}\n", b.beam_number, shown(b.beam_name), b.words.medium,
-                     b.words.depth_description);
+  out << fmt::format("  beam {} {}: medium: {}; depth {}\n", b.beam_number, shown(b.beam_name),
+                     b.words.medium, b.words.depth_description);
   if (c.patient) {
     const engine::CtRay& ray = c.patient->ray;
     out << fmt::format(
-        "    CT: SSD {:.1f} cm (plan {}), point SSD {:.1f} cm (plan {}), depth {:.1f} cm (plan {}), radiological "
-        "depth {:.1f} cm (plan equivalent {}), entry ({:.1f}, {:.1f}, {:.1f}) mm, field outside the body {:.0f} %, "
+        "    CT: SSD {:.1f} cm (plan {}), point SSD {:.1f} cm (plan {}), depth {:.1f} cm (plan {}), "
+        "radiological "
+        "depth {:.1f} cm (plan equivalent {}), entry ({:.1f}, {:.1f}, {:.1f}) mm, field outside the body "
+        "{:.0f} %, "
         "heterogeneity {}\n",
         util::mm_to_cm(ray.ssd_mm), cm(c.ssd_mm), util::mm_to_cm(ray.source_to_entry_mm),
         cm(c.depth.plan_dose_point_ssd_mm), util::mm_to_cm(ray.depth_mm), cm(c.depth.plan_depth_mm),
@@ -66,8 +68,9 @@ void write_medium_lines(std::ostream& out, const check::BeamCheck& b) {
         engine::to_code(c.patient->method));
   }
   if (c.homogeneous_dose_gy) {
-    out << fmt::format("    homogeneous water at the geometric depth: {:.4f} Gy (beside the {:.4f} Gy used)\n",
-                       *c.homogeneous_dose_gy, c.computed_dose_gy);
+    out << fmt::format(
+        "    homogeneous water at the geometric depth: {:.4f} Gy (beside the {:.4f} Gy used)\n",
+        *c.homogeneous_dose_gy, c.computed_dose_gy);
   }
 }
 

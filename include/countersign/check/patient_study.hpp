@@ -22,13 +22,14 @@ namespace countersign::check {
 
 // What a check says about the study it used (JSON `patient`, text, record).
 struct StudyUsed {
-  bool present = false;             // a study was given to the check (loaded or not)
-  std::optional<Finding> problem;   // it could not be used: every beam is not checked (study_unusable)
+  bool present = false;            // a study was given to the check (loaded or not)
+  std::optional<Finding> problem;  // it could not be used: every beam is not checked (study_unusable)
   std::string ct_series_uid;
   std::string structure_set_uid;
-  std::string body_source;          // "rtstruct_external" | "ct_threshold"
-  std::string density_table;        // the library's ct/*.csv used
-  std::string note;                 // why no study was used, when none was (said in every output)
+  std::string body_source;    // "rtstruct_external" | "ct_threshold"
+  std::string density_table;  // the library's ct/*.csv used
+  // Why no study was used, when none was (said in every output).
+  std::string note = "no CT study was given: homogeneous water with the plan's depths";
 };
 
 // A loaded study and its patient model (owns both; must outlive the checks that use it).
@@ -58,7 +59,8 @@ void use_study(CheckOptions& options, const PatientStudy& study);
 [[nodiscard]] bool ray_is_heterogeneous(const engine::CtRay& ray, const TolerancePolicy& policy);
 
 // Missing tissue above the policy fraction: not checked (in any part).
-[[nodiscard]] std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c, const TolerancePolicy& policy);
+[[nodiscard]] std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c,
+                                                            const TolerancePolicy& policy);
 
 // The plan's SSD, dose point SSD, depth and equivalent depth against the CT's (control point 0);
 // the first beyond the policy limits.

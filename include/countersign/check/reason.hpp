@@ -35,7 +35,7 @@ enum class Reason {
   point_outside_field,
   point_near_field_edge,
   table_extrapolated,
-  inconsistent_depth,  // the plan's depth and SPD - SSD disagree beyond the policy limit
+  inconsistent_depth,         // the plan's depth and SPD - SSD disagree beyond the policy limit
   study_unusable,             // the CT / structure set could not be used (never a fall-back to water)
   patient_geometry_unusable,  // the ray through the CT: point outside the body or CT, ray leaves the CT, ...
   missing_tissue,             // too much of the field at the point's depth lies outside the body

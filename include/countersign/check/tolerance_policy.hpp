@@ -55,9 +55,10 @@ struct TolerancePolicy {
 
   // ---- [patient]: the CT and the plan's own patient geometry (issue 14, issue 12 item 5) ----------
   // Plan versus CT beyond these is outside tolerance (reason plan_geometry_differs_from_ct).
-  double patient_max_ssd_difference_mm = 5.0;                    // SSD (300A,0130), Beam Dose Point SSD (300A,008A)
-  double patient_max_depth_difference_mm = 5.0;                  // Beam Dose Point Depth (300A,0088)
-  double patient_max_radiological_depth_difference_percent = 3.0;  // Beam Dose Point Equivalent Depth (300A,0089)
+  double patient_max_ssd_difference_mm = 5.0;    // SSD (300A,0130), Beam Dose Point SSD (300A,008A)
+  double patient_max_depth_difference_mm = 5.0;  // Beam Dose Point Depth (300A,0088)
+  double patient_max_radiological_depth_difference_percent =
+      3.0;  // Beam Dose Point Equivalent Depth (300A,0089)
   // The ray is heterogeneous when it crosses at least min_path_mm of tissue whose relative electron
   // density differs from water by more than density_difference (common practice, no source).
   double patient_heterogeneous_density_difference = 0.2;

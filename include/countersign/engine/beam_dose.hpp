@@ -48,8 +48,8 @@ struct DepthUsed {
   double depth_mm = 0.0;
   DepthSource source = DepthSource::derived_spd_minus_ssd;
   DepthChoice kind = DepthChoice::planned;
-  bool chosen = false;  // a source was found (false when the calculation stopped before)
-  std::optional<double> plan_depth_mm;             // the plan's Beam Dose Point Depth for this point
+  bool chosen = false;                  // a source was found (false when the calculation stopped before)
+  std::optional<double> plan_depth_mm;  // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
   std::optional<double> plan_dose_point_ssd_mm;    // the plan's Beam Dose Point SSD (300A,008A)
   std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
@@ -96,9 +96,9 @@ struct Segment {
   bool point_in_jaws = false;
   DoseInputs inputs;
   PointDose dose;
-  std::optional<CtRay> ct;                   // with a CT: this part's ray (its own source position)
-  std::optional<double> batho_factor;        // heterogeneity batho
-  double homogeneous_dose_cgy = 0.0;         // in water at the geometric depth (equals dose without a correction)
+  std::optional<CtRay> ct;             // with a CT: this part's ray (its own source position)
+  std::optional<double> batho_factor;  // heterogeneity batho
+  double homogeneous_dose_cgy = 0.0;   // in water at the geometric depth (equals dose without a correction)
 };
 
 struct BeamDose {
@@ -124,9 +124,9 @@ struct BeamDose {
   std::optional<MethodBasis> method_basis;            // why this formalism (set once it is chosen)
   plan::Coded<plan::SetupTechnique> setup_technique;  // the patient setup's, as the plan has it
   BeamOutline outline;                                // what a drawing of the beam shows
-  DoseInputs inputs;              // static beam: the inputs of `dose`
-  PointDose dose;                 // static beam: the dose and its factors
-  std::vector<Segment> segments;  // modulated beam: each part (static beam: its one part)
+  DoseInputs inputs;                                  // static beam: the inputs of `dose`
+  PointDose dose;                                     // static beam: the dose and its factors
+  std::vector<Segment> segments;                      // modulated beam: each part (static beam: its one part)
   BeamFeatures features;
   double meterset_mu = 0.0;
   double computed_dose_gy = 0.0;
