@@ -109,6 +109,7 @@ struct CheckRun {
   std::vector<std::string> skipped;   // files in a folder that hold no RT Plan
   dicom::StudyFileIndex study_index;  // the DICOM objects among the study folders (headers only)
   std::set<fs::path> study_files;     // CT and RT Structure Set files: the patient's study, not plans
+  std::size_t study_file_count = 0;   // of them, the ones among the files to check
 
   void fail(const std::string& message, ExitCode code) {
     io.err << escape_control_characters(message) << "\n";
@@ -185,7 +186,13 @@ check::PatientStudy study_for_plan(const CheckRun& run, const plan::Plan& plan) 
 // Reads and checks one file; a bad file, or a defect met while checking it, does not stop the others.
 void check_file(CheckRun& run, const PlanFileCandidate& candidate) {
   const fs::path& file = candidate.file;
-  if (run.study_files.count(file.lexically_normal()) != 0) return;  // read as the patient's study
+  if (run.study_files.count(file.lexically_normal()) != 0) {
+    // Read as the patient's study: listed with the files that hold no plan, never an error.
+    run.skipped.push_back(file.string() +
+                          ": CT image or RT Structure Set: read as the patient's study, not a plan");
+    ++run.study_file_count;
+    return;
+  }
   auto plan = dicom::read_plan_file(file);
   if (!plan && is_skipped_non_plan(candidate, plan.error())) {
     // Not a plan file (the rule the watcher uses): listed, not an error.
@@ -224,7 +231,11 @@ void finish(CheckRun& run) {
                                                              : "bad input           ")
           << escape_control_characters(run.errors[i]) << "\n";
     }
-    if (!run.skipped.empty()) out << run.skipped.size() << " other file(s) skipped: no RT Plan in them\n";
+    if (run.skipped.size() > run.study_file_count) {
+      out << run.skipped.size() - run.study_file_count << " other file(s) skipped: no RT Plan in them\n";
+    }
+    if (run.study_file_count > 0)
+      out << run.study_file_count << " CT / structure-set file(s): the patients' studies\n";
     out << "\n";
   }
   std::vector<net::DeliveryEvent> deliveries;
