@@ -108,6 +108,11 @@ std::optional<Finding> accessory_finding(const CalculationProblem& p) {
                      fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}",
                                  p.plan_text, p.library_beam)};
     case ProblemKind::bolus_without_plan_depth:
+      if (p.plan_text == "ct") {
+        return Finding{Reason::unsupported_accessory,
+                       "the beam has a bolus (300C,00B0): the CT's body outline need not include it, so the "
+                       "depth from the CT cannot be used"};
+      }
       return Finding{
           Reason::unsupported_accessory,
           "the beam has a bolus (300C,00B0) and the plan gives no depth for the dose point to include it"};
@@ -148,6 +153,17 @@ Finding geometry_finding(const CalculationProblem& p) {
       return {Reason::unsupported_geometry,
               fmt::format("the depth of the dose point is {:.1f} mm: the point is not inside the patient",
                           p.plan_value.value_or(0.0))};
+    case ProblemKind::patient_geometry_unusable:
+      return {p.plan_text == "point_outside_body" || p.plan_text == "point_outside_ct" ||
+                      p.plan_text == "ray_leaves_ct_inside_body" || p.plan_text == "central_axis_misses_body"
+                  ? Reason::patient_geometry_unusable
+                  : Reason::study_unusable,
+              "the ray through the CT cannot be used" + at_part(p) + ": " + p.library_detail};
+    case ProblemKind::batho_not_computable:
+      return {Reason::missing_beam_data,
+              fmt::format(
+                  "beam {}: the TMR table gives no positive ratio at a layer depth the Batho factor needs",
+                  p.library_beam)};
     case ProblemKind::final_weight_unusable:
       return {Reason::missing_plan_data,
               "Final Cumulative Meterset Weight (300A,010E) is absent or not positive"};
@@ -184,6 +200,11 @@ Finding finding_for(const CalculationProblem& problem) {
 std::string depth_description(const engine::DepthUsed& depth) {
   if (!depth.chosen) return {};
   switch (depth.source) {
+    case engine::DepthSource::ct_geometric:
+      return "from the CT: geometric depth along the ray from the source, body surface to the point";
+    case engine::DepthSource::ct_radiological:
+      return "from the CT: radiological depth along the ray from the source (lengths times relative electron "
+             "density, body surface to the point)";
     case engine::DepthSource::derived_from_dose_point_ssd:
       return "derived: source-to-point distance along the ray minus the plan's Beam Dose Point SSD "
              "(300A,008A)";
@@ -192,6 +213,12 @@ std::string depth_description(const engine::DepthUsed& depth) {
              "axis";
     default:
       break;
+  }
+  if (depth.equivalent_by_policy) {
+    return fmt::format(
+        "the plan's equivalent (radiological) depth, {}, from the plan, not independent: it "
+        "differs from the plan's depth beyond the policy limit",
+        engine::to_code(depth.source));
   }
   if (depth.kind == engine::DepthChoice::equivalent) {
     return fmt::format("the plan's equivalent (radiological) depth, {}, as asked",
@@ -261,8 +288,27 @@ std::string approximation_sentence(const engine::Approximation& a, const engine:
   return {};
 }
 
+std::string medium_description(const engine::BeamDose& dose) {
+  if (dose.patient) {
+    switch (dose.patient->method) {
+      case engine::Heterogeneity::epl:
+        return "radiological depth from the CT (effective path length)";
+      case engine::Heterogeneity::batho:
+        return "Batho power-law correction from the CT, on the homogeneous dose at the CT's geometric depth";
+      case engine::Heterogeneity::off:
+        return "homogeneous water at the CT's geometric depth (heterogeneity correction off)";
+    }
+  }
+  if (dose.depth.chosen &&
+      (dose.depth.equivalent_by_policy || dose.depth.kind == engine::DepthChoice::equivalent)) {
+    return "equivalent depth from the plan (not independent), otherwise homogeneous water";
+  }
+  return "homogeneous water with the plan's depths";
+}
+
 CalculationWords describe_calculation(const engine::BeamDose& dose) {
   CalculationWords words;
+  words.medium = medium_description(dose);
   if (dose.problem) words.problem = finding_for(*dose.problem);
   words.method_reason = method_reason(dose);
   words.depth_description = depth_description(dose.depth);

@@ -95,6 +95,9 @@ FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& polic
 }
 
 Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
+  // With a CT, the densities on the ray decide (not a plan value).
+  if (c.patient)
+    return ray_is_heterogeneous(c.patient->ray, policy) ? Medium::heterogeneous : Medium::homogeneous;
   const auto& geometric = c.depth.plan_depth_mm;
   const auto& equivalent = c.depth.plan_equivalent_depth_mm;
   if (!geometric || !equivalent || *geometric <= 0.0) return Medium::homogeneous;
@@ -141,18 +144,20 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
                     "(policy limit {:.1f} cm)",
                     util::mm_to_cm(c.point.off_axis_mm), policy.wedge_max_off_axis_cm)};
   }
-  const bool plan_depth_used = c.depth.kind == engine::DepthChoice::planned &&
+  const bool plan_depth_used = !c.patient && c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&
                                c.depth.source != engine::DepthSource::derived_from_dose_point_ssd;
   if (plan_depth_used && c.depth.spd_minus_ssd_mm &&
       c.point.off_axis_mm <= util::cm_to_mm(policy.depth_check_max_off_axis_cm)) {
-    const double discrepancy_mm = c.depth.depth_mm - *c.depth.spd_minus_ssd_mm;
+    // The geometric depth (not the plan's equivalent depth when that is used instead).
+    const double geometric_mm = c.depth.geometric_depth_mm.value_or(c.depth.depth_mm);
+    const double discrepancy_mm = geometric_mm - *c.depth.spd_minus_ssd_mm;
     if (std::abs(discrepancy_mm) > util::cm_to_mm(policy.max_depth_discrepancy_cm)) {
       return Finding{
           Reason::inconsistent_depth,
           fmt::format("the plan's depth {:.1f} mm and SPD - SSD {:.1f} mm differ by {:.1f} mm (policy limit "
                       "{:.1f} mm): check the SSD and the dose point",
-                      c.depth.depth_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
+                      geometric_mm, *c.depth.spd_minus_ssd_mm, discrepancy_mm,
                       util::cm_to_mm(policy.max_depth_discrepancy_cm))};
     }
   }
@@ -183,8 +188,10 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   if (computed > 0.0 && beam.meterset_mu) beam.independent_mu = *beam.meterset_mu * planned / computed;
   beam.deviation_percent = 100.0 * (computed - planned) / planned;
   beam.calc_uncertainty_percent = c.model.uncertainty.combined_percent;
-  // The plan contradicts itself: a person must look, whatever the dose says.
-  if (auto finding = geometry_finding(c, policy)) {
+  // The plan contradicts itself, or the CT: a person must look, whatever the dose says. With a CT the
+  // plan's SSD and depths are compared with the CT's surface along the ray; without one, with each
+  // other on a flat surface.
+  if (auto finding = c.patient ? plan_versus_ct_finding(c, policy) : geometry_finding(c, policy)) {
     beam.status = Status::outside_tolerance;
     beam.reason = std::move(*finding);
     return;
@@ -195,6 +202,10 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
     return;
   }
   if (auto finding = safety_findings(c, policy)) {
+    set_not_checked(beam, finding->reason, std::move(finding->sentence));
+    return;
+  }
+  if (auto finding = missing_tissue_finding(c, policy)) {
     set_not_checked(beam, finding->reason, std::move(finding->sentence));
     return;
   }
@@ -279,6 +290,10 @@ BeamCheck check_one_beam(const plan::Plan& plan, const plan::FractionGroup& grou
         out, Reason::no_dose_point,
         "no Beam Dose Specification Point (300A,0082), no dose reference with a final coefficient of 1 "
         "for this beam, and not exactly one dose reference with coordinates");
+    return out;
+  }
+  if (options.study.problem) {
+    set_not_checked(out, options.study.problem->reason, options.study.problem->sentence);
     return out;
   }
   out.calculation = engine::compute_beam_dose(plan, *beam, rb, *point, library, options.engine);
@@ -402,11 +417,13 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   check.beamdata_root = library.root.string();
   check.beamdata_sha256 = library.sha256_hex;
   check.options = options;
+  check.options.engine.equivalent_depth_switch_percent =
+      options.policy.patient_plan_equivalent_depth_switch_percent;
 
   for (const plan::FractionGroup& group : plan.fraction_groups) {
     const bool beam_level = group.beam_dose_meaning != plan::BeamDoseMeaning::fraction_level;
     for (const plan::ReferencedBeam& rb : group.beams) {
-      BeamCheck beam = check_one_beam(plan, group, rb, library, options);
+      BeamCheck beam = check_one_beam(plan, group, rb, library, check.options);
       if (beam.calculation && !beam_level) {
         judge_beam(beam, options.policy);
         if (!beam.calculation->problem) {
@@ -441,7 +458,7 @@ PlanCheck check_plan(const plan::Plan& plan, const beamdata::Library& library, c
   for (BeamCheck& beam : check.beams) {
     if (pending(beam)) judge_beam(beam, options.policy);
   }
-  total_dose_references(plan, library, options, check);
+  total_dose_references(plan, library, check.options, check);
   judge_plan(check);
   return check;
 }

@@ -66,6 +66,14 @@ std::string_view reason_code(Reason reason) {
       return "extended_distance";
     case Reason::beam_data_inconsistent_here:
       return "beam_data_inconsistent_here";
+    case Reason::study_unusable:
+      return "study_unusable";
+    case Reason::patient_geometry_unusable:
+      return "patient_geometry_unusable";
+    case Reason::missing_tissue:
+      return "missing_tissue";
+    case Reason::plan_geometry_differs_from_ct:
+      return "plan_geometry_differs_from_ct";
     case Reason::nothing_to_check:
       return "nothing_to_check";
   }

@@ -80,6 +80,19 @@ const std::map<std::string, Key>& keys() {
        {&TolerancePolicy::max_ssd_offset_without_range_cm, 0.0, 100.0}},
       {"model_limits.formalism_max_difference_percent",
        {&TolerancePolicy::formalism_max_difference_percent, 0.1, 20.0}},
+      // [patient]
+      {"patient.max_ssd_difference_mm", {&TolerancePolicy::patient_max_ssd_difference_mm, 0.0, 100.0}},
+      {"patient.max_depth_difference_mm", {&TolerancePolicy::patient_max_depth_difference_mm, 0.0, 100.0}},
+      {"patient.max_radiological_depth_difference_percent",
+       {&TolerancePolicy::patient_max_radiological_depth_difference_percent, 0.0, 100.0}},
+      {"patient.heterogeneous_density_difference",
+       {&TolerancePolicy::patient_heterogeneous_density_difference, 0.0, 2.0}},
+      {"patient.heterogeneous_min_path_mm",
+       {&TolerancePolicy::patient_heterogeneous_min_path_mm, 0.0, 500.0}},
+      {"patient.max_missing_tissue_fraction",
+       {&TolerancePolicy::patient_max_missing_tissue_fraction, 0.0, 1.0}},
+      {"patient.plan_equivalent_depth_switch_percent",
+       {&TolerancePolicy::patient_plan_equivalent_depth_switch_percent, 0.0, 100.0}},
   };
   return all;
 }

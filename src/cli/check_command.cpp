@@ -7,6 +7,7 @@
 #include <countersign/check/check_plan.hpp>
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom/read_study.hpp>
 #include <countersign/report/check_json.hpp>
 #include <countersign/report/check_text.hpp>
 #include <countersign/report/html_pdf.hpp>
@@ -25,6 +26,7 @@
 #include <memory>
 #include <optional>
 #include <ostream>
+#include <set>
 #include <string>
 #include <vector>
 
@@ -36,6 +38,7 @@ namespace fs = std::filesystem;
 
 struct CheckCommandOptions {
   std::vector<std::string> paths;
+  std::vector<std::string> study;  // --study DIR: where the CT and structure set are (default: the paths)
   CheckFlags flags;
   bool json = false;
   std::string html;                  // --html FILE: the printable record
@@ -95,8 +98,8 @@ struct CheckRun {
   Io& io;
   check::CheckOptions check_options;
   beamdata::Library library;
-  std::optional<fs::path> chromium;     // set when a PDF is asked for
-  std::optional<ResultSender> sender;   // set with --send-to
+  std::optional<fs::path> chromium;    // set when a PDF is asked for
+  std::optional<ResultSender> sender;  // set with --send-to
   std::vector<MadeObject> dicom_objects;
   std::size_t plan_count = 0;
   ExitCode exit_code = ExitCode::all_within_tolerance;
@@ -104,6 +107,9 @@ struct CheckRun {
   std::vector<std::string> errors;    // one line per file that could not be checked
   std::vector<ExitCode> error_codes;  // and why: bad input, or an internal error
   std::vector<std::string> skipped;   // files in a folder that hold no RT Plan
+  dicom::StudyFileIndex study_index;  // the DICOM objects among the study folders (headers only)
+  std::set<fs::path> study_files;     // CT and RT Structure Set files: the patient's study, not plans
+  std::size_t study_file_count = 0;   // of them, the ones among the files to check
 
   void fail(const std::string& message, ExitCode code) {
     io.err << escape_control_characters(message) << "\n";
@@ -130,13 +136,14 @@ void write_records(CheckRun& run, const check::PlanCheck& result, const fs::path
   };
   const report::HtmlOptions record_options;
   if (!run.options.html.empty()) {
-    auto written = report::write_html(result, record_file(run.options.html, file, run.plan_count), record_options);
+    auto written =
+        report::write_html(result, record_file(run.options.html, file, run.plan_count), record_options);
     if (!written) note(written.error(), "");
   }
   std::optional<fs::path> pdf;
   if (run.chromium) {
-    auto written = report::write_pdf(result, record_file(run.options.pdf, file, run.plan_count), *run.chromium,
-                                     record_options);
+    auto written = report::write_pdf(result, record_file(run.options.pdf, file, run.plan_count),
+                                     *run.chromium, record_options);
     if (written) pdf = written.value();
     if (!written) note(written.error(), "");
   }
@@ -148,20 +155,59 @@ void write_records(CheckRun& run, const check::PlanCheck& result, const fs::path
   }
 }
 
+// The study a plan was made on, among the study files: none (water, the plan's depths) when the plan
+// names no structure set, or when it is not among the command's own paths and --study was not given;
+// otherwise the loaded study or the problem that makes every beam not checked.
+check::PatientStudy study_for_plan(const CheckRun& run, const plan::Plan& plan) {
+  const auto& refs = plan.referenced_structure_set_uids;
+  if (refs.empty()) {
+    return check::PatientStudy::none(
+        "the plan names no structure set (Referenced Structure Set Sequence (300C,0060)): homogeneous water "
+        "with the plan's depths");
+  }
+  const bool found =
+      std::any_of(run.study_index.files.begin(), run.study_index.files.end(),
+                  [&refs](const dicom::StudyFile& f) { return f.sop_instance_uid == refs.front(); });
+  if (!found && run.options.study.empty()) {
+    return check::PatientStudy::none(
+        "the plan's structure set and CT were not among the files given (--study DIR names them): "
+        "homogeneous "
+        "water with the plan's depths");
+  }
+  std::vector<fs::path> paths;
+  if (refs.size() != 1 || !found) {
+    for (const auto& p : run.options.study) paths.emplace_back(p);
+    return check::PatientStudy::from(dicom::load_study_for_plan(plan, paths), run.library);
+  }
+  return check::PatientStudy::from(
+      dicom::load_study(run.study_index, refs.front(), plan.frame_of_reference_uid), run.library);
+}
+
 // Reads and checks one file; a bad file, or a defect met while checking it, does not stop the others.
 void check_file(CheckRun& run, const PlanFileCandidate& candidate) {
   const fs::path& file = candidate.file;
+  if (run.study_files.count(file.lexically_normal()) != 0) {
+    // Read as the patient's study: listed with the files that hold no plan, never an error.
+    run.skipped.push_back(file.string() +
+                          ": CT image or RT Structure Set: read as the patient's study, not a plan");
+    ++run.study_file_count;
+    return;
+  }
   auto plan = dicom::read_plan_file(file);
   if (!plan && is_skipped_non_plan(candidate, plan.error())) {
     // Not a plan file (the rule the watcher uses): listed, not an error.
     const std::string message = plan.error().message();
-    if (!run.options.json) run.io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
+    if (!run.options.json)
+      run.io.err << "skipped, no RT Plan: " << escape_control_characters(message) << "\n";
     run.skipped.push_back(message);
     return;
   }
   if (!plan) return run.fail(plan.error().message(), exit_code_for(plan.error()));
   try {
-    check::PlanCheck result = check::check_plan(plan.value(), run.library, run.check_options);
+    const check::PatientStudy study = study_for_plan(run, plan.value());
+    check::CheckOptions options = run.check_options;
+    check::use_study(options, study);
+    check::PlanCheck result = check::check_plan(plan.value(), run.library, options);
     run.exit_code = worst(run.exit_code, result.exit_code());
     write_records(run, result, file);
     if (!run.options.json) {
@@ -185,7 +231,11 @@ void finish(CheckRun& run) {
                                                              : "bad input           ")
           << escape_control_characters(run.errors[i]) << "\n";
     }
-    if (!run.skipped.empty()) out << run.skipped.size() << " other file(s) skipped: no RT Plan in them\n";
+    if (run.skipped.size() > run.study_file_count) {
+      out << run.skipped.size() - run.study_file_count << " other file(s) skipped: no RT Plan in them\n";
+    }
+    if (run.study_file_count > 0)
+      out << run.study_file_count << " CT / structure-set file(s): the patients' studies\n";
     out << "\n";
   }
   std::vector<net::DeliveryEvent> deliveries;
@@ -227,7 +277,20 @@ ExitCode run_check(const CheckCommandOptions& options, Io& io) {
     io.err << "countersign check: no file found in the folders given\n";
     return ExitCode::bad_input;
   }
-  run.plan_count = candidates.files.size();
+  // The study files: from --study, else among the paths given (so `check STUDY_FOLDER/` just works).
+  {
+    std::vector<fs::path> study_paths;
+    for (const auto& p : options.study.empty() ? options.paths : options.study) study_paths.emplace_back(p);
+    run.study_index = dicom::index_study_files(study_paths);
+    for (const dicom::StudyFile& f : run.study_index.files) {
+      if (f.sop_class_uid == dicom::ct_image_storage_uid ||
+          f.sop_class_uid == dicom::rt_structure_set_storage_uid)
+        run.study_files.insert(f.path.lexically_normal());
+    }
+  }
+  run.plan_count = static_cast<std::size_t>(std::count_if(
+      candidates.files.begin(), candidates.files.end(),
+      [&run](const PlanFileCandidate& c) { return run.study_files.count(c.file.lexically_normal()) == 0; }));
   // A progress line only when a person is watching: both streams on a terminal, several plans.
   const bool show_progress = io.out_is_terminal && io.err_is_terminal && run.plan_count > 1 && !options.json;
   std::size_t done = 0;
@@ -264,6 +327,10 @@ void add_check_command(CLI::App& app, CommandContext& context) {
                    "whatever its name (hidden and temporary files are passed over, as by `watch`)")
       ->required();
   add_check_flags(*command, options->flags);
+  command->add_option(
+      "--study", options->study,
+      "folder(s) or files with the plan's CT series and RT Structure Set (default: the plans' own "
+      "paths, so `check STUDY_FOLDER/` finds them); depths and SSD then come from the CT");
   command->add_flag("--json", options->json, "write JSON instead of the table");
   command->add_option(
       "--html", options->html,

@@ -7,7 +7,6 @@
 #include <algorithm>
 #include <map>
 
-
 namespace countersign::cli {
 
 namespace fs = std::filesystem;
@@ -41,6 +40,7 @@ Expected<check::CheckOptions> check_options_from(const CheckFlags& flags) {
   check::CheckOptions options;
   options.engine.method = flags.method;
   options.engine.depth = flags.depth;
+  options.engine.heterogeneity = flags.heterogeneity;
   if (!flags.policy.empty()) TRY_ASSIGN(options.policy, check::load_policy(flags.policy));
   options.engine.max_sector_deg = options.policy.max_sector_deg;
   options.engine.segment_edge_distance_mm = util::cm_to_mm(options.policy.min_edge_distance_cm);
@@ -86,6 +86,16 @@ void add_check_flags(CLI::App& command, CheckFlags& flags) {
                   "(the plan's radiological depth)")
       ->transform(CLI::CheckedTransformer(depths, CLI::ignore_case).description(""))
       ->option_text("planned|equivalent");
+  const std::map<std::string, engine::Heterogeneity> heterogeneity{{"off", engine::Heterogeneity::off},
+                                                                   {"epl", engine::Heterogeneity::epl},
+                                                                   {"batho", engine::Heterogeneity::batho}};
+  command
+      .add_option(
+          "--heterogeneity", flags.heterogeneity,
+          "with a CT study: epl (radiological depth in the TMR/PDD look-ups; the default), batho (Batho "
+          "power-law factor on the dose at the geometric depth) or off (water at the CT's geometric depth)")
+      ->transform(CLI::CheckedTransformer(heterogeneity, CLI::ignore_case).description(""))
+      ->option_text("off|epl|batho");
 }
 
 }  // namespace countersign::cli

@@ -41,6 +41,7 @@ struct CheckFlags {
   std::string policy;    // --policy FILE; empty: the built-in policy
   engine::MethodChoice method = engine::MethodChoice::by_setup_technique;  // --method
   engine::DepthChoice depth = engine::DepthChoice::planned;                // --depth
+  engine::Heterogeneity heterogeneity = engine::Heterogeneity::epl;        // --heterogeneity (with a CT)
 };
 
 // Declares --beamdata, --policy, --method and --depth on a command, worded the same everywhere.

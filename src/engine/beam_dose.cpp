@@ -77,7 +77,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   TRY_ASSIGN(resolved, resolve_beam(plan, beam, referenced, library, r));  // 1. resolve
   TRY(locate_point(beam, resolved, point, r));                             // 2. geometry
   TRY(open_field(beam, resolved, r));                                      //    (control point 0's opening)
-  TRY(choose_depth(beam, referenced, point, options.depth, r));            // 3. depth
+  TRY(choose_depth(beam, referenced, point, options, r));                  // 3. depth (plan or CT)
   choose_method(resolved, options.method, r);                              // 7. formula: the formalism
   if (!r.ssd_mm && r.method == Method::pdd)
     r.approximations.push_back({ApproximationKind::ssd_from_spd_minus_depth});

@@ -35,6 +35,10 @@ std::string_view to_code(DepthSource source) {
       return "derived_ray_length_minus_dose_point_ssd";
     case DepthSource::derived_spd_minus_ssd:
       return "derived_spd_minus_ssd_flat_surface";
+    case DepthSource::ct_geometric:
+      return "ct_geometric";
+    case DepthSource::ct_radiological:
+      return "ct_radiological";
   }
   return "unknown";
 }

@@ -3,6 +3,8 @@
 
 #include "stages.hpp"
 
+#include <countersign/patient/batho.hpp>
+
 #include <countersign/util/assert.hpp>
 #include <countersign/util/units.hpp>
 
@@ -65,11 +67,62 @@ CalculationProblem at_control_point(ProblemKind kind, int control_point) {
   return problem;
 }
 
+// The part's depths and SSD: from its own ray through the CT when there is one (control point 0's
+// when the part has its geometry), else control point 0's depth moved by the part's distances.
+bool same_jaws(const geometry::JawOpening& a, const geometry::JawOpening& b) {
+  return a.x1_mm == b.x1_mm && a.x2_mm == b.x2_mm && a.y1_mm == b.y1_mm && a.y2_mm == b.y2_mm;
+}
+
+// Batho's factor (modified power law, TMR at X_m + dmax) on the part's own ray, times the homogeneous
+// dose at the geometric depth.
+StageResult<void> apply_batho(const beamdata::BeamData& data, const PointDose& homogeneous, Segment& s) {
+  const double field_cm = homogeneous.fields.point_cm;
+  const auto tmr = [&data, field_cm](double depth_cm) { return data.tmr.at(depth_cm, field_cm).value; };
+  const std::optional<double> factor =
+      patient::batho_correction(util::checked(s.ct).layers, tmr, patient::BathoForm::modified, data.dmax_cm);
+  if (!factor) {
+    CalculationProblem problem = at_control_point(ProblemKind::batho_not_computable, s.from_control_point);
+    problem.library_beam = data.id;
+    return problem;
+  }
+  s.batho_factor = *factor;
+  s.dose = homogeneous;
+  s.dose.dose_per_mu_cgy *= *factor;
+  s.dose.dose_cgy *= *factor;
+  return {};
+}
+
+StageResult<PartDepths> part_depths(const plan::ControlPoint& cp, const geometry::BeamFrame& frame,
+                                    const DosePoint& point, const geometry::Aperture& aperture,
+                                    double ssd0_mm, const patient::PatientModel* model, const BeamDose& r,
+                                    Segment& s) {
+  if (r.patient) {
+    const geometry::BeamFrame frame0(r.patient_position.value_or(geometry::PatientPosition::hfs), r.angles,
+                                     r.isocenter_mm, r.sad_mm);
+    const bool same_ray = (frame.source_in_patient_mm() - frame0.source_in_patient_mm()).norm() < 1e-6 &&
+                          same_jaws(aperture.jaws(), r.aperture.jaws());
+    if (!same_ray) {
+      TRY_ASSIGN(
+          s.ct, trace_ct(util::checked(model), frame, point.point_mm, aperture.jaws(), s.from_control_point));
+    } else {
+      s.ct = r.patient->ray;
+    }
+    s.ssd_mm = s.ct->ssd_mm;
+    return ct_part_depths(*s.ct, r.patient->method);
+  }
+  s.ssd_mm = cp.ssd_mm.value_or(ssd0_mm);
+  const double depth_mm = part_depth_mm(r, s.point.spd_mm, s.ssd_mm, ssd0_mm);
+  const double geometric_mm =
+      r.depth.geometric_depth_mm ? depth_mm - r.depth.depth_mm + *r.depth.geometric_depth_mm : depth_mm;
+  return PartDepths{depth_mm, geometric_mm};
+}
+
 // One part through stages 4-7 (apertures, scatter, primary, formula).
 StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point,
                                   const ResolvedBeam& resolved, const PartPlan& part, double ssd0_mm,
                                   const EngineOptions& options, const BeamDose& r) {
   const double max_sector_deg = options.max_sector_deg;
+  const patient::PatientModel* model = options.patient;
   const plan::ControlPoint& cp = part.geometry();
   const plan::ControlPoint& cp0 = beam.control_points.front();
   Segment s;
@@ -96,8 +149,9 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
   const PrimaryPath path = primary_path(aperture, s.point, r.features.modulated, resolved);
   s.point_in_opening = path.in_opening;
   s.point_in_jaws = path.in_jaws;
-  s.ssd_mm = cp.ssd_mm.value_or(ssd0_mm);
-  s.depth_mm = part_depth_mm(r, s.point.spd_mm, s.ssd_mm, ssd0_mm);
+  PartDepths depths;
+  TRY_ASSIGN(depths, part_depths(cp, frame, point, aperture, ssd0_mm, model, r, s));
+  s.depth_mm = depths.dose_depth_mm;
   if (s.depth_mm <= 0.0) {
     CalculationProblem problem = at_control_point(ProblemKind::point_not_below_surface, s.from_control_point);
     problem.plan_value = s.depth_mm;
@@ -109,19 +163,33 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
   const ScatterInputs scatter = scatter_inputs(aperture, resolved, sectors ? &setup : nullptr);
   const PartGeometry geometry{s.meterset_mu, s.depth_mm, s.point.spd_mm, s.ssd_mm, s.point.off_axis_mm};
   s.inputs = formula_inputs(r, resolved, geometry, scatter, path);
-  if (path.counted) {
-    TRY(require_oar(*resolved.data, s.point));
-    s.dose = compute_point_dose(*resolved.data, s.inputs);
-    s.equivalent_square_dose_cgy = s.dose.dose_cgy;
-    if (scatter.sectors) {
-      s.scatter_method = ScatterMethod::sector_integration;
-      s.sectors = scatter.sectors;
-      s.primary = scatter.sectors->sp0 * scatter.sectors->tmr0 * scatter.sectors->primary_transmission *
-                  s.dose.factors.oar.value;
-      apply_sector_scatter(*resolved.data, s.inputs, *scatter.sectors, s.dose);
-    }
-  } else {
+  if (!path.counted) {
     s.dose.method = r.method;  // outside the jaws: no dose counted
+    return s;
+  }
+  TRY(require_oar(*resolved.data, s.point));
+  s.dose = compute_point_dose(*resolved.data, s.inputs);
+  s.equivalent_square_dose_cgy = s.dose.dose_cgy;
+  if (scatter.sectors) {
+    s.scatter_method = ScatterMethod::sector_integration;
+    s.sectors = scatter.sectors;
+    s.primary = scatter.sectors->sp0 * scatter.sectors->tmr0 * scatter.sectors->primary_transmission *
+                s.dose.factors.oar.value;
+    apply_sector_scatter(*resolved.data, s.inputs, *scatter.sectors, s.dose);
+  }
+  s.homogeneous_dose_cgy = s.dose.dose_cgy;
+  if (depths.geometric_depth_mm != depths.dose_depth_mm ||
+      (r.patient && r.patient->method == Heterogeneity::batho)) {
+    PartGeometry water = geometry;
+    water.depth_mm = depths.geometric_depth_mm;
+    const DoseInputs water_inputs = formula_inputs(r, resolved, water, scatter, path);
+    PointDose homogeneous = compute_point_dose(*resolved.data, water_inputs);
+    // The sectors were summed at the dose depth; their ratio to the equivalent square is taken to
+    // hold at the geometric depth too (the homogeneous column is shown for comparison only).
+    if (scatter.sectors) apply_sector_scatter(*resolved.data, water_inputs, *scatter.sectors, homogeneous);
+    s.homogeneous_dose_cgy = homogeneous.dose_cgy;
+    if (r.patient && r.patient->method == Heterogeneity::batho)
+      TRY(apply_batho(*resolved.data, homogeneous, s));
   }
   return s;
 }
@@ -211,14 +279,17 @@ StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& poin
   r.segments.reserve(split.parts.size());
   double total_cgy = 0.0;
   double equivalent_square_cgy = 0.0;
+  double homogeneous_cgy = 0.0;
   for (const PartPlan& part : split.parts) {
     Segment s;
     TRY_ASSIGN(s, compute_part(beam, point, resolved, part, ssd0_mm, options, r));
     total_cgy += s.dose.dose_cgy;
     equivalent_square_cgy += s.equivalent_square_dose_cgy;
+    homogeneous_cgy += s.homogeneous_dose_cgy;
     r.segments.push_back(std::move(s));
   }
   r.computed_dose_gy = util::cgy_to_gy(total_cgy);
+  if (r.depth.geometric_depth_mm || r.patient) r.homogeneous_dose_gy = util::cgy_to_gy(homogeneous_cgy);
   double near_edge_mu = 0.0;
   double counted_mu = 0.0;
   for (const Segment& s : r.segments) {

@@ -19,6 +19,7 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/beam_dose.hpp>
+#include <countersign/engine/patient_geometry.hpp>
 #include <countersign/engine/problem.hpp>
 #include <countersign/engine/sector_scatter.hpp>
 #include <countersign/geometry/aperture.hpp>
@@ -66,7 +67,25 @@ struct ResolvedBeam {
 // a flat surface; a bolus needs the plan's depth. Adds the approximations it makes.
 // Seam: a depth along the ray through a CT volume would be one more DepthSource chosen here.
 [[nodiscard]] StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
-                                             const DosePoint& point, DepthChoice choice, BeamDose& r);
+                                             const DosePoint& point, const EngineOptions& options,
+                                             BeamDose& r);
+
+// With a CT (ct_depth.cpp): the ray from a part's source to the point through the CT, the SSD along
+// its central axis and the missing tissue of its jaw opening at the point's depth.
+[[nodiscard]] StageResult<CtRay> trace_ct(const patient::PatientModel& model,
+                                          const geometry::BeamFrame& frame, const plan::PointMm& point_mm,
+                                          const geometry::JawOpening& jaws, std::optional<int> control_point);
+
+// With a CT: control point 0's depth from the CT (r.patient, r.depth); the method says which depth.
+[[nodiscard]] StageResult<void> choose_ct_depth(const patient::PatientModel& model, Heterogeneity method,
+                                                const DosePoint& point, BeamDose& r);
+
+// The depth a part's dose is looked up at, and its geometric depth (homogeneous dose).
+struct PartDepths {
+  double dose_depth_mm = 0.0;
+  double geometric_depth_mm = 0.0;
+};
+[[nodiscard]] PartDepths ct_part_depths(const CtRay& ray, Heterogeneity method);
 
 // The SSD of control point 0: the plan's, else SPD - depth (the surface the depth implies).
 [[nodiscard]] double surface_distance_mm(const BeamDose& r);
@@ -169,8 +188,9 @@ struct MetersetSplit {
 [[nodiscard]] StageResult<MetersetSplit> split_meterset(const plan::Beam& beam, double meterset_mu);
 
 // Every part through apertures, scatter, primary and formula; their doses summed into r (sets
-// r.segments, r.computed_dose_gy and the equivalent-square column). A beam with leaves needs the
-// MLC transmission and the leaf-end offset from the library.
+// r.segments, r.computed_dose_gy, the equivalent-square and homogeneous columns). A beam with leaves
+// needs the MLC transmission and the leaf-end offset from the library. With a CT (options.patient)
+// each part's depth comes from its own ray through the CT.
 [[nodiscard]] StageResult<void> compute_segments(const plan::Beam& beam, const DosePoint& point,
                                                  const ResolvedBeam& resolved, const MetersetSplit& split,
                                                  const EngineOptions& options, BeamDose& r);

@@ -77,6 +77,9 @@ std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   c.open = dose.outline.open;
   c.shaped_by_mlc = !c.modulated && dose.outline.shaped_by_mlc;
   c.outline_known = dose.outline.known;
+  if (dose.patient) {
+    for (const auto& [x, y] : dose.patient->body_outline_iso_mm) c.body_outline_mm.push_back({x, y});
+  }
   if (!c.modulated) return c;
   // Part points in the collimator system of control point 0 (the collimator may turn during a beam).
   const BevMapping to_cp0(1.0, -dose.angles.collimator_deg, {});
@@ -201,6 +204,22 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
     }
     svg +=
         polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm, "fill=\"none\" stroke=\"#000\" stroke-width=\"0.6\"");
+  }
+
+  // The body at the point's depth (from the CT), dotted.
+  if (c.body_outline_mm.size() > 2) {
+    std::string points;
+    for (const PaperMm& q : c.body_outline_mm) {
+      const PaperMm p = m.to_paper(q.x, q.y);
+      points += number(p.x) + "," + number(p.y) + " ";
+    }
+    points.pop_back();
+    svg += fmt::format(
+        "<polygon class=\"body-outline\" points=\"{}\" fill=\"none\" stroke=\"#1a5fb4\" stroke-width=\"0.4\" "
+        "stroke-dasharray=\"0.8 0.8\"/>\n",
+        points);
+    svg += text(m.to_paper(c.body_outline_mm.front().x, c.body_outline_mm.front().y), "body", "start", 2.2,
+                " fill=\"#1a5fb4\"");
   }
 
   // Jaw names just outside the jaw edges (kept upright for reading).

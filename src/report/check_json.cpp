@@ -1,5 +1,7 @@
 #include <countersign/report/check_json.hpp>
 
+#include "patient_json.hpp"
+
 #include <countersign/report/html_report.hpp>
 #include <countersign/util/units.hpp>
 
@@ -109,7 +111,8 @@ json segment_json(const engine::Segment& s) {
          {"point_in_jaws", s.point_in_jaws},
          {"fields", fields_json(s.dose, s.jaws, s.open_area_mm2, s.open_area_mm2 > 0.0)},
          {"factors", factors_json(s.dose)},
-         {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)}};
+         {"dose_gy", util::cgy_to_gy(s.dose.dose_cgy)},
+         {"patient", segment_patient_json(s)}};
   add_scatter(j, s);
   return j;
 }
@@ -163,6 +166,7 @@ void add_calculation(json& j, const engine::BeamDose& c, const check::Calculatio
     j["segments"] = json::array();
   }
   j["approximations"] = words.approximations;
+  j["homogeneous_dose_gy"] = c.homogeneous_dose_gy ? json(*c.homogeneous_dose_gy) : json(nullptr);
 }
 
 }  // namespace
@@ -202,6 +206,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
          {"independent_mu", optional_json(b.independent_mu)},
          {"category", b.category ? json(std::string(check::to_code(*b.category))) : json(nullptr)},
          {"medium", std::string(check::to_code(b.medium))},
+         {"medium_description", b.words.medium.empty() ? json(nullptr) : json(b.words.medium)},
          {"point_total_planned_dose_gy", optional_json(b.point_total_planned_dose_gy)}};
   // Keys of the calculation are always present (null when there was none).
   for (const char* key : {"machine",
@@ -241,7 +246,8 @@ json beam_check_to_json(const check::BeamCheck& b) {
                           "transmission",
                           "equivalent_square_dose_gy",
                           "sector_vs_equivalent_square_percent",
-                          "edge_meterset_share"}) {
+                          "edge_meterset_share",
+                          "homogeneous_dose_gy"}) {
     j[key] = nullptr;
   }
   if (b.calculation) add_calculation(j, *b.calculation, b.words);
@@ -250,7 +256,11 @@ json beam_check_to_json(const check::BeamCheck& b) {
 
 json check_to_json(const check::PlanCheck& c) {
   json beams = json::array();
-  for (const check::BeamCheck& b : c.beams) beams.push_back(beam_check_to_json(b));
+  for (const check::BeamCheck& b : c.beams) {
+    json beam = beam_check_to_json(b);
+    beam["patient"] = beam_patient_json(b, c.options.study);
+    beams.push_back(std::move(beam));
+  }
   json references = json::array();
   for (const check::DoseReferenceCheck& r : c.dose_references) {
     json contributions = json::array();
@@ -274,15 +284,24 @@ json check_to_json(const check::PlanCheck& c) {
                               {"contributions", std::move(contributions)}});
   }
   const check::TolerancePolicy& p = c.options.policy;
-  const json policy{{"source", p.source},
-                    {"simple_percent", p.simple_percent},
-                    {"complex_percent", p.complex_percent},
-                    {"modulated_percent", p.modulated_percent},
-                    {"simple_heterogeneous_percent", p.simple_heterogeneous_percent},
-                    {"complex_heterogeneous_percent", p.complex_heterogeneous_percent},
-                    {"modulated_heterogeneous_percent", p.modulated_heterogeneous_percent},
-                    {"min_edge_distance_cm", p.min_edge_distance_cm},
-                    {"small_share_fraction", p.small_share_fraction}};
+  const json policy{
+      {"source", p.source},
+      {"simple_percent", p.simple_percent},
+      {"complex_percent", p.complex_percent},
+      {"modulated_percent", p.modulated_percent},
+      {"simple_heterogeneous_percent", p.simple_heterogeneous_percent},
+      {"complex_heterogeneous_percent", p.complex_heterogeneous_percent},
+      {"modulated_heterogeneous_percent", p.modulated_heterogeneous_percent},
+      {"min_edge_distance_cm", p.min_edge_distance_cm},
+      {"small_share_fraction", p.small_share_fraction},
+      {"patient_max_ssd_difference_mm", p.patient_max_ssd_difference_mm},
+      {"patient_max_depth_difference_mm", p.patient_max_depth_difference_mm},
+      {"patient_max_radiological_depth_difference_percent",
+       p.patient_max_radiological_depth_difference_percent},
+      {"patient_heterogeneous_density_difference", p.patient_heterogeneous_density_difference},
+      {"patient_heterogeneous_min_path_mm", p.patient_heterogeneous_min_path_mm},
+      {"patient_max_missing_tissue_fraction", p.patient_max_missing_tissue_fraction},
+      {"patient_plan_equivalent_depth_switch_percent", p.patient_plan_equivalent_depth_switch_percent}};
   std::string method = "by_setup_technique";
   if (c.options.engine.method == engine::MethodChoice::tmr) method = "tmr";
   if (c.options.engine.method == engine::MethodChoice::pdd) method = "pdd";
@@ -303,6 +322,8 @@ json check_to_json(const check::PlanCheck& c) {
               {"beamdata_sha256", c.beamdata_sha256},
               {"method_choice", method},
               {"depth_choice", std::string(engine::to_code(c.options.engine.depth))},
+              {"heterogeneity_choice", std::string(engine::to_code(c.options.engine.heterogeneity))},
+              {"patient_study", study_json(c.options.study)},
               {"tolerance_policy", policy}};
 }
 

@@ -21,12 +21,58 @@ std::string depth_label(const check::BeamCheck& b) {
   const char* tag = "plan";
   if (d.source == engine::DepthSource::derived_spd_minus_ssd) tag = "SPD-SSD";
   if (d.source == engine::DepthSource::derived_from_dose_point_ssd) tag = "ray-SSD";
-  if (d.kind == engine::DepthChoice::equivalent) tag = "equiv";
+  if (d.kind == engine::DepthChoice::equivalent || d.equivalent_by_policy) tag = "equiv";
+  if (d.source == engine::DepthSource::ct_geometric) tag = "CT-geo";
+  if (d.source == engine::DepthSource::ct_radiological) tag = "CT-rad";
   return fmt::format("{:.1f} {}", util::mm_to_cm(d.depth_mm), tag);
 }
 
 // A value from the plan file, on one line of a terminal: control characters escaped.
 std::string shown(std::string_view text) { return escape_control_characters(text); }
+
+std::string cm(const std::optional<double>& mm) {
+  return mm ? fmt::format("{:.1f}", util::mm_to_cm(*mm)) : std::string("-");
+}
+
+// The patient study the check used, or why it used none.
+void write_study_line(std::ostream& out, const check::StudyUsed& study) {
+  if (study.problem) {
+    out << "Patient study: not usable: " << shown(study.problem->sentence) << "\n";
+  } else if (study.present) {
+    out << fmt::format("Patient study: CT series {}, structure set {}, body from {}, densities from {}\n",
+                       shown(study.ct_series_uid), shown(study.structure_set_uid), study.body_source,
+                       study.density_table);
+  } else {
+    out << "Patient study: none; " << study.note << "\n";
+  }
+}
+
+// Per computed beam: the medium, where the depth came from, and what the CT said beside the plan.
+void write_medium_lines(std::ostream& out, const check::BeamCheck& b) {
+  if (!b.calculation || !b.calculation->dose_computed) return;
+  const engine::BeamDose& c = *b.calculation;
+  out << fmt::format("  beam {} {}: medium: {}; depth {}\n", b.beam_number, shown(b.beam_name),
+                     b.words.medium, b.words.depth_description);
+  if (c.patient) {
+    const engine::CtRay& ray = c.patient->ray;
+    out << fmt::format(
+        "    CT: SSD {:.1f} cm (plan {}), point SSD {:.1f} cm (plan {}), depth {:.1f} cm (plan {}), "
+        "radiological "
+        "depth {:.1f} cm (plan equivalent {}), entry ({:.1f}, {:.1f}, {:.1f}) mm, field outside the body "
+        "{:.0f} %, "
+        "heterogeneity {}\n",
+        util::mm_to_cm(ray.ssd_mm), cm(c.ssd_mm), util::mm_to_cm(ray.source_to_entry_mm),
+        cm(c.depth.plan_dose_point_ssd_mm), util::mm_to_cm(ray.depth_mm), cm(c.depth.plan_depth_mm),
+        util::mm_to_cm(ray.radiological_depth_mm), cm(c.depth.plan_equivalent_depth_mm), ray.entry_mm[0],
+        ray.entry_mm[1], ray.entry_mm[2], 100.0 * (ray.missing_tissue_fraction + ray.outside_ct_fraction),
+        engine::to_code(c.patient->method));
+  }
+  if (c.homogeneous_dose_gy) {
+    out << fmt::format(
+        "    homogeneous water at the geometric depth: {:.4f} Gy (beside the {:.4f} Gy used)\n",
+        *c.homogeneous_dose_gy, c.computed_dose_gy);
+  }
+}
 
 }  // namespace
 
@@ -36,6 +82,7 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
                      c.patient_id.empty() ? "-" : shown(c.patient_id), shown(c.sop_instance_uid));
   out << fmt::format("Beam data: {} (SHA-256 {})\n", c.beamdata_root, c.beamdata_sha256);
   out << fmt::format("Tolerance policy: {}\n", c.options.policy.source);
+  write_study_line(out, c.options.study);
   for (const std::string& warning : c.warnings)
     out << "Warning: " << escape_control_characters(warning) << "\n";
   out << "\n";
@@ -64,6 +111,8 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
     out << fmt::format("  beam {} {}: {} ({}): {}\n", b.beam_number, shown(b.beam_name),
                        check::to_code(b.status), check::reason_code(b.reason.reason), b.reason.sentence);
   }
+  out << "\nMedium and depth of each beam:\n";
+  for (const check::BeamCheck& b : c.beams) write_medium_lines(out, b);
   if (!c.dose_references.empty()) {
     out << "\nDose references (sum of contributions):\n";
     for (const check::DoseReferenceCheck& r : c.dose_references) {

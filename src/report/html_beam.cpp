@@ -46,6 +46,28 @@ std::string setup_facts(const engine::BeamDose& c, const check::CalculationWords
   out += fact("Source to point plane (SPD)", fmt::format("{:.1f} mm", c.point.spd_mm));
   out += fact("Depth", fmt::format("{:.1f} mm", c.depth.depth_mm));
   out += fact("Depth from", words.depth_description);
+  if (!words.medium.empty()) out += fact("Medium", words.medium);
+  if (c.patient) {
+    const engine::CtRay& ray = c.patient->ray;
+    const auto plan_mm = [](const std::optional<double>& v) {
+      return v ? fmt::format("{:.1f} mm", *v) : std::string("not stated");
+    };
+    out += fact("CT: SSD / plan", fmt::format("{:.1f} mm / {}", ray.ssd_mm, plan_mm(c.ssd_mm)));
+    out +=
+        fact("CT: depth / plan", fmt::format("{:.1f} mm / {}", ray.depth_mm, plan_mm(c.depth.plan_depth_mm)));
+    out += fact(
+        "CT: radiological depth / plan equivalent",
+        fmt::format("{:.1f} mm / {}", ray.radiological_depth_mm, plan_mm(c.depth.plan_equivalent_depth_mm)));
+    out += fact("CT: ray enters the body at", fmt::format("({:.1f}, {:.1f}, {:.1f}) mm", ray.entry_mm[0],
+                                                          ray.entry_mm[1], ray.entry_mm[2]));
+    out += fact("CT: field at the point's depth outside the body",
+                fmt::format("{:.1f} %", 100.0 * (ray.missing_tissue_fraction + ray.outside_ct_fraction)));
+  }
+  if (c.homogeneous_dose_gy) {
+    out += fact(
+        "Homogeneous water at the geometric depth",
+        fmt::format("{:.4f} Gy (beside the {:.4f} Gy used)", *c.homogeneous_dose_gy, c.computed_dose_gy));
+  }
   out += fact("Off axis (isocentre plane)", fmt::format("{:.1f} mm", c.point.off_axis_mm));
   if (!c.features.modulated) out += fact("Nearest field edge", fmt::format("{:.1f} mm", c.edge_distance_mm));
   out += fact("Formalism", words.method_reason);

@@ -20,6 +20,14 @@ using html::fixed;
 using html::or_dash;
 using html::signed_fixed;
 
+// The study the check used, or why none: every record states the medium the doses assume.
+static std::string study_text(const check::StudyUsed& study) {
+  if (study.problem) return "not usable (every beam not checked): " + study.problem->sentence;
+  if (!study.present) return "none; " + study.note;
+  return fmt::format("CT series {}, structure set {}, body from {}, densities from {}; depths from the CT",
+                     study.ct_series_uid, study.structure_set_uid, study.body_source, study.density_table);
+}
+
 std::string_view caution_text() {
   return "This independent calculation supports, and does not replace, the review of the plan by a qualified "
          "medical physicist under local regulations and licensed practice. A result within tolerance does "
@@ -188,6 +196,7 @@ std::string html_report(const check::PlanCheck& check, const HtmlOptions& option
   page += identity_row("Software", std::string{"countersign "} + version_string);
   page += identity_row("Checked on", when);
   page += identity_row("Tolerance policy", policy_text(check.options.policy));
+  page += identity_row("Patient study", study_text(check.options.study));
   page += "</table>\n";
 
   page += fmt::format(

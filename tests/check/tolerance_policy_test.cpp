@@ -68,6 +68,15 @@ TEST(PolicyExample, ShippedFileEqualsTheDefaults) {
   EXPECT_DOUBLE_EQ(p->max_depth_discrepancy_cm, d.max_depth_discrepancy_cm);
   EXPECT_DOUBLE_EQ(p->depth_check_max_off_axis_cm, d.depth_check_max_off_axis_cm);
   EXPECT_DOUBLE_EQ(p->wedge_max_off_axis_cm, d.wedge_max_off_axis_cm);
+  EXPECT_DOUBLE_EQ(p->patient_max_ssd_difference_mm, d.patient_max_ssd_difference_mm);
+  EXPECT_DOUBLE_EQ(p->patient_max_depth_difference_mm, d.patient_max_depth_difference_mm);
+  EXPECT_DOUBLE_EQ(p->patient_max_radiological_depth_difference_percent,
+                   d.patient_max_radiological_depth_difference_percent);
+  EXPECT_DOUBLE_EQ(p->patient_heterogeneous_density_difference, d.patient_heterogeneous_density_difference);
+  EXPECT_DOUBLE_EQ(p->patient_heterogeneous_min_path_mm, d.patient_heterogeneous_min_path_mm);
+  EXPECT_DOUBLE_EQ(p->patient_max_missing_tissue_fraction, d.patient_max_missing_tissue_fraction);
+  EXPECT_DOUBLE_EQ(p->patient_plan_equivalent_depth_switch_percent,
+                   d.patient_plan_equivalent_depth_switch_percent);
   EXPECT_DOUBLE_EQ(p->small_share_fraction, d.small_share_fraction);
 }
 

@@ -73,7 +73,8 @@ TEST(CheckCli, JsonKeys) {
   for (const auto& plan : j.at("plans")) {
     for (const char* key :
          {"source_file", "sop_instance_uid", "patient_id", "plan_label", "status", "reason", "explanation",
-          "beams", "dose_references", "beamdata_sha256", "tolerance_policy"}) {
+          "beams", "dose_references", "beamdata_sha256", "tolerance_policy", "heterogeneity_choice",
+          "patient_study"}) {
       EXPECT_TRUE(plan.contains(key)) << key;
     }
     EXPECT_EQ(plan.at("beamdata_sha256").get<std::string>().size(), 64u);
@@ -98,9 +99,13 @@ TEST(CheckCli, JsonKeys) {
                               "factors",
                               "segments",
                               "approximations",
-                              "provenance"}) {
+                              "provenance",
+                              "medium_description",
+                              "homogeneous_dose_gy",
+                              "patient"}) {
         EXPECT_TRUE(beam.contains(key)) << key;
       }
+      EXPECT_EQ(beam.at("patient").at("source"), "plan");  // no CT study given
       EXPECT_TRUE(beam.at("method") == "tmr" || beam.at("method") == "pdd");
       if (!beam.at("modulated").get<bool>()) {
         for (const char* key : {"output_cgy_per_mu", "sc", "sp", "tmr", "pdd_percent", "mayneord_f", "oar",

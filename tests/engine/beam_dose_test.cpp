@@ -249,7 +249,19 @@ TEST_F(Fixture, EquivalentDepthOnlyWhenAskedAndPresent) {
   EXPECT_DOUBLE_EQ(r.depth.depth_mm, 120.0);
   EXPECT_EQ(r.depth.kind, DepthChoice::equivalent);
   options.depth = DepthChoice::planned;
-  EXPECT_DOUBLE_EQ(run(plan).depth.depth_mm, 100.0);
+  // Issue 12 item 5: the plan's equivalent depth (120 mm) differs from its depth (100 mm) by 20 %,
+  // beyond the switch: it is used, and the geometric depth kept for the homogeneous dose beside it.
+  const BeamDose switched = run(plan);
+  EXPECT_DOUBLE_EQ(switched.depth.depth_mm, 120.0);
+  EXPECT_TRUE(switched.depth.equivalent_by_policy);
+  EXPECT_DOUBLE_EQ(switched.depth.geometric_depth_mm.value_or(0.0), 100.0);
+  ASSERT_TRUE(switched.homogeneous_dose_gy);
+  EXPECT_GT(*switched.homogeneous_dose_gy, switched.computed_dose_gy);  // shallower in water: more dose
+  options.equivalent_depth_switch_percent = 25.0;
+  const BeamDose kept = run(plan);
+  EXPECT_DOUBLE_EQ(kept.depth.depth_mm, 100.0);
+  EXPECT_FALSE(kept.depth.equivalent_by_policy);
+  EXPECT_FALSE(kept.homogeneous_dose_gy);
 }
 
 TEST_F(Fixture, MethodFollowsSetupTechniqueUnlessChosen) {

@@ -18,6 +18,7 @@ struct CalculationWords {
   std::optional<Finding> problem;  // what stopped the calculation, when something did
   std::string method_reason;       // why the formalism used; empty when no formalism was chosen
   std::string depth_description;   // where the depth came from; empty when no depth was found
+  std::string medium;              // the medium the dose assumes, in words
   std::vector<std::string> approximations;
 };
 
@@ -25,6 +26,9 @@ struct CalculationWords {
 [[nodiscard]] Finding finding_for(const engine::CalculationProblem& problem);
 
 [[nodiscard]] std::string depth_description(const engine::DepthUsed& depth);
+// "homogeneous water with the plan's depths", "radiological depth from the CT ...", "equivalent depth
+// from the plan (not independent) ...".
+[[nodiscard]] std::string medium_description(const engine::BeamDose& dose);
 [[nodiscard]] std::string method_reason(const engine::BeamDose& dose);
 [[nodiscard]] std::string approximation_sentence(const engine::Approximation& approximation,
                                                  const engine::BeamDose& dose);

@@ -12,6 +12,7 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/calculation_words.hpp>
+#include <countersign/check/patient_study.hpp>
 #include <countersign/check/reason.hpp>
 #include <countersign/check/tolerance_policy.hpp>
 #include <countersign/engine/beam_dose.hpp>
@@ -29,8 +30,9 @@ enum class Status { within_tolerance, outside_tolerance, not_checked, skipped };
 [[nodiscard]] std::string_view to_code(Status status);
 
 struct CheckOptions {
-  engine::EngineOptions engine;
+  engine::EngineOptions engine;  // engine.patient: the study's model (use_study), or nullptr
   TolerancePolicy policy = default_policy();
+  StudyUsed study;  // what the outputs say about the patient's study (use_study)
 };
 
 struct BeamCheck {

@@ -74,6 +74,21 @@ struct TolerancePolicy {
   double max_ssd_offset_without_range_cm = 20.0;
   // TMR and PDD forms differing by more than this: the beam data are inconsistent at the point.
   double formalism_max_difference_percent = 1.5;
+  // ---- [patient]: the CT and the plan's own patient geometry (issue 14, issue 12 item 5) ----------
+  // Plan versus CT beyond these is outside tolerance (reason plan_geometry_differs_from_ct).
+  double patient_max_ssd_difference_mm = 5.0;    // SSD (300A,0130), Beam Dose Point SSD (300A,008A)
+  double patient_max_depth_difference_mm = 5.0;  // Beam Dose Point Depth (300A,0088)
+  double patient_max_radiological_depth_difference_percent =
+      3.0;  // Beam Dose Point Equivalent Depth (300A,0089)
+  // The ray is heterogeneous when it crosses at least min_path_mm of tissue whose relative electron
+  // density differs from water by more than density_difference (common practice, no source).
+  double patient_heterogeneous_density_difference = 0.2;
+  double patient_heterogeneous_min_path_mm = 5.0;
+  // Above this fraction of the field at the point's depth outside the body: not checked (missing_tissue).
+  double patient_max_missing_tissue_fraction = 0.05;
+  // Without a CT: above this |equivalent - geometric| / geometric (percent) the plan's equivalent
+  // depth is used (stated "from the plan, not independent").
+  double patient_plan_equivalent_depth_switch_percent = 5.0;
 
   [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
 };

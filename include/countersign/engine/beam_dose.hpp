@@ -10,6 +10,7 @@
 #include <countersign/engine/approximation.hpp>
 #include <countersign/engine/dose_point.hpp>
 #include <countersign/engine/model_facts.hpp>
+#include <countersign/engine/patient_geometry.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/engine/problem.hpp>
 #include <countersign/engine/sector_scatter.hpp>
@@ -43,6 +44,14 @@ struct EngineOptions {
   // (degrees in the beam-limiting-device frame), the isocentre-plane distance (mm) at which the
   // outline cuts the ray, or nullopt. Unset: rays end at the aperture's edges only.
   std::function<std::optional<double>(const geometry::PointInBeam&, double direction_deg)> outline_radius_mm;
+  // The patient's CT and body outline (check --study): depths and SSD come from it. Not owned; the
+  // model (and its study) must outlive the calculation. nullptr: the plan's depths, in water.
+  const patient::PatientModel* patient = nullptr;
+  Heterogeneity heterogeneity = Heterogeneity::epl;  // with a CT only
+  // Without a CT: when the plan's equivalent depth differs from its depth by more than this (percent
+  // of the depth), the dose uses the plan's equivalent depth (policy key
+  // patient.plan_equivalent_depth_switch_percent).
+  double equivalent_depth_switch_percent = 5.0;
 };
 
 // How phantom scatter was obtained for a part.
@@ -60,7 +69,14 @@ struct DepthUsed {
   bool chosen = false;                  // a source was found (false when the calculation stopped before)
   std::optional<double> plan_depth_mm;  // the plan's Beam Dose Point Depth for this point
   std::optional<double> plan_equivalent_depth_mm;  // the plan's Beam Dose Point Equivalent Depth
+  std::optional<double> plan_dose_point_ssd_mm;    // the plan's Beam Dose Point SSD (300A,008A)
   std::optional<double> spd_minus_ssd_mm;          // the flat-surface depth, when the SSD is known
+  // Set when the dose uses another depth than the geometric one (the CT's radiological depth or the
+  // plan's equivalent depth): the geometric depth, at which the homogeneous dose beside it is computed.
+  std::optional<double> geometric_depth_mm;
+  // The plan's equivalent depth is used although --depth planned, because it differs from the
+  // plan's depth by more than the policy limit (no CT).
+  bool equivalent_by_policy = false;
 };
 
 // Facts the tolerance policy sorts beams by.
@@ -104,6 +120,9 @@ struct Segment {
   double equivalent_square_dose_cgy = 0.0;  // the same part by Sterling's 4A/P (equals dose without sectors)
   DoseInputs inputs;
   PointDose dose;
+  std::optional<CtRay> ct;             // with a CT: this part's ray (its own source position)
+  std::optional<double> batho_factor;  // heterogeneity batho
+  double homogeneous_dose_cgy = 0.0;   // in water at the geometric depth (equals dose without a correction)
 };
 
 struct BeamDose {
@@ -143,6 +162,11 @@ struct BeamDose {
   // The share of the meterset delivered (in parts that reach the point) with the point closer than
   // EngineOptions::segment_edge_distance_mm to the part's opening's edge.
   double edge_meterset_share = 0.0;
+  // With a CT: what the CT said (control point 0) and how it entered the dose.
+  std::optional<PatientDose> patient;
+  // Set when the dose used a depth other than the geometric one: the same beam in homogeneous water
+  // at the geometric depth, shown beside it.
+  std::optional<double> homogeneous_dose_gy;
   std::vector<Approximation> approximations;
   // Input for the uncertainty estimate: the relative difference (percent) between sector
   // integration and the equivalent square at the point. Absent until sector integration sets it

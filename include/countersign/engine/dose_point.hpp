@@ -40,6 +40,8 @@ enum class DepthSource {
   beam_dose_reference_item,     // in the beam's Referenced Dose Reference item (300C,0050)
   derived_from_dose_point_ssd,  // ray length to the point minus Beam Dose Point SSD (300A,008A)
   derived_spd_minus_ssd,        // SPD − SSD of control point 0, flat surface
+  ct_geometric,                 // along the ray through the CT, entry into the body to the point
+  ct_radiological,              // the same ray, lengths weighted by relative electron density
 };
 [[nodiscard]] std::string_view to_code(DepthSource source);
 

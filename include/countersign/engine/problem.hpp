@@ -38,6 +38,9 @@ enum class ProblemKind {
   depth_and_ssd_missing,         // no depth for the point and no SSD to derive one
   point_not_below_surface,       // plan_value = depth mm; control_point when seen from a later part
   bolus_without_plan_depth,      // bolus present and the depth would be derived
+  patient_geometry_unusable,     // with a CT: plan_text = the study problem's code, library_detail = its
+                              // message; control_point when seen from a later part
+  batho_not_computable,  // library_beam: the TMR table gives no positive ratio at some layer depth
   // The meterset (stage: segments).
   final_weight_unusable,  // Final Cumulative Meterset Weight absent or not positive
   no_delivered_meterset,  // all cumulative weights equal

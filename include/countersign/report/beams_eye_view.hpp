@@ -63,6 +63,7 @@ struct BevContent {
   std::optional<PaperMm> dose_point_mm;  // projected to the isocentre plane (collimator system, mm)
   std::vector<PaperMm> part_points_mm;   // modulated/arc: the point as each part sees it
   double off_axis_mm = 0.0;
+  std::vector<PaperMm> body_outline_mm;  // with a CT: the body at the point's depth (isocentre-plane mm)
 };
 
 // The drawing's content for a computed beam, from the outline the engine built with the apertures
