@@ -101,14 +101,22 @@ GeometryConsistency geometry_consistency(const plan::Beam& beam, const plan::Ref
 FormalismComparison compare_formalisms(const BeamDose& r) {
   FormalismComparison c;
   if (r.features.modulated || r.beam_data == nullptr || !(r.dose.dose_per_mu_cgy > 0.0)) return c;
-  DoseInputs other = r.inputs;
+  // Both forms on the same inputs in homogeneous water at the geometric depth, with the equivalent
+  // square: the question is whether the tables agree at this point, not what the heterogeneity or
+  // the sector integration add (the PDD form's inverse square belongs to the geometric depth).
+  DoseInputs used = r.inputs;
+  if (r.depth.geometric_depth_mm) used.depth_cm += util::mm_to_cm(*r.depth.geometric_depth_mm - r.depth.depth_mm);
+  if (!(used.depth_cm > 0.0)) return c;
+  const PointDose used_dose = compute_point_dose(*r.beam_data, used);
+  if (!(used_dose.dose_per_mu_cgy > 0.0)) return c;
+  DoseInputs other = used;
   other.method = r.method == Method::tmr ? Method::pdd : Method::tmr;
   const PointDose dose = compute_point_dose(*r.beam_data, other);
   c.computed = true;
   c.other = other.method;
-  c.used_dose_per_mu_cgy = r.dose.dose_per_mu_cgy;
+  c.used_dose_per_mu_cgy = used_dose.dose_per_mu_cgy;
   c.other_dose_per_mu_cgy = dose.dose_per_mu_cgy;
-  c.difference_percent = 100.0 * (dose.dose_per_mu_cgy - r.dose.dose_per_mu_cgy) / r.dose.dose_per_mu_cgy;
+  c.difference_percent = 100.0 * (dose.dose_per_mu_cgy - used_dose.dose_per_mu_cgy) / used_dose.dose_per_mu_cgy;
   c.other_extrapolated = dose.first_extrapolated() != nullptr;
   return c;
 }
@@ -139,7 +147,7 @@ UncertaintyEstimate estimate_uncertainty(const BeamDose& r) {
   }
   u.interpolation_percent = total > 0.0 ? weighted / total : 0.0;
   if (r.model.formalism.computed) u.formalism_percent = std::abs(r.model.formalism.difference_percent) / 2.0;
-  u.sector_percent = std::abs(r.sector_vs_equivalent_square_percent.value_or(0.0)) / 2.0;
+  u.sector_percent = std::abs(r.sector_vs_equivalent_square_percent) / 2.0;
   u.heterogeneity_percent = heterogeneity_percent(r);
   u.combined_percent = std::sqrt(
       u.interpolation_percent * u.interpolation_percent + u.formalism_percent * u.formalism_percent +

@@ -222,7 +222,7 @@ json model_checks_json(const engine::BeamDose& c) {
        {{"combined_percent", u.combined_percent},
         {"interpolation_percent", u.interpolation_percent},
         {"formalism_percent", u.formalism_percent},
-        {"sector_percent", c.sector_vs_equivalent_square_percent ? json(u.sector_percent) : json(nullptr)},
+        {"sector_percent", c.used_sector_integration() ? json(u.sector_percent) : json(nullptr)},
         {"heterogeneity_percent", u.heterogeneity_percent}}}};
 }
 

@@ -91,8 +91,8 @@ std::string model_checks_text(const check::PlanCheck& check, const engine::BeamD
       "{:.2f} %, "
       "sector vs equivalent square {}, heterogeneity {:.2f} % (our estimate, common practice, no source)\n",
       u.combined_percent, u.interpolation_percent, u.formalism_percent,
-      c.sector_vs_equivalent_square_percent ? fmt::format("{:.2f} %", u.sector_percent)
-                                            : std::string{"not computed (no sector integration)"},
+      c.used_sector_integration() ? fmt::format("{:.2f} %", u.sector_percent)
+                                  : std::string{"not computed (no sector integration)"},
       u.heterogeneity_percent);
   return out;
 }

@@ -45,7 +45,6 @@ enum class Reason {
   ssd_out_of_range,       // not checked: SSD outside the library's ssd_range_cm
   extended_distance,      // not checked: no ssd_range_cm and the SSD far from the PDD table's SSD
   beam_data_inconsistent_here,  // not checked: TMR and PDD forms disagree beyond the policy limit
-  inconsistent_depth,         // the plan's depth and SPD - SSD disagree beyond the policy limit
   study_unusable,             // the CT / structure set could not be used (never a fall-back to water)
   patient_geometry_unusable,  // the ray through the CT: point outside the body or CT, ray leaves the CT, ...
   missing_tissue,             // too much of the field at the point's depth lies outside the body

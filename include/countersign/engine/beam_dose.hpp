@@ -19,6 +19,7 @@
 #include <countersign/plan/plan.hpp>
 
 #include <functional>
+#include <algorithm>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -159,6 +160,10 @@ struct BeamDose {
   // uncertainty, as a plain number.
   double equivalent_square_dose_gy = 0.0;
   double sector_vs_equivalent_square_percent = 0.0;
+  [[nodiscard]] bool used_sector_integration() const {
+    return std::any_of(segments.begin(), segments.end(),
+                       [](const Segment& s) { return s.scatter_method == ScatterMethod::sector_integration; });
+  }
   // The share of the meterset delivered (in parts that reach the point) with the point closer than
   // EngineOptions::segment_edge_distance_mm to the part's opening's edge.
   double edge_meterset_share = 0.0;
@@ -168,10 +173,6 @@ struct BeamDose {
   // at the geometric depth, shown beside it.
   std::optional<double> homogeneous_dose_gy;
   std::vector<Approximation> approximations;
-  // Input for the uncertainty estimate: the relative difference (percent) between sector
-  // integration and the equivalent square at the point. Absent until sector integration sets it
-  // (the scatter stage); absent counts as 0 in the estimate.
-  std::optional<double> sector_vs_equivalent_square_percent;
   ModelFacts model;  // consistency step: geometry consistency, other formalism, uncertainty
 
   // The first extrapolated factor in any part, or nullptr.
