@@ -9,18 +9,6 @@ namespace {
 
 bool same(double a, double b) { return std::abs(a - b) < 1e-6; }
 
-void include(JawOpening& envelope, const JawOpening& jaws, bool& first) {
-  if (first) {
-    envelope = jaws;
-    first = false;
-    return;
-  }
-  envelope.x1_mm = std::min(envelope.x1_mm, jaws.x1_mm);
-  envelope.x2_mm = std::max(envelope.x2_mm, jaws.x2_mm);
-  envelope.y1_mm = std::min(envelope.y1_mm, jaws.y1_mm);
-  envelope.y2_mm = std::max(envelope.y2_mm, jaws.y2_mm);
-}
-
 // Per leaf pair, the area swept between two openings: from the smaller to the larger.
 void add_swept_rows(const Aperture& a, const Aperture& b, std::vector<ApertureRow>& rows) {
   for (const Aperture* ap : {&a, &b}) {
@@ -75,13 +63,25 @@ std::optional<SweptOpening> swept_opening(const plan::Beam& beam) {
     auto aperture_a = build_aperture(beam, a);
     auto aperture_b = build_aperture(beam, b);
     if (!aperture_a || !aperture_b) continue;
-    include(result.envelope, aperture_a->jaws(), first);
-    include(result.envelope, aperture_b->jaws(), first);
+    widen_envelope(result.envelope, aperture_a->jaws(), first);
+    widen_envelope(result.envelope, aperture_b->jaws(), first);
     add_swept_rows(*aperture_a, *aperture_b, rows);
   }
   if (first) return std::nullopt;
   result.open = merge_rows(std::move(rows));
   return result;
+}
+
+void widen_envelope(JawOpening& envelope, const JawOpening& jaws, bool& first) {
+  if (first) {
+    envelope = jaws;
+    first = false;
+    return;
+  }
+  envelope.x1_mm = std::min(envelope.x1_mm, jaws.x1_mm);
+  envelope.x2_mm = std::max(envelope.x2_mm, jaws.x2_mm);
+  envelope.y1_mm = std::min(envelope.y1_mm, jaws.y1_mm);
+  envelope.y2_mm = std::max(envelope.y2_mm, jaws.y2_mm);
 }
 
 }  // namespace countersign::geometry

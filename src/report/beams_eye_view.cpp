@@ -1,5 +1,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 
+#include <countersign/geometry/swept_opening.hpp>
+
 #include <countersign/report/html_escape.hpp>
 #include <countersign/util/units.hpp>
 
@@ -49,22 +51,6 @@ std::string scale_text(double scale) {
                                                                 : fmt::format("1:{:g}", denominator);
 }
 
-namespace {
-
-void include(geometry::JawOpening& envelope, const geometry::JawOpening& jaws, bool& first) {
-  if (first) {
-    envelope = jaws;
-    first = false;
-    return;
-  }
-  envelope.x1_mm = std::min(envelope.x1_mm, jaws.x1_mm);
-  envelope.x2_mm = std::max(envelope.x2_mm, jaws.x2_mm);
-  envelope.y1_mm = std::min(envelope.y1_mm, jaws.y1_mm);
-  envelope.y2_mm = std::max(envelope.y2_mm, jaws.y2_mm);
-}
-
-}  // namespace
-
 std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   if (dose.aperture.rows().empty() || !(dose.point.spd_mm > 0.0)) return std::nullopt;
   BevContent c;
@@ -90,7 +76,7 @@ std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   }
   if (!c.outline_known) {
     bool first = true;
-    for (const engine::Segment& s : dose.segments) include(c.jaws, s.jaws, first);
+    for (const engine::Segment& s : dose.segments) geometry::widen_envelope(c.jaws, s.jaws, first);
   }
   return c;
 }

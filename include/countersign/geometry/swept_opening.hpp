@@ -23,4 +23,7 @@ struct SweptOpening {
 // Rows with the same leaf-pair band merged into non-overlapping intervals.
 [[nodiscard]] std::vector<ApertureRow> merge_rows(std::vector<ApertureRow> rows);
 
+// Widens `envelope` to hold `jaws` too; the first call (first == true) copies them and clears first.
+void widen_envelope(JawOpening& envelope, const JawOpening& jaws, bool& first);
+
 }  // namespace countersign::geometry
