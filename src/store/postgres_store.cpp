@@ -3,9 +3,8 @@
 // replacement of a re-exported plan sees every earlier check); a content being checked is claimed
 // with a session advisory lock, so that two services given the same plan do not both compute it.
 
+#include "libpq_api.hpp"
 #include "sql_store.hpp"
-
-#include <libpq-fe.h>
 
 #include <charconv>
 #include <cstdlib>
@@ -49,21 +48,22 @@ std::string as_text(const Value& value) {
 }
 
 struct ResultDeleter {
-  void operator()(PGresult* result) const { PQclear(result); }
+  const LibpqApi* pq = nullptr;
+  void operator()(PGresult* result) const { pq->clear(result); }
 };
 using Result = std::unique_ptr<PGresult, ResultDeleter>;
 
-Row read_row(const PGresult* result, int row_number) {
+Row read_row(const LibpqApi& pq, const PGresult* result, int row_number) {
   Row row;
-  const int columns = PQnfields(result);
+  const int columns = pq.nfields(result);
   for (int column = 0; column < columns; ++column) {
-    if (PQgetisnull(result, row_number, column) != 0) {
+    if (pq.getisnull(result, row_number, column) != 0) {
       row.values.emplace_back(std::monostate{});
       continue;
     }
-    const char* text = PQgetvalue(result, row_number, column);
-    const std::size_t length = static_cast<std::size_t>(PQgetlength(result, row_number, column));
-    const Oid type = PQftype(result, column);
+    const char* text = pq.getvalue(result, row_number, column);
+    const std::size_t length = static_cast<std::size_t>(pq.getlength(result, row_number, column));
+    const Oid type = pq.ftype(result, column);
     if (type == int8_oid || type == int4_oid || type == int2_oid) {
       std::int64_t number = 0;
       std::from_chars(text, text + length, number);
@@ -81,9 +81,9 @@ Row read_row(const PGresult* result, int row_number) {
 
 class PostgresStore final : public SqlStore {
  public:
-  PostgresStore(StoreLocation location, PGconn* connection, Access access)
-      : SqlStore(std::move(location)), connection_(connection), access_(access) {}
-  ~PostgresStore() override { PQfinish(connection_); }
+  PostgresStore(StoreLocation location, std::shared_ptr<const LibpqApi> pq, PGconn* connection, Access access)
+      : SqlStore(std::move(location)), pq_(std::move(pq)), connection_(connection), access_(access) {}
+  ~PostgresStore() override { pq_->finish(connection_); }
 
   Expected<bool> configure_session() {
     std::string settings = "SET client_min_messages = warning;";
@@ -128,27 +128,29 @@ class PostgresStore final : public SqlStore {
       values.push_back(std::holds_alternative<std::monostate>(param) ? nullptr : texts.back().c_str());
     }
     // `texts` was reserved, so the pointers taken above stay valid.
-    const Result result{PQexecParams(connection_, sql.c_str(), static_cast<int>(values.size()), nullptr,
-                                     values.data(), nullptr, nullptr, 0)};
-    const ExecStatusType status = result ? PQresultStatus(result.get()) : PGRES_FATAL_ERROR;
+    const Result result{pq_->exec_params(connection_, sql.c_str(), static_cast<int>(values.size()), nullptr,
+                                         values.data(), nullptr, nullptr, 0),
+                        ResultDeleter{pq_.get()}};
+    const ExecStatusType status = result ? pq_->result_status(result.get()) : PGRES_FATAL_ERROR;
     if (status != PGRES_TUPLES_OK && status != PGRES_COMMAND_OK) {
-      return store_error(statement_purpose(sql),
-                         trimmed(result ? PQresultErrorMessage(result.get()) : PQerrorMessage(connection_)));
+      return store_error(statement_purpose(sql), trimmed(result ? pq_->result_error_message(result.get())
+                                                                : pq_->error_message(connection_)));
     }
     std::vector<Row> rows;
-    const int count = PQntuples(result.get());
+    const int count = pq_->ntuples(result.get());
     rows.reserve(static_cast<std::size_t>(count));
-    for (int i = 0; i < count; ++i) rows.push_back(read_row(result.get(), i));
+    for (int i = 0; i < count; ++i) rows.push_back(read_row(*pq_, result.get(), i));
     return rows;
   }
 
   Expected<bool> execute_script(const std::string& sql) override {
     if (auto connected = ensure_connected(); !connected) return connected.error();
-    const Result result{PQexec(connection_, sql.c_str())};
-    const ExecStatusType status = result ? PQresultStatus(result.get()) : PGRES_FATAL_ERROR;
+    const Result result{pq_->exec(connection_, sql.c_str()), ResultDeleter{pq_.get()}};
+    const ExecStatusType status = result ? pq_->result_status(result.get()) : PGRES_FATAL_ERROR;
     if (status != PGRES_COMMAND_OK && status != PGRES_TUPLES_OK) {
-      return store_error("cannot prepare the database",
-                         trimmed(result ? PQresultErrorMessage(result.get()) : PQerrorMessage(connection_)));
+      return store_error(
+          "cannot prepare the database",
+          trimmed(result ? pq_->result_error_message(result.get()) : pq_->error_message(connection_)));
     }
     return true;
   }
@@ -167,17 +169,17 @@ class PostgresStore final : public SqlStore {
   }
 
   Expected<bool> commit() override {
-    const Result result{PQexec(connection_, "COMMIT")};
+    const Result result{pq_->exec(connection_, "COMMIT"), ResultDeleter{pq_.get()}};
     // A transaction that failed inside answers COMMIT with ROLLBACK: that is not a commit.
-    if (!result || PQresultStatus(result.get()) != PGRES_COMMAND_OK ||
-        std::string{PQcmdStatus(result.get())} != "COMMIT") {
-      return store_error("cannot commit",
-                         trimmed(result ? PQresultErrorMessage(result.get()) : PQerrorMessage(connection_)));
+    if (!result || pq_->result_status(result.get()) != PGRES_COMMAND_OK ||
+        std::string{pq_->cmd_status(result.get())} != "COMMIT") {
+      return store_error("cannot commit", trimmed(result ? pq_->result_error_message(result.get())
+                                                         : pq_->error_message(connection_)));
     }
     return true;
   }
 
-  void rollback() override { PQclear(PQexec(connection_, "ROLLBACK")); }
+  void rollback() override { pq_->clear(pq_->exec(connection_, "ROLLBACK")); }
 
   [[nodiscard]] Dialect dialect() const override { return Dialect::postgresql; }
 
@@ -185,18 +187,20 @@ class PostgresStore final : public SqlStore {
   // After a lost connection (a server restart), the next statement reconnects; what was running
   // failed and is retried by its caller (a batch stays in the inbox until it is recorded).
   Expected<bool> ensure_connected() {
-    if (PQstatus(connection_) == CONNECTION_OK) return true;
-    PQreset(connection_);
+    if (pq_->status(connection_) == CONNECTION_OK) return true;
+    pq_->reset(connection_);
     claims_ = 0;  // a new session holds no locks
-    if (PQstatus(connection_) != CONNECTION_OK)
-      return store_error("cannot reconnect", trimmed(PQerrorMessage(connection_)));
-    const Result settings{PQexec(connection_, access_ == Access::read_only
-                                                  ? "SET client_min_messages = warning; "
-                                                    "SET default_transaction_read_only = on"
-                                                  : "SET client_min_messages = warning")};
+    if (pq_->status(connection_) != CONNECTION_OK)
+      return store_error("cannot reconnect", trimmed(pq_->error_message(connection_)));
+    const Result settings{
+        pq_->exec(connection_, access_ == Access::read_only ? "SET client_min_messages = warning; "
+                                                              "SET default_transaction_read_only = on"
+                                                            : "SET client_min_messages = warning"),
+        ResultDeleter{pq_.get()}};
     return true;
   }
 
+  std::shared_ptr<const LibpqApi> pq_;
   PGconn* connection_;
   Access access_;
   std::size_t claims_ = 0;
@@ -205,16 +209,24 @@ class PostgresStore final : public SqlStore {
 }  // namespace
 
 Expected<std::unique_ptr<Store>> open_postgresql(const StoreLocation& location, Access access) {
+  auto loaded = load_libpq();
+  if (!loaded) {
+    Error error = loaded.error();
+    error.detail = location.describe() + ": " + error.detail;
+    return error;
+  }
+  const LibpqApi& pq = **loaded;
   // connect_timeout first: the URI's own value, when it has one, comes later and wins.
   const char* keywords[] = {"connect_timeout", "fallback_application_name", "dbname", nullptr};
   const char* values[] = {"10", "countersign", location.text.c_str(), nullptr};
-  PGconn* connection = PQconnectdbParams(keywords, values, 1);
-  if (connection == nullptr || PQstatus(connection) != CONNECTION_OK) {
-    const std::string reason = trimmed(connection == nullptr ? "out of memory" : PQerrorMessage(connection));
-    PQfinish(connection);
+  PGconn* connection = pq.connectdb_params(keywords, values, 1);
+  if (connection == nullptr || pq.status(connection) != CONNECTION_OK) {
+    const std::string reason =
+        trimmed(connection == nullptr ? "out of memory" : pq.error_message(connection));
+    pq.finish(connection);
     return Error{ErrorKind::io, "", "", "", location.describe() + ": cannot connect: " + reason};
   }
-  auto store = std::make_unique<PostgresStore>(location, connection, access);
+  auto store = std::make_unique<PostgresStore>(location, *loaded, connection, access);
   if (auto configured = store->configure_session(); !configured) return configured.error();
   auto schema = access == Access::read_write ? store->prepare_schema() : store->require_schema();
   if (!schema) return schema.error();

@@ -1,10 +1,9 @@
 // Where a store is, opening it, the words of its enums, time bounds of filters.
 
+#include "libpq_api.hpp"
 #include "sql_store.hpp"
 
 #include <countersign/store/store.hpp>
-
-#include <libpq-fe.h>
 
 #include <chrono>
 #include <cmath>
@@ -23,10 +22,13 @@ StoreLocation StoreLocation::parse(const std::string& text) {
 std::string StoreLocation::describe() const {
   if (backend == Backend::sqlite) return "SQLite " + text;
   // libpq's own parser, so that the description names what libpq will use and never the password.
+  const auto loaded = detail::load_libpq();
+  if (!loaded) return "PostgreSQL (connection URI not read: client library not available)";
+  const detail::LibpqApi& pq = **loaded;
   char* error = nullptr;
-  PQconninfoOption* options = PQconninfoParse(text.c_str(), &error);
+  PQconninfoOption* options = pq.conninfo_parse(text.c_str(), &error);
   if (options == nullptr) {
-    PQfreemem(error);
+    pq.freemem(error);
     return "PostgreSQL (connection URI not understood)";
   }
   std::string host;
@@ -39,7 +41,7 @@ std::string StoreLocation::describe() const {
     if (keyword == "dbname") database = option->val;
     if (keyword == "user") user = option->val;
   }
-  PQconninfoFree(options);
+  pq.conninfo_free(options);
   std::string described = "PostgreSQL database " + (database.empty() ? std::string{"(default)"} : database);
   described += " on " + (host.empty() ? std::string{"the local socket"} : host);
   if (!user.empty()) described += " as " + user;
