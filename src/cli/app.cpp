@@ -7,7 +7,7 @@
 
 namespace countersign::cli {
 
-int run(int argc, const char* const* argv, Io io) {
+int run(int argc, const char* const* argv, Io io, const ProgramParts& parts) {
   CLI::App app{
       "countersign: an independent check of the monitor units of each beam of a DICOM RT Plan,\n"
       "recomputing the dose at the beam's dose point from the clinic's own beam-data tables.\n"
@@ -16,18 +16,16 @@ int run(int argc, const char* const* argv, Io io) {
   app.set_version_flag("--version", std::string{"countersign "} + version_string);
   app.require_subcommand(1);
 
-  CommandContext context{io};
+  CommandContext context{io, ExitCode::all_within_tolerance, parts.open_archive_delivery};
   add_show_command(app, context);
   add_check_command(app, context);
   add_beamdata_command(app, context);
   add_selftest_command(app, context);
-  add_watch_command(app, context);
-  add_receive_command(app, context);
   add_history_command(app, context);
   add_explain_command(app, context);
   add_review_command(app, context);
   add_audit_command(app, context);
-  add_send_command(app, context);
+  if (parts.add_commands) parts.add_commands(app, context);
 
   try {
     app.parse(argc, argv);

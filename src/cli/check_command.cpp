@@ -5,6 +5,7 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/check_plan.hpp>
+#include <countersign/cli/archive_delivery.hpp>
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom/read_study.hpp>
@@ -17,7 +18,6 @@
 #include <countersign/util/text.hpp>
 
 #include "bundled_data.hpp"
-#include "result_sender.hpp"
 #include "shared_options.hpp"
 
 #include <algorithm>
@@ -49,37 +49,16 @@ struct CheckCommandOptions {
   int send_wait_s = 30;
 };
 
-// The sender for --send-to, or nullopt without it; an error for a bad destination or outbox.
-Expected<std::optional<ResultSender>> result_sender_for(const CheckCommandOptions& options,
-                                                        std::ostream& notes) {
-  if (options.send_to.empty()) return std::optional<ResultSender>{};
-  SendSettings settings;
-  for (const auto& text : options.send_to) {
-    auto destination = net::Destination::parse(text);
-    if (!destination) return destination.error();
-    settings.destinations.push_back(destination.value());
-  }
-  if (!net::is_valid_ae_title(options.calling_ae)) {
-    return Error{ErrorKind::usage, "", "--calling-ae", "",
-                 "\"" + options.calling_ae + "\" is not a valid AE title (1 to 16 printable characters)"};
-  }
-  settings.outbox = options.outbox;
-  settings.scu.calling_ae_title = options.calling_ae;
-  settings.wait = std::chrono::seconds{options.send_wait_s};
-  auto sender = ResultSender::open(std::move(settings), report::find_chromium(), notes);
-  if (!sender) return sender.error();
-  return std::optional<ResultSender>{std::move(sender.value())};
-}
-
-// Delivers what is queued and says what happened; a rejection by an archive is exit code 4.
-ExitCode deliver_results(ResultSender& sender, std::vector<net::DeliveryEvent>& events, std::ostream& out) {
-  events = sender.deliver();
-  ExitCode code = ExitCode::all_within_tolerance;
-  for (const auto& event : events) {
-    out << delivery_line(event, sender.outbox_folder()) << "\n";
-    if (event.status == net::DeliveryStatus::rejected) code = ExitCode::record_not_written;
-  }
-  return code;
+// The archive side for --send-to, or null without it; an error for a bad destination or outbox.
+Expected<std::unique_ptr<ArchiveDelivery>> archive_delivery_for(const CheckCommandOptions& options,
+                                                                const ArchiveDeliveryOpener& open,
+                                                                std::ostream& notes) {
+  if (options.send_to.empty()) return std::unique_ptr<ArchiveDelivery>{};
+  // The checking program hands every --send-to run to the network program before parsing
+  // (src/main.cpp); reaching here without the network side is a defect of that hand-over.
+  COUNTERSIGN_ASSERT(static_cast<bool>(open));
+  return open(ArchiveRequest{options.send_to, options.outbox, options.calling_ae, options.send_wait_s},
+              notes);
 }
 
 // The record's file for one plan: FILE itself for a single plan, FILE's stem plus the plan's stem
@@ -92,15 +71,16 @@ fs::path record_file(const std::string& requested, const fs::path& plan_file, st
 
 // What one run of the command shares: the options, the library, where records go, the results.
 struct CheckRun {
-  CheckRun(const CheckCommandOptions& command_options, Io& streams) : options(command_options), io(streams) {}
+  CheckRun(const CheckCommandOptions& command_options, Io& streams, const ArchiveDeliveryOpener& opener)
+      : options(command_options), io(streams), open_archive(opener) {}
 
   const CheckCommandOptions& options;
   Io& io;
+  const ArchiveDeliveryOpener& open_archive;
   check::CheckOptions check_options;
   beamdata::Library library;
-  std::optional<fs::path> chromium;    // set when a PDF is asked for
-  std::optional<ResultSender> sender;  // set with --send-to
-  std::vector<MadeObject> dicom_objects;
+  std::optional<fs::path> chromium;          // set when a PDF is asked for
+  std::unique_ptr<ArchiveDelivery> archive;  // set with --send-to
   std::size_t plan_count = 0;
   ExitCode exit_code = ExitCode::all_within_tolerance;
   std::vector<check::PlanCheck> checks;
@@ -119,11 +99,11 @@ struct CheckRun {
   }
 };
 
-// The check options, the library and the result sender, before any plan is read.
+// The check options, the library and the archive side (--send-to), before any plan is read.
 Expected<void> prepare(CheckRun& run) {
   TRY_ASSIGN(run.check_options, check_options_from(run.options.flags));
   TRY_ASSIGN(run.library, beamdata::load_library(beamdata_folder(run.options.flags.beamdata)));
-  TRY_ASSIGN(run.sender, result_sender_for(run.options, run.io.err));
+  TRY_ASSIGN(run.archive, archive_delivery_for(run.options, run.open_archive, run.io.err));
   return {};
 }
 
@@ -147,11 +127,10 @@ void write_records(CheckRun& run, const check::PlanCheck& result, const fs::path
     if (written) pdf = written.value();
     if (!written) note(written.error(), "");
   }
-  if (run.sender) {
+  if (run.archive) {
     // The PDF just written is the one sent, when there is one.
-    auto queued = run.sender->queue(result, record_options, pdf);
-    if (queued) run.dicom_objects.insert(run.dicom_objects.end(), queued->begin(), queued->end());
-    if (!queued) note(queued.error(), "the DICOM results were not queued: ");
+    if (auto queued = run.archive->queue(result, record_options, pdf); !queued)
+      note(queued.error(), "the DICOM results were not queued: ");
   }
 }
 
@@ -238,24 +217,22 @@ void finish(CheckRun& run) {
       out << run.study_file_count << " CT / structure-set file(s): the patients' studies\n";
     out << "\n";
   }
-  std::vector<net::DeliveryEvent> deliveries;
-  if (run.sender) {
-    run.exit_code =
-        worst(run.exit_code, deliver_results(*run.sender, deliveries, run.options.json ? run.io.err : out));
+  if (run.archive) {
+    run.exit_code = worst(run.exit_code, run.archive->deliver(run.options.json ? run.io.err : out));
   }
   if (run.options.json) {
     auto document =
         report::check_run_to_json(run.checks, run.errors, static_cast<int>(run.exit_code), run.skipped);
-    if (run.sender) document["dicom_results"] = dicom_results_to_json(run.dicom_objects, deliveries);
+    if (run.archive) document["dicom_results"] = run.archive->to_json();
     out << report::json_text(document);
   } else {
     out << report::caution_text() << "\n";
   }
 }
 
-ExitCode run_check(const CheckCommandOptions& options, Io& io) {
+ExitCode run_check(const CheckCommandOptions& options, Io& io, const ArchiveDeliveryOpener& open_archive) {
   use_bundled_reader_dictionary();
-  CheckRun run{options, io};
+  CheckRun run{options, io, open_archive};
   if (auto prepared = prepare(run); !prepared) {
     io.err << "countersign check: " << prepared.error().message() << "\n";
     return exit_code_for(prepared.error());
@@ -354,7 +331,9 @@ void add_check_command(CLI::App& app, CommandContext& context) {
                    "seconds to keep retrying delivery before leaving the rest in the outbox for the next run "
                    "(default 30)")
       ->check(CLI::Range(0, 3600));
-  command->callback([options, &context] { context.exit_code = run_check(*options, context.io); });
+  command->callback([options, &context] {
+    context.exit_code = run_check(*options, context.io, context.open_archive_delivery);
+  });
 }
 
 }  // namespace countersign::cli

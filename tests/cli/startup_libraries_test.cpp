@@ -7,14 +7,17 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <filesystem>
 #include <string>
 
 namespace countersign::test {
 namespace {
 
+namespace fs = std::filesystem;
+
 // The program's DT_NEEDED entries, one per line, from binutils' readelf.
-std::string needed_libraries() {
-  const CommandOutput dynamic = run_command("readelf -d " + quote(program().string()));
+std::string needed_libraries(const fs::path& binary) {
+  const CommandOutput dynamic = run_command("readelf -d " + quote(binary.string()));
   EXPECT_EQ(dynamic.exit_code, 0) << dynamic.err;
   std::string needed;
   std::size_t start = 0;
@@ -27,10 +30,39 @@ std::string needed_libraries() {
   return needed;
 }
 
-TEST(StartupLibraries, TheProgramLoadsLibpqOnlyForAPostgresqlHistory) {
-  const std::string needed = needed_libraries();
+TEST(StartupLibraries, TheCheckingProgramLoadsNeitherLibpqNorTheDicomNetworkLibraries) {
+  const std::string needed = needed_libraries(program());
   ASSERT_NE(needed.find("libdcmdata"), std::string::npos) << "readelf gave no NEEDED list:\n" << needed;
   EXPECT_EQ(needed.find("libpq"), std::string::npos) << needed;
+  EXPECT_EQ(needed.find("libdcmnet"), std::string::npos) << needed;
+  EXPECT_EQ(needed.find("libdcmtls"), std::string::npos) << needed;
+  EXPECT_EQ(needed.find("libssl"), std::string::npos) << needed;
+}
+
+TEST(StartupLibraries, TheNetworkProgramIsBesideItAndLoadsLibpqOnlyForAPostgresqlHistory) {
+  const fs::path network = program().parent_path() / "countersign-network";
+  ASSERT_TRUE(fs::exists(network)) << network;
+  const std::string needed = needed_libraries(network);
+  EXPECT_NE(needed.find("libdcmnet"), std::string::npos) << needed;
+  EXPECT_EQ(needed.find("libpq"), std::string::npos) << needed;
+}
+
+TEST(StartupLibraries, NetworkCommandsAreHandedOverWithTheirOwnHelp) {
+  for (const std::string command : {"watch", "receive", "send"}) {
+    const CommandOutput help = run_command(quote(program().string()) + " " + command + " --help");
+    EXPECT_EQ(help.exit_code, 0) << command << ": " << help.err;
+    EXPECT_NE(help.out.find("--calling-ae"), std::string::npos) << command << ": " << help.out;
+  }
+  const CommandOutput listed = run_command(quote(program().string()) + " --help");
+  EXPECT_EQ(listed.exit_code, 0);
+  for (const char* command : {"watch", "receive", "send", "check", "explain"})
+    EXPECT_NE(listed.out.find(command), std::string::npos) << command;
+  // A check that sends its results is the network program's too: a bad destination is its error.
+  const CommandOutput bad =
+      run_command(quote(program().string()) + " check --send-to NOT-A-DESTINATION " +
+                  quote((source_dir() / "testdata/plans/fern_box_4field.dcm").string()));
+  EXPECT_EQ(bad.exit_code, 3) << bad.out << bad.err;
+  EXPECT_NE(bad.err.find("NOT-A-DESTINATION"), std::string::npos) << bad.err;
 }
 
 }  // namespace
