@@ -28,6 +28,8 @@ int run(int argc, const char* const* argv, Io io) {
   add_review_command(app, context);
   add_audit_command(app, context);
   add_send_command(app, context);
+  add_serve_command(app, context);
+  add_user_command(app, context);
 
   try {
     app.parse(argc, argv);
