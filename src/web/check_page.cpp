@@ -88,9 +88,12 @@ std::string same_plan_section(const store::CheckDetail& d) {
       changed += (changed.empty() ? "" : "; ") + parts::esc(change.input) + ": " +
                  parts::esc(change.from.substr(0, 12)) + " &#8594; " + parts::esc(change.to.substr(0, 12));
     }
-    html += "<tr><td>" + id_link(other.id) + "</td><td>" + parts::time_text(other.checked_at_utc) +
-            "</td><td>" + parts::badge(other.verdict) + "</td><td>" + relation + "</td><td>" + changed +
-            "</td></tr>";
+    html +=
+        "<tr><td>" + id_link(other.id) + "</td><td>" + parts::time_text(other.checked_at_utc) + "</td><td>";
+    html += parts::badge(other.verdict);
+    html += "</td><td>" + relation + "</td><td>";
+    html += changed;
+    html += "</td></tr>";
   }
   return html + "</tbody></table>";
 }

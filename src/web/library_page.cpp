@@ -28,8 +28,11 @@ std::string machine_section(const beamdata::Machine& m) {
     std::string trays;
     for (const auto& t : b.trays) trays += (trays.empty() ? "" : ", ") + parts::esc(t.id);
     html += "<tr><td>" + parts::esc(b.id) + "</td><td>" + parts::esc(b.radiation) + "</td><td>" +
-            parts::energy_text(b.energy_mv) + "</td><td>" + wedges + "</td><td>" + trays + "</td><td>" +
-            (b.oar ? "yes" : "no") + "</td></tr>";
+            parts::energy_text(b.energy_mv) + "</td><td>";
+    html += wedges;
+    html += "</td><td>";
+    html += trays;
+    html += std::string{"</td><td>"} + (b.oar ? "yes" : "no") + "</td></tr>";
   }
   for (const auto& e : m.electron_beams) {
     std::string applicators;
@@ -69,6 +72,7 @@ std::vector<LibraryUse> library_uses(const std::vector<store::CheckRecord>& chec
     ++use.checks;
   }
   std::vector<LibraryUse> uses;
+  uses.reserve(by_hash.size());
   for (auto& [hash, use] : by_hash) uses.push_back(std::move(use));
   std::sort(uses.begin(), uses.end(),
             [](const LibraryUse& a, const LibraryUse& b) { return a.first_used_utc > b.first_used_utc; });

@@ -38,6 +38,14 @@ bool is_loopback(const std::string& host) {
   return host == "localhost" || host == "::1" || host.rfind("127.", 0) == 0;
 }
 
+std::optional<std::string> exposure_warning(const std::string& host, bool tls) {
+  if (tls || is_loopback(host)) return std::nullopt;
+  return "WARNING: listening on " + host +
+         " beyond loopback without TLS: passwords and records would cross the network in clear; a TLS "
+         "reverse "
+         "proxy in front of this server is required (or give --tls-cert and --tls-key)";
+}
+
 WebServer::WebServer(std::unique_ptr<State> state) : state_(std::move(state)) {}
 WebServer::~WebServer() = default;
 
@@ -90,7 +98,7 @@ Expected<std::unique_ptr<WebServer>> WebServer::start(const ServerOptions& optio
   if (!http) return http.error();
   state->http = std::move(http.value());
   state->tls = !options.tls_cert.empty();
-  state->http->set_payload_max_length(64 * 1024);  // forms only: a reason is a few lines
+  state->http->set_payload_max_length(std::size_t{64} * 1024);  // forms only: a reason is a few lines
   add_routes(*state);
 
   if (options.port == 0) {
@@ -105,11 +113,7 @@ Expected<std::unique_ptr<WebServer>> WebServer::start(const ServerOptions& optio
                  "cannot listen on " + options.host + ":" + std::to_string(options.port) +
                      " (in use, or not an address of this host)"};
   }
-  if (!is_loopback(options.host) && !state->tls) {
-    state->note("WARNING: listening on " + options.host +
-                " beyond loopback without TLS: passwords and records would cross the network in clear; a TLS "
-                "reverse proxy in front of this server is required (or give --tls-cert and --tls-key)");
-  }
+  if (const auto warning = exposure_warning(options.host, state->tls)) state->note(*warning);
   return std::unique_ptr<WebServer>{new WebServer(std::move(state))};
 }
 

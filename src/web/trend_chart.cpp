@@ -79,7 +79,8 @@ std::int64_t utc_seconds(const std::string& iso_utc) {
   unsigned mi = 0;
   unsigned s = 0;
   if (std::sscanf(iso_utc.c_str(), "%4d-%2u-%2uT%2u:%2u:%2u", &y, &mo, &d, &h, &mi, &s) != 6) return 0;
-  return days_from_civil(y, mo, d) * 86400 + static_cast<std::int64_t>(h) * 3600 + mi * 60 + s;
+  return days_from_civil(y, mo, d) * 86400 + static_cast<std::int64_t>(h) * 3600 +
+         static_cast<std::int64_t>(mi) * 60 + s;
 }
 
 std::string trend_chart_svg(const std::vector<TrendPoint>& points,

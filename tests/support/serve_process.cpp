@@ -46,12 +46,13 @@ ServeProcess::ServeProcess(const std::filesystem::path& program, const std::vect
     pid_ = -1;
     return;
   }
-  const std::regex listening{"listening on http://127\\.0\\.0\\.1:([0-9]+)/"};
+  const std::regex listening{"listening on (https?)://127\\.0\\.0\\.1:([0-9]+)/"};
   for (int i = 0; i < 200 && port_ == 0; ++i) {
     std::smatch m;
     const std::string text = slurp(out_);
     if (std::regex_search(text, m, listening)) {
-      port_ = std::stoi(m[1]);
+      scheme_ = m[1];
+      port_ = std::stoi(m[2]);
       break;
     }
     int status = 0;

@@ -22,7 +22,8 @@ class ServeProcess {
 
   [[nodiscard]] bool running() const { return port_ > 0; }
   [[nodiscard]] int port() const { return port_; }
-  [[nodiscard]] std::string url() const { return "http://127.0.0.1:" + std::to_string(port_); }
+  // "http://127.0.0.1:PORT" (or https under TLS), without a final slash.
+  [[nodiscard]] std::string url() const { return scheme_ + "://127.0.0.1:" + std::to_string(port_); }
   // What it wrote so far (stdout, then stderr): for failure messages and log checks.
   [[nodiscard]] std::string output() const;
   [[nodiscard]] std::string log() const;
@@ -30,6 +31,7 @@ class ServeProcess {
  private:
   pid_t pid_ = -1;
   int port_ = 0;
+  std::string scheme_ = "http";
   std::filesystem::path out_;
   std::filesystem::path err_;
 };

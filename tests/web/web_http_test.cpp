@@ -248,3 +248,44 @@ TEST_F(WebHttp, TrendsAndLibraryPagesShowTheNumbers) {
 
 }  // namespace
 }  // namespace countersign::web
+
+namespace countersign::web {
+namespace {
+
+// HTTPS with a throwaway certificate made by openssl (tools/install-deps installs it): the session
+// cookie is Secure, and a page is served only over TLS.
+TEST_F(WebHistory, UnderTlsTheSessionCookieIsSecure) {
+  ASSERT_TRUE(setup_problem_.empty()) << setup_problem_;
+  const std::filesystem::path cert = dir_ / "tls.crt";
+  const std::filesystem::path key = dir_ / "tls.key";
+  const auto made =
+      test::run_command("openssl req -x509 -newkey rsa:2048 -nodes -days 1 -subj /CN=127.0.0.1 -keyout " +
+                        test::quote(key.string()) + " -out " + test::quote(cert.string()));
+  ASSERT_EQ(made.exit_code, 0) << "openssl is needed: " << made.err;
+  const test::ServeProcess server(
+      test::program(),
+      {"--results", results_.string(), "--tls-cert", cert.string(), "--tls-key", key.string()}, dir_);
+  ASSERT_TRUE(server.running()) << server.output();
+  EXPECT_EQ(server.url().rfind("https://", 0), 0U) << server.url();
+  httplib::SSLClient client("127.0.0.1", server.port());
+  client.enable_server_certificate_verification(false);  // self-signed, made just now
+  const auto form = client.Get("/login");
+  ASSERT_TRUE(form) << httplib::to_string(form.error());
+  const std::string login_cookie = cookie_value(set_cookie(form, "countersign_login"));
+  EXPECT_NE(set_cookie(form, "countersign_login").find("; Secure"), std::string::npos);
+  const auto posted = client.Post(
+      "/login", {{"Cookie", "countersign_login=" + login_cookie}},
+      httplib::Params{{"csrf", hidden_csrf(form->body)}, {"name", "alice"}, {"password", reviewer_password}});
+  ASSERT_TRUE(posted);
+  EXPECT_EQ(posted->status, 303);
+  const std::string session = set_cookie(posted, "countersign_session");
+  EXPECT_NE(session.find("; Secure"), std::string::npos) << session;
+  EXPECT_NE(session.find("HttpOnly"), std::string::npos) << session;
+  // Plain HTTP to the same port gets no page.
+  httplib::Client plain("127.0.0.1", server.port());
+  const auto clear = plain.Get("/login");
+  EXPECT_TRUE(!clear || clear->status != 200);
+}
+
+}  // namespace
+}  // namespace countersign::web

@@ -102,6 +102,12 @@ TEST(WebServerOptions, ListenAddressesAndLoopback) {
   EXPECT_TRUE(is_loopback("127.0.0.1"));
   EXPECT_TRUE(is_loopback("::1"));
   EXPECT_FALSE(is_loopback("0.0.0.0"));
+  // Beyond loopback without TLS the log says a TLS reverse proxy is required.
+  const auto warning = exposure_warning("0.0.0.0", false);
+  ASSERT_TRUE(warning);
+  EXPECT_NE(warning->find("TLS reverse proxy"), std::string::npos);
+  EXPECT_FALSE(exposure_warning("0.0.0.0", true));
+  EXPECT_FALSE(exposure_warning("127.0.0.1", false));
 }
 
 store::CheckRecord record(std::int64_t id, std::string when, store::PlanVerdict verdict,

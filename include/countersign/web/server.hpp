@@ -34,6 +34,8 @@ struct ServerOptions {
 [[nodiscard]] Expected<std::pair<std::string, int>> parse_listen(const std::string& text);
 // 127.0.0.0/8, ::1 and "localhost".
 [[nodiscard]] bool is_loopback(const std::string& host);
+// The warning logged when the server listens beyond loopback without TLS; nullopt otherwise.
+[[nodiscard]] std::optional<std::string> exposure_warning(const std::string& host, bool tls);
 
 class WebServer {
  public:
