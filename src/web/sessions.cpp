@@ -74,8 +74,17 @@ bool LoginThrottle::locked(const std::string& user, const std::string& address, 
 std::size_t LoginThrottle::record_failure(const std::string& user, const std::string& address,
                                           Clock::time_point now) {
   const std::scoped_lock lock(mutex_);
+  // Counts whose window has passed are dropped: names made up by a guesser do not pile up.
+  const auto stale = [&](const auto& entry) { return now - entry.second.last > limits_.window; };
+  std::erase_if(by_user_, stale);
+  std::erase_if(by_address_, stale);
   bump(by_address_, address, now);
   return bump(by_user_, user, now).failures;
+}
+
+std::size_t LoginThrottle::tracked_names() {
+  const std::scoped_lock lock(mutex_);
+  return by_user_.size();
 }
 
 void LoginThrottle::record_success(const std::string& user) {

@@ -86,6 +86,10 @@ TEST(WebSessions, FailedLoginsLockTheNameForTheWindow) {
   EXPECT_FALSE(throttle.locked("alice", "192.0.2.7", t + std::chrono::minutes(16)));
   for (int i = 0; i < 20; ++i) throttle.record_failure("user" + std::to_string(i), "203.0.113.9", t);
   EXPECT_TRUE(throttle.locked("carol", "203.0.113.9", t));
+  // Made-up names do not pile up: counts older than the window go at the next failure.
+  EXPECT_EQ(throttle.tracked_names(), 21U);
+  throttle.record_failure("dave", "192.0.2.8", t + std::chrono::minutes(20));
+  EXPECT_EQ(throttle.tracked_names(), 1U);
 }
 
 TEST(WebServerOptions, ListenAddressesAndLoopback) {

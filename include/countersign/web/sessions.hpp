@@ -76,6 +76,8 @@ class LoginThrottle {
   std::size_t record_failure(const std::string& user, const std::string& address, Clock::time_point now);
   // A successful login clears the user's count (not the address's).
   void record_success(const std::string& user);
+  // How many user names have a count (stale ones go at the next failure).
+  [[nodiscard]] std::size_t tracked_names();
 
  private:
   struct Count {
