@@ -23,7 +23,7 @@ struct StandIn {
   const char* description;
 };
 
-constexpr std::array<StandIn, 3> stand_ins{{
+constexpr std::array<StandIn, 5> stand_ins{{
     {"watch",
      "Check every RT Plan file that arrives in a folder, exactly once (run by countersign-network; "
      "`countersign watch --help` for its options)"},

@@ -1,4 +1,4 @@
-// The parts only the network program (countersign-network) has: the services and the sender.
+// The parts only the network program (countersign-network) has: the services, the sender and the web view.
 
 #include <countersign/cli/commands.hpp>
 
@@ -12,6 +12,8 @@ ProgramParts network_program_parts() {
     add_watch_command(app, context);
     add_receive_command(app, context);
     add_send_command(app, context);
+    add_serve_command(app, context);
+    add_user_command(app, context);
   };
   parts.open_archive_delivery = open_outbox_delivery;
   return parts;

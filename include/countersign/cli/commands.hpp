@@ -51,6 +51,8 @@ void add_explain_command(CLI::App& app, CommandContext& context);
 void add_review_command(CLI::App& app, CommandContext& context);
 void add_audit_command(CLI::App& app, CommandContext& context);
 void add_send_command(CLI::App& app, CommandContext& context);
+void add_serve_command(CLI::App& app, CommandContext& context);
+void add_user_command(CLI::App& app, CommandContext& context);
 
 // Parses the arguments, runs the chosen subcommand and returns the process exit code.
 [[nodiscard]] int run(int argc, const char* const* argv, Io io, const ProgramParts& parts);
