@@ -1,11 +1,13 @@
-// `countersign explain PLAN.dcm --beam N [--json]`: one beam in depth. The plan is checked exactly
-// as `check` does it; the beam's factors, geometry, both formalisms and what would reconcile the
-// two doses are then written out. The exit code is that beam's outcome (0, 1, 2; 3 for bad input).
+// `countersign explain PLAN.dcm --beam N [--study DIR] [--json]`: one beam in depth. The plan is checked
+// exactly as `check` does it; the beam's factors, geometry, both formalisms and what would reconcile the two
+// doses are then written out. The exit code is that beam's outcome (0, 1, 2; 3 for bad input).
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/check/check_plan.hpp>
+#include <countersign/check/patient_study.hpp>
 #include <countersign/cli/commands.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom/read_study.hpp>
 #include <countersign/report/explain_report.hpp>
 #include <countersign/report/json_text.hpp>
 
@@ -17,6 +19,7 @@
 #include <optional>
 #include <ostream>
 #include <string>
+#include <vector>
 
 namespace countersign::cli {
 
@@ -26,6 +29,7 @@ struct ExplainCommandOptions {
   std::string plan;
   int beam = 0;
   std::optional<int> fraction_group;
+  std::vector<std::string> study;  // --study DIR: the plan's CT and structure set
   CheckFlags flags;
   engine::SensitivityLimits limits;
   bool json = false;
@@ -45,6 +49,24 @@ ExitCode beam_exit_code(check::Status status) {
   return ExitCode::not_checked;
 }
 
+// The plan's study from --study, as `check --study` takes it; without --study, water with the
+// plan's depths, and the result says so.
+check::PatientStudy study_for_plan(const ExplainCommandOptions& options, const plan::Plan& plan,
+                                   const beamdata::Library& library) {
+  if (options.study.empty()) {
+    return check::PatientStudy::none(
+        "no CT study was given (--study DIR names the plan's CT and structure set): homogeneous water "
+        "with the plan's depths");
+  }
+  if (plan.referenced_structure_set_uids.empty()) {
+    return check::PatientStudy::none(
+        "the plan names no structure set (Referenced Structure Set Sequence (300C,0060)): homogeneous water "
+        "with the plan's depths");
+  }
+  const std::vector<std::filesystem::path> paths(options.study.begin(), options.study.end());
+  return check::PatientStudy::from(dicom::load_study_for_plan(plan, paths), library);
+}
+
 ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
   use_bundled_reader_dictionary();
   auto configured = check_options_from(options.flags);
@@ -52,7 +74,7 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
     io.err << "countersign explain: " << configured.error().message() << "\n";
     return exit_code_for(configured.error());
   }
-  const check::CheckOptions& check_options = configured.value();
+  check::CheckOptions check_options = configured.value();
   const std::filesystem::path library_dir = beamdata_folder(options.flags.beamdata);
   auto library = beamdata::load_library(library_dir);
   if (!library) {
@@ -64,6 +86,8 @@ ExitCode run_explain(const ExplainCommandOptions& options, Io& io) {
     io.err << plan.error().message() << "\n";
     return exit_code_for(plan.error());
   }
+  const check::PatientStudy study = study_for_plan(options, plan.value(), library.value());
+  check::use_study(check_options, study);
   const check::PlanCheck result = check::check_plan(plan.value(), library.value(), check_options);
   const check::BeamCheck* beam = report::find_beam(result, options.beam, options.fraction_group);
   if (beam == nullptr) {
@@ -97,6 +121,9 @@ void add_explain_command(CLI::App& app, CommandContext& context) {
   command->add_option("--fraction-group", options->fraction_group,
                       "Fraction Group Number (300A,0071) (default: the first that references the beam)");
   add_check_flags(*command, options->flags);
+  command->add_option("--study", options->study,
+                      "folder(s) or files with the plan's CT series and RT Structure Set, as for `check "
+                      "--study`; depths and SSD then come from the CT");
   command
       ->add_option("--search-depth-cm", options->limits.depth_cm,
                    "how far the depth search goes each way (default 10)")

@@ -73,6 +73,7 @@ ExitCode run_receive(const ReceiveCommandOptions& options, Io& io) {
     settings.results = options.results;
     settings.inbox = options.inbox.empty() ? settings.results / "incoming" : fs::path{options.inbox};
     settings.intake = intake_options_from(options.intake);
+    settings.studies = study_settings_from(options.intake);
     if (auto applied = apply_follow_up_options(options.follow_ups, settings); !applied) {
       io.err << "countersign receive: " << escape_control_characters(applied.error().message()) << "\n";
       return ExitCode::bad_input;

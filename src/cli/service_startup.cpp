@@ -9,8 +9,6 @@
 
 namespace countersign::cli {
 
-namespace fs = std::filesystem;
-
 void add_intake_options(CLI::App& command, IntakeFlags& flags) {
   command
       .add_option("--quiet-seconds,--settle-seconds", flags.quiet_s,
@@ -22,6 +20,24 @@ void add_intake_options(CLI::App& command, IntakeFlags& flags) {
                   "a file that cannot be read is retried with growing waits (1 s, 2 s, 4 s ...) and moved to "
                   "quarantine with the reason at this attempt (default 5)")
       ->check(CLI::Range(1, 1000));
+  command
+      .add_option("--study-wait", flags.study_wait_s,
+                  "a plan that names a structure set waits this long (seconds from its arrival, default "
+                  "120) for the structure set and its CT images; then it is checked without a CT, and the "
+                  "result and the log say so")
+      ->check(CLI::Range(0, 86400));
+  command
+      .add_option("--study-keep-days", flags.study_keep_days,
+                  "CT images and structure sets received are kept in RESULTS/studies for this many days "
+                  "from their arrival (default 30), then removed")
+      ->check(CLI::Range(1, 3650));
+}
+
+service::StudyStoreSettings study_settings_from(const IntakeFlags& flags) {
+  service::StudyStoreSettings settings;
+  settings.wait = std::chrono::seconds{flags.study_wait_s};
+  settings.keep = std::chrono::hours{24 * flags.study_keep_days};
+  return settings;
 }
 
 service::IntakeOptions intake_options_from(const IntakeFlags& flags) {

@@ -21,11 +21,14 @@ namespace countersign::cli {
 
 // The command-line options of the intake both services share.
 struct IntakeFlags {
-  double quiet_s = 2.0;  // --quiet-seconds (older name: --settle-seconds)
-  int retry_limit = 5;   // --retry-limit
+  double quiet_s = 2.0;      // --quiet-seconds (older name: --settle-seconds)
+  int retry_limit = 5;       // --retry-limit
+  int study_wait_s = 120;    // --study-wait
+  int study_keep_days = 30;  // --study-keep-days
 };
 void add_intake_options(CLI::App& command, IntakeFlags& flags);
 [[nodiscard]] service::IntakeOptions intake_options_from(const IntakeFlags& flags);
+[[nodiscard]] service::StudyStoreSettings study_settings_from(const IntakeFlags& flags);
 
 // The options of what follows a check (alerts, sending to the archive) and of the history store,
 // shared by both services.

@@ -46,6 +46,7 @@ ExitCode run_watch(const WatchCommandOptions& options, Io& io) {
     settings.results = options.results;
     if (!options.quarantine.empty()) settings.quarantine = fs::path{options.quarantine};
     settings.intake = intake_options_from(options.intake);
+    settings.studies = study_settings_from(options.intake);
     if (auto applied = apply_follow_up_options(options.follow_ups, settings); !applied) {
       io.err << "countersign watch: " << escape_control_characters(applied.error().message()) << "\n";
       return ExitCode::bad_input;

@@ -196,6 +196,40 @@ study::Result<study::Study> load_study(const StudyFileIndex& index, const std::s
   return study;
 }
 
+std::string StudyArrival::missing(const std::string& structure_set_uid) const {
+  if (!structure_set_found) return "the RT Structure Set " + structure_set_uid + " and its CT";
+  if (ct_expected == 0) return "the CT series " + ct_series_uid;
+  return fmt::format("{} of {} CT images of series {}", ct_expected - std::min(ct_found, ct_expected),
+                     ct_expected, ct_series_uid);
+}
+
+StudyArrival study_arrival(const StudyFileIndex& index, const std::string& structure_set_uid) {
+  StudyArrival arrival;
+  const auto structure_set_file = find_structure_set(index, structure_set_uid);
+  if (!structure_set_file) return arrival;
+  const auto parsed = detail::read_structure_set((*structure_set_file)->path);
+  // A structure set that cannot be read is complete as far as waiting goes: the check says why.
+  arrival.structure_set_found = true;
+  if (!parsed) {
+    arrival.ct_found = 1;
+    return arrival;
+  }
+  arrival.ct_series_uid = parsed->summary.ct_series_uid;
+  const std::set<std::string> expected(parsed->summary.contour_image_uids.begin(),
+                                       parsed->summary.contour_image_uids.end());
+  arrival.ct_expected = expected.size();
+  std::set<std::string> found;
+  for (const auto& file : index.files) {
+    if (file.sop_class_uid != ct_image_storage_uid) continue;
+    const bool wanted = expected.empty() ? (!arrival.ct_series_uid.empty() &&
+                                            file.series_instance_uid == arrival.ct_series_uid)
+                                         : expected.count(file.sop_instance_uid) != 0;
+    if (wanted) found.insert(file.sop_instance_uid);
+  }
+  arrival.ct_found = found.size();
+  return arrival;
+}
+
 study::Result<study::Study> load_study_for_plan(const plan::Plan& plan,
                                                 std::span<const std::filesystem::path> files_or_folders) {
   const auto& refs = plan.referenced_structure_set_uids;

@@ -1,9 +1,11 @@
 #include <countersign/report/explain_report.hpp>
 
 #include <countersign/geometry/patient_position.hpp>
+
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
 #include <countersign/util/units.hpp>
+#include "patient_json.hpp"
 
 namespace countersign::report {
 
@@ -200,30 +202,29 @@ json model_checks_json(const engine::BeamDose& c) {
   const engine::FormalismComparison& f = c.model.formalism;
   const engine::GeometryConsistency& g = c.model.geometry;
   const engine::UncertaintyEstimate& u = c.model.uncertainty;
-  return json{
-      {"calibration",
-       {{"geometry", beamdata::to_string(ref.geometry)},
-        {"geometry_defaulted", ref.geometry_defaulted},
-        {"source_to_point_cm", ref.source_to_point_cm},
-        {"field_at_point_cm", ref.field_at_point_cm},
-        {"field_at_surface_cm", ref.field_at_surface_cm},
-        {"collimator_field_cm", ref.collimator_field_cm}}},
-      {"formalisms", f.computed ? json{{"used", engine::to_code(c.method)},
-                                       {"other", engine::to_code(f.other)},
-                                       {"used_dose_per_mu_cgy", f.used_dose_per_mu_cgy},
-                                       {"other_dose_per_mu_cgy", f.other_dose_per_mu_cgy},
-                                       {"difference_percent", f.difference_percent},
-                                       {"other_extrapolated", f.other_extrapolated}}
-                                : json(nullptr)},
-      {"geometry_consistency",
-       {{"ray_mismatch_mm", optional_json(g.ray_mismatch_mm)},
-        {"ssd_mismatch_mm", optional_json(g.ssd_mismatch_mm)}}},
-      {"uncertainty",
-       {{"combined_percent", u.combined_percent},
-        {"interpolation_percent", u.interpolation_percent},
-        {"formalism_percent", u.formalism_percent},
-        {"sector_percent", c.used_sector_integration() ? json(u.sector_percent) : json(nullptr)},
-        {"heterogeneity_percent", u.heterogeneity_percent}}}};
+  return json{{"calibration",
+               {{"geometry", beamdata::to_string(ref.geometry)},
+                {"geometry_defaulted", ref.geometry_defaulted},
+                {"source_to_point_cm", ref.source_to_point_cm},
+                {"field_at_point_cm", ref.field_at_point_cm},
+                {"field_at_surface_cm", ref.field_at_surface_cm},
+                {"collimator_field_cm", ref.collimator_field_cm}}},
+              {"formalisms", f.computed ? json{{"used", engine::to_code(c.method)},
+                                               {"other", engine::to_code(f.other)},
+                                               {"used_dose_per_mu_cgy", f.used_dose_per_mu_cgy},
+                                               {"other_dose_per_mu_cgy", f.other_dose_per_mu_cgy},
+                                               {"difference_percent", f.difference_percent},
+                                               {"other_extrapolated", f.other_extrapolated}}
+                                        : json(nullptr)},
+              {"geometry_consistency",
+               {{"ray_mismatch_mm", optional_json(g.ray_mismatch_mm)},
+                {"ssd_mismatch_mm", optional_json(g.ssd_mismatch_mm)}}},
+              {"uncertainty",
+               {{"combined_percent", u.combined_percent},
+                {"interpolation_percent", u.interpolation_percent},
+                {"formalism_percent", u.formalism_percent},
+                {"sector_percent", c.used_sector_integration() ? json(u.sector_percent) : json(nullptr)},
+                {"heterogeneity_percent", u.heterogeneity_percent}}}};
 }
 
 }  // namespace
@@ -250,6 +251,8 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
   j["category"] = beam.category ? json(check::to_code(*beam.category)) : json(nullptr);
   j["medium"] = check::to_code(beam.medium);
   j["tolerance_policy"] = check.options.policy.source;
+  j["patient_study"] = study_json(check.options.study);
+  j["patient"] = beam_patient_json(beam, check.options.study);
 
   const engine::BeamDose* c = beam.calculation ? &*beam.calculation : nullptr;
   const auto& problem = beam.words.problem;

@@ -97,6 +97,16 @@ std::string model_checks_text(const check::PlanCheck& check, const engine::BeamD
   return out;
 }
 
+// The patient study the check used, or why it used none.
+std::string study_line(const check::StudyUsed& study) {
+  if (study.problem) return fmt::format("Patient study: not usable: {}\n", study.problem->sentence);
+  if (study.present) {
+    return fmt::format("Patient study: CT series {}, structure set {}, body from {}\n", study.ct_series_uid,
+                       study.structure_set_uid, study.body_source);
+  }
+  return fmt::format("Patient study: none; {}\n", study.note);
+}
+
 }  // namespace
 
 std::string explanation_text(const check::PlanCheck& check, const check::BeamCheck& beam,
@@ -107,6 +117,7 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
   out += fmt::format("Patient {}  plan {}  SOP Instance UID {}\n\n", check.patient_id, check.plan_label,
                      check.sop_instance_uid);
 
+  out += study_line(check.options.study);
   out += fmt::format("Outcome: {}\n  {}\n", status_line(beam), beam.reason.sentence);
   out += fmt::format(
       "  MU {}  planned {} Gy  independent {} Gy  deviation {} %  tolerance {} %  independent MU {}\n",

@@ -1,7 +1,9 @@
 #include <countersign/service/check_processor.hpp>
 
+#include <countersign/check/patient_study.hpp>
 #include <countersign/check/reason.hpp>
 #include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom/read_study.hpp>
 #include <countersign/dicom_export/export_objects.hpp>
 #include <countersign/engine/point_dose.hpp>
 #include <countersign/report/check_json.hpp>
@@ -142,10 +144,20 @@ PlanProcessor make_check_processor(std::shared_ptr<const beamdata::Library> libr
                                    check::CheckOptions options) {
   const std::string policy_hash = policy_sha256(options.policy);
   return [library = std::move(library), options = std::move(options), policy_hash](
-             const std::filesystem::path& file, std::span<const std::byte> bytes) -> Expected<PlanOutcome> {
+             const std::filesystem::path& file, std::span<const std::byte> bytes,
+             const StudyContext& study) -> Expected<PlanOutcome> {
     auto plan = dicom::read_plan_bytes(bytes, file.string());
     if (!plan) return std::move(plan).error();
-    const check::PlanCheck check = check::check_plan(plan.value(), *library, options);
+    check::CheckOptions plan_options = options;
+    std::optional<check::PatientStudy> patient;
+    if (!study.folders.empty()) {
+      patient.emplace(
+          check::PatientStudy::from(dicom::load_study_for_plan(plan.value(), study.folders), *library));
+    } else if (!study.note.empty()) {
+      patient.emplace(check::PatientStudy::none(study.note));
+    }
+    if (patient) check::use_study(plan_options, *patient);
+    const check::PlanCheck check = check::check_plan(plan.value(), *library, plan_options);
     PlanOutcome outcome = outcome_from_check(check, plan.value());
     outcome.json_text =
         report::json_text(report::check_run_to_json({check}, {}, static_cast<int>(check.exit_code())));

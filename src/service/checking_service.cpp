@@ -10,9 +10,14 @@ store::StoreLocation store_location(const ServiceSettings& settings) {
 }
 
 CheckingService::CheckingService(FolderLock lock, PlanIntake intake,
-                                 std::unique_ptr<ServiceFollowUps> follow_ups)
-    : lock_(std::move(lock)), intake_(std::move(intake)), follow_ups_(std::move(follow_ups)) {
+                                 std::unique_ptr<ServiceFollowUps> follow_ups,
+                                 std::unique_ptr<StudyStore> studies)
+    : lock_(std::move(lock)),
+      studies_(std::move(studies)),
+      intake_(std::move(intake)),
+      follow_ups_(std::move(follow_ups)) {
   if (follow_ups_) intake_.set_follow_ups(follow_ups_.get());
+  if (studies_) intake_.set_study_store(studies_.get());
 }
 
 Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSettings& settings,
@@ -53,10 +58,18 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
     follow_ups->resume(*store.value());
   }
 
+  std::unique_ptr<StudyStore> studies;
+  if (settings.studies) {
+    auto opened = StudyStore::open(folders->results, *settings.studies, log);
+    if (!opened) return opened.error();
+    studies = std::move(opened.value());
+    cleared += remove_stale_temporaries(studies->root());
+  }
+
   std::unique_ptr<CheckingService> service{new CheckingService(
       std::move(lock.value()),
       PlanIntake{folders.value(), std::move(store.value()), std::move(processor), log, settings.intake},
-      std::move(follow_ups))};
+      std::move(follow_ups), std::move(studies))};
   auto watcher = FolderWatcher::open(service->intake_, settings.watch);
   if (!watcher) return watcher.error();
   service->watcher_.emplace(std::move(watcher.value()));
@@ -65,6 +78,11 @@ Expected<std::unique_ptr<CheckingService>> CheckingService::open(const ServiceSe
       (settings.watch.subfolders == dicom::Subfolders::include ? " and its subfolders" : "") +
       "; results in " + folders->results.string() + ", quarantine " + folders->quarantine.string() +
       ", history " + location.describe();
+  if (settings.studies) {
+    started += "; CT studies kept in " + (folders->results / "studies").string() + " for " +
+               std::to_string(settings.studies->keep.count() / 24) + " days, a plan waits up to " +
+               std::to_string(settings.studies->wait.count()) + " s for its study";
+  }
   if (cleared > 0)
     started += "; removed " + std::to_string(cleared) + " temporary file(s) of an interrupted run";
   log.line(started);

@@ -196,6 +196,14 @@ void FolderWatcher::settle(const std::string& relative, const IntakeResult& resu
     case IntakeStatus::ignored:
       tracked_.erase(relative);
       return;
+    case IntakeStatus::kept_for_study:
+      ++summary.kept_for_study;
+      tracked_.erase(relative);
+      return;
+    case IntakeStatus::discarded:
+      ++summary.discarded;
+      tracked_.erase(relative);
+      return;
     case IntakeStatus::failed:
       ++summary.failures;
       if (until == RunUntil::one_pass) {  // one attempt each: reported, not retried

@@ -3,6 +3,9 @@
 
 #include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/dicom/plan_files.hpp>
+#include <countersign/dicom/read_plan.hpp>
+#include <countersign/dicom/read_study.hpp>
+#include <countersign/service/object_classes.hpp>
 #include <countersign/util/sha256.hpp>
 #include <countersign/util/text.hpp>
 #include <countersign/util/version.hpp>
@@ -17,6 +20,7 @@
 #include <unistd.h>
 
 #include <algorithm>
+#include <array>
 #include <cerrno>
 #include <cstring>
 #include <exception>
@@ -44,8 +48,9 @@ struct FileRead {
   ReadState state = ReadState::io_error;
   std::vector<std::byte> bytes;
   Clock::time_point modified{};
-  std::string signature;  // size, modification and change times, inode: any write changes it
-  std::string detail;     // for io_error
+  Clock::time_point changed{};  // status change: when the file came into the inbox (a rename sets it)
+  std::string signature;        // size, modification and change times, inode: any write changes it
+  std::string detail;           // for io_error
 };
 
 Clock::time_point to_time_point(const struct timespec& ts) {
@@ -118,6 +123,7 @@ FileRead read_whole_file(const fs::path& file) {
     return result;
   }
   result.modified = to_time_point(before.st_mtim);
+  result.changed = to_time_point(before.st_ctim);
   result.signature = signature_of(before);
   if (open_for_writing_elsewhere(fd.get())) {
     result.state = ReadState::busy;
@@ -174,7 +180,8 @@ struct PlanIntake::Pending {
   std::string plan_sha256;  // the file's bytes as they arrived
   PlanOutcome outcome;
   Clock::time_point started;
-  std::size_t index = 0;  // of the candidate in the batch
+  std::size_t index = 0;   // of the candidate in the batch
+  std::string study_note;  // with or without its CT study (services with a study store)
 };
 
 std::string station_name() {
@@ -360,6 +367,10 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   }
   if (auto waiting = wait_for_quiet(candidate, read.signature, read.modified)) return waiting;
 
+  if (study_store_ != nullptr) {
+    study_store_->purge_if_due(started);
+    if (auto routed = route_study_object(file)) return routed;
+  }
   const std::string content_sha256 = content_sha256_of(read.bytes, file);
   // The same content earlier in this batch: settled once the batch is committed.
   for (const Pending& earlier : pending) {
@@ -372,6 +383,10 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   if (earlier.value()) return finish_duplicate(file, *earlier.value(), content_sha256);
 
   if (read.bytes.empty()) return quarantine(file, content_sha256, "empty file: not an RT Plan");
+  StudyContext study;
+  if (study_store_ != nullptr) {
+    if (auto waiting = wait_for_study(file, read.bytes, read.changed, study)) return waiting;
+  }
   // Another service sharing the store may be checking the same content right now: it is left to
   // that one, and looked at again shortly (it is then found recorded).
   auto claimed = store_->try_claim(content_sha256);
@@ -391,7 +406,7 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
 
   std::optional<Expected<PlanOutcome>> processed;
   try {
-    processed.emplace(processor_(file, std::span<const std::byte>{read.bytes}));
+    processed.emplace(processor_(file, std::span<const std::byte>{read.bytes}, study));
   } catch (const std::exception& e) {
     // A defect in the checking code must not stop the service; the file is kept for investigation.
     processed.emplace(Error{ErrorKind::internal, file.string(), "", "",
@@ -413,6 +428,9 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   checked.outcome = std::move(outcome);
   checked.started = started;
   checked.index = index;
+  checked.study_note = study.folders.empty() ? std::string{"without a CT study"} : "with its CT study";
+  if (study_store_ == nullptr) checked.study_note.clear();
+  waiting_logged_.erase(file);
   pending.push_back(std::move(checked));
   return std::nullopt;
 }
@@ -590,6 +608,7 @@ void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>
     result.record = stored.record;
     result.message =
         checked_line(p.name, p.outcome, stored.record, folders_.results, Clock::now() - p.started);
+    if (!p.study_note.empty()) result.message += "; " + p.study_note;
     if (!moved) {
       result.message += "; the plan file could not be moved out of the inbox: " + moved.error().message();
     }
@@ -597,6 +616,76 @@ void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>
     followed.push_back(stored.record);
   }
   if (follow_ups_ != nullptr && !followed.empty()) follow_ups_->recorded(followed);
+}
+
+// A CT image or RT Structure Set goes to the study store; another RT object a planning system sends
+// with a plan is logged and removed (it is no fault of the sender). nullopt: anything else (a plan,
+// or a file for the plan reader to judge).
+std::optional<IntakeResult> PlanIntake::route_study_object(const fs::path& file) {
+  const std::array<fs::path, 1> paths{file};
+  const dicom::StudyFileIndex index = dicom::index_study_files(paths);
+  if (index.files.size() != 1) return std::nullopt;
+  const dicom::StudyFile& identity = index.files.front();
+  const auto kind = storage_class(identity.sop_class_uid);
+  if (!kind || kind->role == ObjectRole::plan) return std::nullopt;
+  const std::string name = shown_name(folders_.inbox, file);
+  IntakeResult result;
+  if (kind->role == ObjectRole::discarded) {
+    if (auto removed = remove_file_durably(file); !removed) return fail(file, removed.error().message(), 1);
+    result.status = IntakeStatus::discarded;
+    result.message = "discarded " + name + ": " + kind->name + " " + identity.sop_instance_uid +
+                     " (not used by the check)";
+    log_.line(result.message);
+    return result;
+  }
+  auto kept = study_store_->keep(file, identity);
+  if (!kept)
+    return quarantine(file, "",
+                      std::string{kind->name} + " not kept for its study: " + kept.error().message());
+  result.status = IntakeStatus::kept_for_study;
+  result.message = "kept " + name + " in the study store: " + kind->name + " " + identity.sop_instance_uid +
+                   " of series " + identity.series_instance_uid;
+  log_.line(result.message);
+  return result;
+}
+
+// A plan that names a structure set waits for it and its CT in the study store, until the study
+// wait has passed since the plan came into the inbox; then it is checked without them, and says so.
+std::optional<IntakeResult> PlanIntake::wait_for_study(const fs::path& file, std::span<const std::byte> bytes,
+                                                       Clock::time_point arrived, StudyContext& study) {
+  // A plan that cannot be read, or names no single structure set, is for the check to judge.
+  const auto plan = dicom::read_plan_bytes(bytes, file.string());
+  if (!plan || plan->referenced_structure_set_uids.size() != 1) return std::nullopt;
+  const std::string& structure_set_uid = plan->referenced_structure_set_uids.front();
+  const StudyLookup lookup = study_store_->find(structure_set_uid);
+  if (lookup.arrival.complete()) {
+    study.folders = lookup.folders;
+    return std::nullopt;
+  }
+  const std::string name = shown_name(folders_.inbox, file);
+  const auto wait = study_store_->settings().wait;
+  const auto now = Clock::now();
+  const auto deadline = arrived + wait;
+  const std::string missing = lookup.arrival.missing(structure_set_uid);
+  if (now < deadline) {
+    IntakeResult result;
+    result.status = IntakeStatus::not_ready;
+    result.retry_at = std::min(deadline, now + std::chrono::seconds{2});
+    result.message = "waiting for its study: " + missing + " not yet received";
+    if (waiting_logged_.insert(file).second) {
+      log_.line("waiting for the study of " + name + ": " + missing +
+                " not yet received; its check runs without a CT in " +
+                format_seconds(std::chrono::duration_cast<std::chrono::milliseconds>(deadline - now)) +
+                " if it does not arrive (--study-wait)");
+    }
+    return result;
+  }
+  study.note = "the plan's study did not arrive within " + std::to_string(wait.count()) +
+               " s of the plan (--study-wait; still missing: " + missing +
+               "): homogeneous water with the plan's depths";
+  log_.line("no study for " + name + " after " + std::to_string(wait.count()) + " s (missing: " + missing +
+            "): its check runs without a CT");
+  return std::nullopt;
 }
 
 IntakeResult PlanIntake::take(const fs::path& file, Arrival arrival, int attempt) {

@@ -30,9 +30,9 @@ TEST(RecordsToTheArchive, WatchSendsTheResultsAndSendSendsTheSameInstancesAgain)
   fs::create_directories(dir / "inbox");
   fs::copy_file(source_dir() / "testdata" / "plans" / "fern_half_beam.dcm", dir / "inbox" / "RP1.dcm");
 
-  const auto watched =
-      run_command(quote(program().string()) + " watch " + quote((dir / "inbox").string()) + " --out " +
-                  quote((dir / "results").string()) + " --once --send-to " + archive);
+  const auto watched = run_command(quote(program().string()) + " watch " + quote((dir / "inbox").string()) +
+                                   " --study-wait 0 --out " + quote((dir / "results").string()) +
+                                   " --once --send-to " + archive);
   ASSERT_EQ(watched.exit_code, 0) << watched.out << watched.err;
   EXPECT_NE(watched.out.find("sent structured result (SR) of check #"), std::string::npos) << watched.out;
   EXPECT_NE(watched.out.find("sent record (PDF) of check #"), std::string::npos) << watched.out;

@@ -64,7 +64,7 @@ class RecordsCli : public ::testing::TestWithParam<std::string> {
   }
 
   CommandOutput watch_once(const std::string& extra = "") const {
-    return countersign("watch " + quote((dir_ / "inbox").string()) + " --out " +
+    return countersign("watch " + quote((dir_ / "inbox").string()) + " --study-wait 0 --out " +
                        quote((dir_ / "results").string()) + " --once" +
                        (url_.empty() ? "" : " --db " + quote(url_)) + " " + extra);
   }

@@ -77,5 +77,34 @@ TEST(StudyCli, StudyOptionAndHeterogeneityChoice) {
   EXPECT_EQ(ap["status"], "outside_tolerance");
 }
 
+test::CommandOutput explain(const std::string& arguments) {
+  return test::run_command(test::quote(test::program().string()) + " explain " + arguments);
+}
+
+TEST(StudyCli, ExplainTakesTheStudyAsCheckDoes) {
+  const std::string plan = test::quote(
+      (test::source_dir() / "testdata" / "studies" / "fern_lung_slab" / "RP.fern_lung_4field.dcm").string());
+  const test::CommandOutput with = explain(plan + " --beam 1 --json --study " + study("fern_lung_slab"));
+  ASSERT_EQ(with.exit_code, 0) << with.out << with.err;
+  const nlohmann::json j = nlohmann::json::parse(with.out);
+  EXPECT_EQ(j["patient_study"]["used"], true);
+  EXPECT_EQ(j["patient"]["source"], "ct");
+  // testdata/studies/EXPECTED_GEOMETRY.tsv: the AP beam's radiological depth 92 mm.
+  EXPECT_NEAR(j["patient"]["radiological_depth_cm"].get<double>(), 9.2, 0.01);
+  const test::CommandOutput checked = check("--json --study " + study("fern_lung_slab") + " " + plan);
+  const nlohmann::json c = nlohmann::json::parse(checked.out)["plans"][0]["beams"][0];
+  EXPECT_EQ(j["status"], c["status"]);
+  EXPECT_DOUBLE_EQ(j["deviation_percent"].get<double>(), c["deviation_percent"].get<double>());
+
+  const test::CommandOutput text = explain(plan + " --beam 1 --study " + study("fern_lung_slab"));
+  EXPECT_NE(text.out.find("Patient study: CT series"), std::string::npos) << text.out;
+  // Without --study: water with the plan's depths, said in the output, as `check PLAN` does.
+  const test::CommandOutput without = explain(plan + " --beam 1 --json");
+  const nlohmann::json w = nlohmann::json::parse(without.out);
+  EXPECT_EQ(w["patient_study"]["used"], false);
+  EXPECT_NE(w["patient_study"]["explanation"].get<std::string>().find("--study"), std::string::npos);
+  EXPECT_NE(w["patient"]["source"], "ct");
+}
+
 }  // namespace
 }  // namespace countersign

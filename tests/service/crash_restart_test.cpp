@@ -50,8 +50,9 @@ int run_service(const fs::path& dir, RunUntil until) {
   if (!folders || !history) return 10;
   const fs::path calls_log = dir / "calls.log";
   auto inner = test::fake_processor(nullptr, 3ms);
-  PlanProcessor processor = [inner, calls_log](const fs::path& file, std::span<const std::byte> bytes) {
-    auto outcome = inner(file, bytes);
+  PlanProcessor processor = [inner, calls_log](const fs::path& file, std::span<const std::byte> bytes,
+                                               const StudyContext& study) {
+    auto outcome = inner(file, bytes, study);
     if (outcome) {
       const std::string line = outcome->sop_instance_uid + "\n";
       const int fd = ::open(calls_log.c_str(), O_WRONLY | O_APPEND | O_CREAT, 0600);

@@ -55,8 +55,8 @@ inline bool write_demo_rt_plan(const std::filesystem::path& file, const std::str
 // Reads SOP Instance UID and Patient ID of a stored DICOM object; fails on anything that is not
 // an RT Plan. Counts its calls.
 inline service::PlanProcessor dicom_identity_processor(std::shared_ptr<std::atomic<int>> calls) {
-  return [calls](const std::filesystem::path& file,
-                 std::span<const std::byte>) -> Expected<service::PlanOutcome> {
+  return [calls](const std::filesystem::path& file, std::span<const std::byte>,
+                 const service::StudyContext& /*study*/) -> Expected<service::PlanOutcome> {
     DcmFileFormat format;
     if (format.loadFile(file.c_str()).bad()) {
       return Error{ErrorKind::not_dicom, file.string(), "", "", "not a readable DICOM file"};

@@ -59,8 +59,8 @@ struct ProcessorCalls {
 
 inline service::PlanProcessor fake_processor(std::shared_ptr<ProcessorCalls> calls = nullptr,
                                              std::chrono::milliseconds delay = std::chrono::milliseconds{0}) {
-  return [calls, delay](const std::filesystem::path& file,
-                        std::span<const std::byte> bytes) -> Expected<service::PlanOutcome> {
+  return [calls, delay](const std::filesystem::path& file, std::span<const std::byte> bytes,
+                        const service::StudyContext& /*study*/) -> Expected<service::PlanOutcome> {
     const std::string text{reinterpret_cast<const char*>(bytes.data()), bytes.size()};
     const std::string header = "FAKE-RTPLAN-1\n";
     if (text.compare(0, header.size(), header) != 0) {

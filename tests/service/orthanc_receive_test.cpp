@@ -1,7 +1,7 @@
 // The receiver with a real PACS as the sender: Debian's Orthanc, started by the test on loopback
 // with a temporary configuration, holds an invented demo plan and sends it to the receiver by
 // C-STORE through its REST API (/modalities/.../store), as a department's archive forwards plans.
-// Orthanc also tries an object of a SOP class the receiver does not take (pydicom's bundled CT
+// Orthanc also tries an object of a SOP class the receiver does not take (pydicom's bundled MR
 // image), which must be refused and logged. Fails when Orthanc or curl is missing.
 
 #include "service/receiver_support.hpp"
@@ -48,15 +48,15 @@ TEST(OrthancSendsToTheReceiver, APlanForwardedByThePacsIsReceivedAndChecked) {
       << receiver.log();
   EXPECT_EQ(receiver.checks(), 1);
 
-  // A CT image: the receiver takes RT Plans only, and says so.
-  const fs::path ct = "/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm";
-  ASSERT_TRUE(fs::exists(ct)) << "python3-pydicom's test files are needed (bash tools/install-deps)";
-  const json ct_stored = json::parse(orthanc->post_file("/instances", ct, &ok), nullptr, false);
+  // An MR image: the receiver takes plans, their CT studies and RT objects, not MR; and says so.
+  const fs::path mr = "/usr/lib/python3/dist-packages/pydicom/data/test_files/MR_small.dcm";
+  ASSERT_TRUE(fs::exists(mr)) << "python3-pydicom's test files are needed (bash tools/install-deps)";
+  const json mr_stored = json::parse(orthanc->post_file("/instances", mr, &ok), nullptr, false);
   ASSERT_TRUE(ok);
-  orthanc->post("/modalities/checker/store", ct_stored["ID"].get<std::string>(), &ok);
+  orthanc->post("/modalities/checker/store", mr_stored["ID"].get<std::string>(), &ok);
   EXPECT_FALSE(ok);
   EXPECT_TRUE(test::wait_for(
-      [&] { return receiver.log_has("these SOP classes are not accepted here: CTImageStorage"); }, 10s))
+      [&] { return receiver.log_has("these SOP classes are not accepted here: MRImageStorage"); }, 10s))
       << receiver.log();
   EXPECT_EQ(receiver.checks(), 1);
 }

@@ -3,6 +3,7 @@
 // storescu is the sending peer; SIGTERM and SIGKILL are real signals to a real process.
 
 #include "service/dicom_plans.hpp"
+#include "service/program_process.hpp"
 #include "service/result_files.hpp"
 #include "support/paths.hpp"
 
@@ -83,57 +84,6 @@ std::string copy_with_new_uid(const fs::path& source, const fs::path& target) {
   return format.saveFile(target.c_str(), EXS_LittleEndianExplicit).good() ? uid : std::string{};
 }
 
-// A running `countersign` with its output going to a file.
-class Program {
- public:
-  Program(const std::vector<std::string>& arguments, const fs::path& output) {
-    std::vector<std::string> all{test::program().string()};
-    all.insert(all.end(), arguments.begin(), arguments.end());
-    std::vector<char*> argv;
-    for (auto& a : all) argv.push_back(a.data());
-    argv.push_back(nullptr);
-    posix_spawn_file_actions_t actions;
-    posix_spawn_file_actions_init(&actions);
-    posix_spawn_file_actions_addopen(&actions, STDOUT_FILENO, output.c_str(), O_WRONLY | O_CREAT | O_TRUNC,
-                                     0600);
-    posix_spawn_file_actions_adddup2(&actions, STDOUT_FILENO, STDERR_FILENO);
-    if (::posix_spawn(&pid_, argv[0], &actions, nullptr, argv.data(), environ) != 0) pid_ = -1;
-    posix_spawn_file_actions_destroy(&actions);
-  }
-  Program(const Program&) = delete;
-  Program& operator=(const Program&) = delete;
-  ~Program() {
-    if (pid_ > 0) {
-      ::kill(pid_, SIGKILL);
-      ::waitpid(pid_, nullptr, 0);
-    }
-  }
-  [[nodiscard]] bool running() const { return pid_ > 0; }
-  void signal(int number) const { ::kill(pid_, number); }
-  // The wait status.
-  int wait() {
-    int status = 0;
-    ::waitpid(pid_, &status, 0);
-    pid_ = -1;
-    return status;
-  }
-
- private:
-  pid_t pid_ = -1;
-};
-
-std::uint16_t free_port() {
-  const int fd = ::socket(AF_INET, SOCK_STREAM, 0);
-  sockaddr_in address{};
-  address.sin_family = AF_INET;
-  address.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
-  ::bind(fd, reinterpret_cast<const sockaddr*>(&address), sizeof address);
-  socklen_t length = sizeof address;
-  ::getsockname(fd, reinterpret_cast<sockaddr*>(&address), &length);
-  ::close(fd);
-  return ntohs(address.sin_port);
-}
-
 std::size_t recorded(const fs::path& results) {
   auto history = test::open_history(results / "history.sqlite", store::Access::read_only);
   if (!history) return 0;
@@ -153,12 +103,12 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
   ASSERT_FALSE(plans.empty());
   fs::create_directories(dir_ / "inbox");
   for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
-  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ct_sop_class.dcm",
-                dir_ / "inbox" / "ct.dcm");
+  fs::copy_file(test::source_dir() / "testdata" / "malformed" / "ion_plan_sop_class.dcm",
+                dir_ / "inbox" / "ion.dcm");
   const fs::path results = dir_ / "results";
 
   const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
-                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote((dir_ / "inbox").string()) + " --study-wait 0 --out " +
                                      test::quote(results.string()) + " --once --settle-seconds 0.2");
   // One pass that had to quarantine a file ends with exit 3 and names it.
   ASSERT_EQ(run.exit_code, 3) << run.out << run.err;
@@ -173,9 +123,9 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
     checked_lines += line.find(" checked ") != std::string::npos;
   EXPECT_EQ(checked_lines, plans.size()) << run.out;
 
-  // The CT object is quarantined with a reason naming the attribute and its tag.
-  ASSERT_TRUE(fs::exists(results / "quarantine" / "ct.dcm"));
-  const std::string reason = slurp(results / "quarantine" / "ct.dcm.reason.txt");
+  // The ion plan (a SOP class not checked) is quarantined with a reason naming the attribute and its tag.
+  ASSERT_TRUE(fs::exists(results / "quarantine" / "ion.dcm"));
+  const std::string reason = slurp(results / "quarantine" / "ion.dcm.reason.txt");
   EXPECT_NE(reason.find("(0008,0016)"), std::string::npos) << reason;
 
   // Each result is the document `countersign check --json` prints for that plan.
@@ -213,7 +163,7 @@ TEST_F(ServiceProgramTest, WatchOnceChecksTheDemoPlansAndQuarantinesABadFile) {
   // A second run over the same files (copied in again) checks nothing twice.
   for (const auto& plan : plans) fs::copy_file(plan, dir_ / "inbox" / plan.filename());
   const auto again = test::run_command(test::quote(test::program().string()) + " watch " +
-                                       test::quote((dir_ / "inbox").string()) + " --out " +
+                                       test::quote((dir_ / "inbox").string()) + " --study-wait 0 --out " +
                                        test::quote(results.string()) + " --once");
   ASSERT_EQ(again.exit_code, 0) << again.out << again.err;
   EXPECT_EQ(recorded(results), plans.size());
@@ -231,8 +181,8 @@ TEST_F(ServiceProgramTest, WatchHonoursMethodAndDepth) {
   fs::copy_file(plan, dir_ / "inbox" / plan.filename());
   const fs::path results = dir_ / "results";
   const auto run = test::run_command(
-      test::quote(test::program().string()) + " watch " + test::quote((dir_ / "inbox").string()) + " --out " +
-      test::quote(results.string()) + " --once --method pdd --depth equivalent");
+      test::quote(test::program().string()) + " watch " + test::quote((dir_ / "inbox").string()) +
+      " --study-wait 0 --out " + test::quote(results.string()) + " --once --method pdd --depth equivalent");
   ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
   EXPECT_NE(run.out.find("method pdd, depth equivalent"), std::string::npos) << run.out;
   ASSERT_EQ(test::count_results(results, ".json"), 1U) << run.out;
@@ -245,7 +195,7 @@ TEST_F(ServiceProgramTest, WatchHonoursMethodAndDepth) {
   EXPECT_NE(written.find("\"depth_choice\": \"equivalent\""), std::string::npos) << written;
   // A bad value is a usage error, as for check.
   const auto bad = test::run_command(test::quote(test::program().string()) + " watch " +
-                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote((dir_ / "inbox").string()) + " --study-wait 0 --out " +
                                      test::quote(results.string()) + " --once --method sideways");
   EXPECT_EQ(bad.exit_code, 3) << bad.out << bad.err;
 }
@@ -263,7 +213,8 @@ TEST_F(ServiceProgramTest, SigtermFinishesAndExitsCleanlyAndAKillMinus9LosesNoth
     ASSERT_FALSE(uids.back().empty());
   }
   const fs::path results = dir_ / "results";
-  const std::vector<std::string> arguments{"watch", (dir_ / "inbox").string(), "--out", results.string()};
+  const std::vector<std::string> arguments{"watch", (dir_ / "inbox").string(), "--study-wait", "0",
+                                           "--out", results.string()};
   int moved = 0;
   const auto deliver = [&](int up_to) {  // each file arrives whole (rename), as an export would
     for (; moved < up_to; ++moved) {
@@ -330,9 +281,10 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanPushedWithStorescuAndRefusesStrange
   ASSERT_FALSE(plans.empty());
   const fs::path results = dir_ / "results";
   const std::uint16_t port = free_port();
-  Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
-                    "FERN-TPS", "--out", results.string(), "--method", "tmr", "--depth", "planned"},
-                   dir_ / "receive.log"};
+  Program receiver{
+      {"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae", "FERN-TPS",
+       "--study-wait", "0", "--out", results.string(), "--method", "tmr", "--depth", "planned"},
+      dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
   ASSERT_TRUE(wait_until(
       [&] { return slurp(dir_ / "receive.log").find("receiving as AE") != std::string::npos; }, 20s))
@@ -398,7 +350,7 @@ TEST_F(ServiceProgramTest, AValidPlanWithALatin1NameIsCheckedNotQuarantined) {
   fs::rename(dir_ / "staging.dcm", dir_ / "inbox" / "RP.latin1.dcm");
   const fs::path results = dir_ / "results";
   const auto run = test::run_command(test::quote(test::program().string()) + " watch " +
-                                     test::quote((dir_ / "inbox").string()) + " --out " +
+                                     test::quote((dir_ / "inbox").string()) + " --study-wait 0 --out " +
                                      test::quote(results.string()) + " --once --quiet-seconds 0");
   ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
   EXPECT_EQ(history_uids(results), std::vector<std::string>{uid});
@@ -420,7 +372,7 @@ TEST_F(ServiceProgramTest, ReceiveChecksAPlanWithALatin1NameSentWithStorescu) {
   const fs::path results = dir_ / "results";
   const std::uint16_t port = free_port();
   Program receiver{{"receive", "--port", std::to_string(port), "--ae-title", "FERN-CHECK", "--allow-ae",
-                    "FERN-TPS", "--out", results.string()},
+                    "FERN-TPS", "--study-wait", "0", "--out", results.string()},
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
   ASSERT_TRUE(wait_until(
@@ -470,10 +422,14 @@ TEST_F(ServiceProgramTest, CheckFolderAndWatchTakeTheSameFilesByContentWhateverT
   const fs::path results = dir_ / "results";
   const auto watched =
       test::run_command(test::quote(test::program().string()) + " watch " + test::quote(folder.string()) +
-                        " --out " + test::quote(results.string()) + " --once");
-  EXPECT_EQ(watched.exit_code, 3) << watched.out;  // the CT and the notes were quarantined
+                        " --study-wait 0 --out " + test::quote(results.string()) + " --once");
+  EXPECT_EQ(watched.exit_code, 3) << watched.out;  // the notes were quarantined
   EXPECT_EQ(history_uids(results), expected) << watched.out;
-  EXPECT_TRUE(fs::exists(results / "quarantine" / "CT.1.2.3"));
+  // The CT image is kept for its study (the check reads it as the study too, never as a plan).
+  EXPECT_TRUE(fs::exists(results / "studies" / "2.25.301642988147209845366118572013.105.2.0" /
+                         "2.25.301642988147209845366118572013.105.3.0" /
+                         "2.25.301642988147209845366118572013.105.1.0.dcm"))
+      << watched.out;
   EXPECT_TRUE(fs::exists(results / "quarantine" / "README.txt"));
   // The same exclusions: hidden and temporary files are left alone by both.
   EXPECT_TRUE(fs::exists(folder / ".RP.hidden.dcm"));
@@ -496,8 +452,8 @@ TEST_F(ServiceProgramTest, WatchOnceEndsWithExit3AndNamesAFileItCannotRead) {
   fs::permissions(locked, root ? fs::perms{0600} : fs::perms::none);  // root's own, or nobody's at all
   fs::last_write_time(locked, fs::file_time_type::clock::now() - std::chrono::minutes{1});
   const auto run = test::run_command("timeout 120 " + user + test::quote(test::program().string()) +
-                                     " watch " + test::quote((dir_ / "inbox").string()) + " --out " +
-                                     test::quote(results.string()) + " --once");
+                                     " watch " + test::quote((dir_ / "inbox").string()) +
+                                     " --study-wait 0 --out " + test::quote(results.string()) + " --once");
   EXPECT_EQ(run.exit_code, 3) << run.out << run.err;
   EXPECT_NE(run.out.find("not taken: RP.locked.dcm: error RP.locked.dcm: cannot read"), std::string::npos)
       << run.out;

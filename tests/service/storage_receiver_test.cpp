@@ -169,11 +169,11 @@ TEST_F(StorageReceiverTest, AWrongCalledAeTitleIsRefused) {
   EXPECT_NE(log_text().find("is not ours"), std::string::npos) << log_text();
 }
 
-TEST_F(StorageReceiverTest, ACtImageIsRefused) {
-  // pydicom's bundled CT image as an independent, real DICOM object of another SOP class.
-  const fs::path ct = "/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm";
-  ASSERT_TRUE(fs::exists(ct)) << "python3-pydicom test files not installed (bash tools/install-deps)";
-  const auto stored = store("FERN-TPS", ct);
+TEST_F(StorageReceiverTest, AnMrImageIsRefused) {
+  // pydicom's bundled MR image as an independent, real DICOM object of another SOP class.
+  const fs::path mr = "/usr/lib/python3/dist-packages/pydicom/data/test_files/MR_small.dcm";
+  ASSERT_TRUE(fs::exists(mr)) << "python3-pydicom test files not installed (bash tools/install-deps)";
+  const auto stored = store("FERN-TPS", mr);
   EXPECT_NE(stored.exit_code, 0) << stored.out << stored.err;
   std::this_thread::sleep_for(300ms);
   EXPECT_EQ(count_entries(results() / "incoming"), 0U);

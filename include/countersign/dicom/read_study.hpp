@@ -56,4 +56,21 @@ struct StudyFileIndex {
 [[nodiscard]] study::Result<study::Study> load_study_for_plan(
     const plan::Plan& plan, std::span<const std::filesystem::path> files_or_folders);
 
+// How much of a plan's study has arrived among indexed files, for a service that waits for it: the
+// structure set with this SOP Instance UID, and the CT images its contours were drawn on (Contour
+// Image Sequence (3006,0016)); when it lists none, any CT Image Storage file of its series counts.
+struct StudyArrival {
+  bool structure_set_found = false;
+  std::string ct_series_uid;    // the structure set's CT series (empty until it has arrived)
+  std::size_t ct_expected = 0;  // images its contours name (0: it names none)
+  std::size_t ct_found = 0;     // of them (or of the series) among the files
+  [[nodiscard]] bool complete() const {
+    return structure_set_found && ct_found > 0 && ct_found >= ct_expected;
+  }
+  // What is still missing, e.g. "RT Structure Set 1.2.3" or "12 of 20 CT images of series 1.2.4".
+  [[nodiscard]] std::string missing(const std::string& structure_set_uid) const;
+};
+
+[[nodiscard]] StudyArrival study_arrival(const StudyFileIndex& index, const std::string& structure_set_uid);
+
 }  // namespace countersign::dicom

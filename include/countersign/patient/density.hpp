@@ -25,7 +25,8 @@ class DensityMap {
   explicit DensityMap(const HuToDensity& relation);
 
   [[nodiscard]] double density(std::int16_t hu) const {
-    return table_[static_cast<std::size_t>(static_cast<int>(hu) + 32768)];
+    const int index = hu + 32768;  // 0 for -32768 HU
+    return table_[static_cast<std::size_t>(index)];
   }
   [[nodiscard]] bool covers(std::int16_t hu) const { return hu >= lowest_hu_ && hu <= highest_hu_; }
 

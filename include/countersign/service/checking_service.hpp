@@ -13,6 +13,7 @@
 #include <countersign/service/plan_outcome.hpp>
 #include <countersign/service/private_files.hpp>
 #include <countersign/service/service_log.hpp>
+#include <countersign/service/study_store.hpp>
 #include <countersign/store/store.hpp>
 #include <countersign/util/error.hpp>
 
@@ -32,6 +33,9 @@ struct ServiceSettings {
   IntakeOptions intake;
   WatchOptions watch;
   FollowUpSettings follow_ups;
+  // CT images and structure sets kept under RESULTS/studies, plans waiting for them; none: plans
+  // are checked without a CT study and CT images are not plans (quarantined).
+  std::optional<StudyStoreSettings> studies;
 };
 
 // Where the history of a service with these settings is.
@@ -54,9 +58,11 @@ class CheckingService {
   void wait_for_follow_ups(std::chrono::seconds timeout);
 
  private:
-  CheckingService(FolderLock lock, PlanIntake intake, std::unique_ptr<ServiceFollowUps> follow_ups);
+  CheckingService(FolderLock lock, PlanIntake intake, std::unique_ptr<ServiceFollowUps> follow_ups,
+                  std::unique_ptr<StudyStore> studies);
 
   FolderLock lock_;
+  std::unique_ptr<StudyStore> studies_;  // before the intake that uses it
   PlanIntake intake_;
   std::unique_ptr<ServiceFollowUps> follow_ups_;  // after the intake: stopped first
   std::optional<FolderWatcher> watcher_;

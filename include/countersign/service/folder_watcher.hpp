@@ -34,6 +34,8 @@ struct WatchSummary {
   std::size_t duplicates = 0;
   std::size_t quarantined = 0;
   std::size_t failures = 0;            // failed attempts (unreadable files, our own failures)
+  std::size_t kept_for_study = 0;      // CT images and structure sets moved to the study store
+  std::size_t discarded = 0;           // other RT objects, logged and removed
   std::vector<std::string> not_taken;  // one_pass: "<name>: <why>" for each file left in the inbox
 };
 

@@ -12,6 +12,7 @@
 
 #include <countersign/service/plan_outcome.hpp>
 #include <countersign/service/service_log.hpp>
+#include <countersign/service/study_store.hpp>
 #include <countersign/store/store.hpp>
 #include <countersign/util/error.hpp>
 
@@ -21,6 +22,7 @@
 #include <map>
 #include <memory>
 #include <optional>
+#include <set>
 #include <span>
 #include <string>
 #include <string_view>
@@ -72,6 +74,8 @@ enum class IntakeStatus {
   failed,       // could not be taken now (unreadable, or our own failure); the file stays; retry at retry_at
   deferred,     // not looked at: the batch ended early (stop request or time budget); take it first next
   ignored,      // not a candidate: vanished, a directory, a symbolic link, a hidden or temporary name
+  kept_for_study,  // a CT image or RT Structure Set: moved to the study store for the plans made on it
+  discarded,       // another RT object (RT Dose, RT Image, a treatment record): logged and removed
 };
 
 struct IntakeResult {
@@ -121,6 +125,10 @@ class PlanIntake {
   [[nodiscard]] IntakeResult take(const std::filesystem::path& file, Arrival arrival = Arrival::complete,
                                   int attempt = 1);
 
+  // The study store (not owned; must outlive the intake), or none: then CT images and structure sets
+  // are not recognised and plans are checked without a CT study, as before.
+  void set_study_store(StudyStore* store) { study_store_ = store; }
+
   // Follow-ups of recorded checks (not owned; must outlive the intake), or none.
   void set_follow_ups(FollowUpSink* sink) { follow_ups_ = sink; }
 
@@ -141,6 +149,11 @@ class PlanIntake {
                                       std::vector<Pending>& pending);
   std::optional<IntakeResult> wait_for_quiet(const IntakeCandidate& candidate, const std::string& signature,
                                              std::chrono::system_clock::time_point modified);
+  std::optional<IntakeResult> route_study_object(const std::filesystem::path& file);
+  std::optional<IntakeResult> wait_for_study(const std::filesystem::path& file,
+                                             std::span<const std::byte> bytes,
+                                             std::chrono::system_clock::time_point arrived,
+                                             StudyContext& study);
   void commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results);
   IntakeResult finish_duplicate(const std::filesystem::path& file, const store::CheckRecord& record,
                                 const std::string& content_sha256, std::string_view how = "");
@@ -159,6 +172,8 @@ class PlanIntake {
   ServiceLog& log_;
   IntakeOptions options_;
   FollowUpSink* follow_ups_ = nullptr;
+  StudyStore* study_store_ = nullptr;
+  std::set<std::filesystem::path> waiting_logged_;  // plans whose wait for their study was logged
   std::string station_;
   std::string results_folder_;  // absolute, as recorded with each check
   // Files written in place whose modification time is in the future (another clock, a time set by

@@ -46,11 +46,19 @@ struct PlanOutcome {
   std::string policy_sha256;    // hash of the tolerance policy in force (every key and value)
 };
 
+// The patient's study for one plan, as the service's study store has it: the folders to read it
+// from when it is complete; otherwise (a plan that named one, waited for, in vain) the sentence that
+// every output carries about checking without it. Both empty: the service keeps no studies.
+struct StudyContext {
+  std::vector<std::filesystem::path> folders;
+  std::string note;
+};
+
 // Turns one complete plan file into an outcome. `file` names it for messages; `bytes` is its whole
-// content as read once by the caller. An Error means the file cannot be checked as it stands; the
-// caller decides whether it is still being written (retry) or bad (quarantine). Must be safe to call
-// from one thread at a time; it is never called concurrently.
-using PlanProcessor =
-    std::function<Expected<PlanOutcome>(const std::filesystem::path& file, std::span<const std::byte> bytes)>;
+// content as read once by the caller; `study` says where its CT study is, if anywhere. An Error means the
+// file cannot be checked as it stands; the caller decides whether it is still being written (retry) or bad
+// (quarantine). Must be safe to call from one thread at a time; it is never called concurrently.
+using PlanProcessor = std::function<Expected<PlanOutcome>(
+    const std::filesystem::path& file, std::span<const std::byte> bytes, const StudyContext& study)>;
 
 }  // namespace countersign::service

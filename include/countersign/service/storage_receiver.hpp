@@ -14,6 +14,7 @@
 // Every refused or dropped connection is logged with the peer's address and the reason.
 // DCMTK stays inside the implementation.
 
+#include <countersign/service/object_classes.hpp>
 #include <countersign/service/peer_allow_list.hpp>
 #include <countersign/service/service_log.hpp>
 #include <countersign/util/error.hpp>
@@ -32,17 +33,10 @@ namespace countersign::service {
 inline constexpr const char* rt_plan_storage_sop_class = "1.2.840.10008.5.1.4.1.1.481.5";
 inline constexpr const char* verification_sop_class = "1.2.840.10008.1.1";
 
-// A storage SOP class the receiver accepts, and the prefix of the file names it stores it under.
-struct AcceptedStorageClass {
-  const char* sop_class_uid;
-  const char* name;
-  const char* file_prefix;
-};
-
-// The storage SOP classes accepted (one presentation context each); adding a class is one line.
-inline constexpr std::array accepted_storage_classes{
-    AcceptedStorageClass{rt_plan_storage_sop_class, "RT Plan", "RP"},
-};
+// The storage SOP classes accepted (one presentation context each): plans, their studies (CT, RT
+// Structure Set) and the RT objects that come with them (logged and discarded by the intake).
+using AcceptedStorageClass = StorageClass;
+inline constexpr const auto& accepted_storage_classes = storage_classes;
 
 // TLS with DCMTK's OpenSSL layer: our certificate and key, and the CA that signed the senders'
 // certificates. A peer without a certificate signed by that CA is refused.
