@@ -58,6 +58,7 @@ bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolv
 BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0, bool modulated) {
   BeamOutline outline;
   outline.jaws = aperture0.jaws();
+  outline.leaf_travel = aperture0.leaf_travel();
   if (!modulated) {
     outline.open = aperture0.rows();
     outline.shaped_by_mlc = aperture0.shaped_by_mlc();

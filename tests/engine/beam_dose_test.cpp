@@ -286,14 +286,35 @@ TEST_F(Fixture, MissingGantryAngle) {
   EXPECT_EQ(r.problem->control_point, 0);
 }
 
-TEST_F(Fixture, MlcyIsUnsupportedGeometry) {
+TEST_F(Fixture, MlcyWithoutLeafBoundariesIsMissingPlanData) {
   plan::Beam beam = static_beam(1, 0);
   beam.control_points[0].devices.push_back({plan::term(plan::DeviceType::mlcy), {0.0, 0.0}});
   const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
   ASSERT_TRUE(r.problem);
   EXPECT_EQ(r.problem->kind, ProblemKind::aperture_unusable);
   ASSERT_TRUE(r.problem->cause);
-  EXPECT_EQ(r.problem->cause->kind, ErrorKind::bad_value);  // the geometry module's error, kept
+  EXPECT_EQ(r.problem->cause->kind, ErrorKind::missing_attribute);  // the geometry module's error, kept
+  EXPECT_EQ(r.problem->cause->tag, "(300A,00BE)");
+}
+
+TEST_F(Fixture, MlcyFieldAsWideAsTheJawsGivesTheJawFieldsDose) {
+  // Ten 10 mm MLCY leaf pairs across x, every pair open beyond the 10 x 10 cm jaws: the sector
+  // integration of the opening reproduces the tables' Sp·TMR of the 10 x 10 cm field (within 0.5 %).
+  plan::Beam beam = static_beam(1, 0);
+  plan::BeamLimitingDevice mlc;
+  mlc.type = plan::term(plan::DeviceType::mlcy);
+  mlc.pair_count = 10;
+  for (int i = 0; i <= 10; ++i) mlc.leaf_boundaries_mm.push_back(-50.0 + 10.0 * i);
+  beam.beam_limiting_devices.push_back(mlc);
+  std::vector<double> positions(10, -60.0);
+  positions.insert(positions.end(), 10, 60.0);
+  beam.control_points[0].devices.push_back({plan::term(plan::DeviceType::mlcy), positions});
+  const BeamDose open = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}));
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem) << shown(r.problem);
+  EXPECT_EQ(r.segments.front().scatter_method, ScatterMethod::sector_integration);
+  EXPECT_EQ(r.aperture.leaf_travel(), geometry::LeafTravel::y);
+  EXPECT_NEAR(r.computed_dose_gy / open.computed_dose_gy, 1.0, 0.005);
 }
 
 TEST_F(Fixture, PointAboveTheSurfaceIsUnsupportedGeometry) {
