@@ -184,6 +184,11 @@ Finding geometry_finding(const CalculationProblem& p) {
       return {Reason::missing_beam_data,
               fmt::format("beam {} has no OAR table and the point is {:.1f} cm off axis", p.library_beam,
                           util::mm_to_cm(p.plan_value.value_or(0.0)))};
+    case ProblemKind::block_transmission_missing:
+      return {Reason::missing_beam_data,
+              fmt::format("block {} gives no Block Transmission (300A,0102) and beam {} has no "
+                          "block_transmission; the dose behind and beside a block depends on it",
+                          p.item_id.empty() ? std::string{"?"} : p.item_id, p.library_beam)};
     default:
       return {Reason::missing_plan_data, "the calculation stopped"};
   }
@@ -276,8 +281,10 @@ std::string approximation_sentence(const engine::Approximation& a, const engine:
       return "MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.";
     case engine::ApproximationKind::mlc_envelope_as_collimator:
       return "No jaw positions for one axis: the MLC envelope stands in for the collimator field (Sc).";
-    case engine::ApproximationKind::blocks_not_modelled:
-      return "Block shapes are not modelled: the field inside the jaws and MLC is used for Sp and TMR/PDD.";
+    case engine::ApproximationKind::blocks_as_outlines:
+      return "Blocks: their outlines (Block Data) as stated at the isocentre plane, sharp edges without "
+             "penumbra, a uniform transmission (Block Transmission, else the library's block_transmission); "
+             "the equivalent square ignores them.";
     case engine::ApproximationKind::mayneord_f_factor:
       return fmt::format(
           "PDD at SSD {:.1f} cm from the table at {:.1f} cm by the Mayneord F factor, which ignores the "

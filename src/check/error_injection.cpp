@@ -128,13 +128,13 @@ bool toggle_wedge(plan::Beam& beam, const beamdata::Library& library, Injection&
 bool toggle_tray(plan::Beam& beam, const beamdata::Library& library, Injection& out) {
   const beamdata::BeamData* data = library_beam(beam, library);
   if (!beam.blocks.empty()) {
-    if (data != nullptr) out.tray_removed = data->tray(beam.blocks.front().id);
-    out.description = fmt::format("Block Tray ID (300A,00F5) \"{}\" removed", beam.blocks.front().id);
+    if (data != nullptr) out.tray_removed = data->tray(beam.blocks.front().tray_id);
+    out.description = fmt::format("Block Tray ID (300A,00F5) \"{}\" removed", beam.blocks.front().tray_id);
     beam.blocks.clear();
     return true;
   }
   if (data == nullptr || data->trays.empty()) return false;
-  beam.blocks.push_back({1, data->trays.front().id, "SHIELDING"});
+  beam.blocks.push_back(tray_marker_block(data->trays.front().id));
   out.tray_added = &data->trays.front();
   out.description = fmt::format("Block tray \"{}\" added", data->trays.front().id);
   return true;

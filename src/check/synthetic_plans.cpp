@@ -203,7 +203,7 @@ SyntheticPlan make_plan(const beamdata::Machine& machine, const beamdata::BeamDa
     for (plan::ControlPoint& cp : beam.control_points)
       cp.wedge_positions.push_back({1, plan::parse_term<plan::WedgePositionState>("IN")});
   }
-  if (spec.tray != nullptr) beam.blocks.push_back({1, spec.tray->id, "SHIELDING"});
+  if (spec.tray != nullptr) beam.blocks.push_back(tray_marker_block(spec.tray->id));
   beam.final_cumulative_meterset_weight = beam.control_points.back().cumulative_meterset_weight;
   beam.referenced_patient_setup_number = 1;
   p.beams.push_back(std::move(beam));
@@ -211,6 +211,20 @@ SyntheticPlan make_plan(const beamdata::Machine& machine, const beamdata::BeamDa
 }
 
 }  // namespace
+
+plan::Block tray_marker_block(const std::string& tray_id) {
+  plan::Block block;
+  block.number = 1;
+  block.tray_id = tray_id;
+  block.type = plan::parse_term<plan::BlockType>("SHIELDING");
+  block.divergence = plan::parse_term<plan::BlockDivergence>("PRESENT");
+  block.source_to_tray_mm = 650.0;
+  block.material_id = "ALLOY";
+  block.thickness_mm = 75.0;
+  block.transmission = 0.05;
+  block.outline_mm = {{300.0, 300.0}, {310.0, 300.0}, {310.0, 310.0}, {300.0, 310.0}};
+  return block;
+}
 
 const char* wedge_type(const beamdata::WedgeData& wedge) {
   return wedge.kind == beamdata::WedgeKind::dynamic ? "DYNAMIC" : "STANDARD";

@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <map>
 #include <set>
@@ -128,6 +129,70 @@ std::vector<plan::Accessory> parse_accessories(const std::vector<ItemReader>& it
     accessories.push_back(std::move(accessory));
   }
   return accessories;
+}
+
+// Block Data (300A,0106): Block Number of Points (300A,0104) (x, y) pairs, at least a triangle.
+std::vector<std::array<double, 2>> block_outline(const ItemReader& item) {
+  std::vector<std::array<double, 2>> outline;
+  const auto points = item.integer(DCM_BlockNumberOfPoints, Need::required);
+  const auto values = item.numbers(DCM_BlockData, Need::required, 0);
+  if (!points || !values) return outline;
+  if (*points < 3) {
+    item.fail(ErrorKind::bad_value, DCM_BlockNumberOfPoints,
+              fmt::format("is {}; a block outline needs at least 3 points", *points));
+    return outline;
+  }
+  if (values->size() % 2 != 0) {
+    item.fail(ErrorKind::bad_value, DCM_BlockData,
+              fmt::format("has {} values; it holds (x, y) pairs, so the count must be even", values->size()));
+    return outline;
+  }
+  if (values->size() != 2 * static_cast<std::size_t>(*points)) {
+    item.fail(ErrorKind::inconsistent, DCM_BlockData,
+              fmt::format("has {} values but BlockNumberOfPoints (300A,0104) says {} points ({} values)",
+                          values->size(), *points, 2 * *points));
+    return outline;
+  }
+  for (std::size_t i = 0; i < values->size(); i += 2) {
+    if (std::abs((*values)[i]) > max_coordinate_mm || std::abs((*values)[i + 1]) > max_coordinate_mm) {
+      item.fail(ErrorKind::bad_value, DCM_BlockData,
+                fmt::format("vertex ({}, {}) mm is implausible", (*values)[i], (*values)[i + 1]));
+      return outline;
+    }
+    outline.push_back({(*values)[i], (*values)[i + 1]});
+  }
+  return outline;
+}
+
+// Block Sequence (300A,00F4): every block with its outline (PS3.3 C.8.8.14, Block Sequence).
+std::vector<plan::Block> parse_blocks(const ItemReader& beam) {
+  std::vector<plan::Block> blocks;
+  for (const auto& item : counted_sequence(beam, DCM_NumberOfBlocks, DCM_BlockSequence)) {
+    plan::Block block;
+    block.number = item.integer(DCM_BlockNumber, Need::required);
+    block.tray_id = item.text(DCM_BlockTrayID, Need::optional);
+    block.name = item.text(DCM_BlockName, Need::optional);
+    block.type = item.term<plan::BlockType>(DCM_BlockType, Need::required);
+    if (!item.failed() && block.type != plan::BlockType::shielding &&
+        block.type != plan::BlockType::aperture) {
+      item.fail(ErrorKind::bad_value, DCM_BlockType,
+                "\"" + printable(block.type.text) + "\" is not SHIELDING or APERTURE");
+    }
+    block.divergence = item.term<plan::BlockDivergence>(DCM_BlockDivergence, Need::optional);
+    block.mounting_position = item.text(DCM_BlockMountingPosition, Need::optional);
+    block.source_to_tray_mm =
+        item.within(DCM_SourceToBlockTrayDistance, item.number(DCM_SourceToBlockTrayDistance, Need::optional),
+                    1.0, max_coordinate_mm, "mm");
+    block.material_id = item.text(DCM_MaterialID, Need::optional);
+    block.thickness_mm = item.within(DCM_BlockThickness, item.number(DCM_BlockThickness, Need::optional), 0.0,
+                                     max_coordinate_mm, "mm");
+    block.transmission =
+        item.within(DCM_BlockTransmission, item.number(DCM_BlockTransmission, Need::optional), 0.0, 1.0, "");
+    block.outline_mm = block_outline(item);
+    if (item.failed()) return blocks;
+    blocks.push_back(std::move(block));
+  }
+  return blocks;
 }
 
 // Values that a later control point may omit when they do not change (PS3.3 C.8.8.14).
@@ -340,8 +405,7 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
                         DCM_CompensatorNumber, DCM_CompensatorID, DCM_CompensatorType, Need::optional);
   beam.boli = parse_accessories(counted_sequence(item, DCM_NumberOfBoli, DCM_ReferencedBolusSequence),
                                 DCM_ReferencedROINumber, DCM_BolusID, DCM_BolusDescription, Need::required);
-  beam.blocks = parse_accessories(counted_sequence(item, DCM_NumberOfBlocks, DCM_BlockSequence),
-                                  DCM_BlockNumber, DCM_BlockTrayID, DCM_BlockType, Need::required);
+  beam.blocks = parse_blocks(item);
   beam.applicators = parse_accessories(item.sequence(DCM_ApplicatorSequence, Need::optional), std::nullopt,
                                        DCM_ApplicatorID, DCM_ApplicatorType, Need::optional);
   beam.general_accessories = parse_accessories(item.sequence(DCM_GeneralAccessorySequence, Need::optional),

@@ -24,7 +24,7 @@ struct WriteFailure : std::runtime_error {
 void put(DcmItem& item, const DcmTagKey& tag, const std::string& value) {
   if (item.putAndInsertString(tag, value.c_str()).bad())
     throw WriteFailure(std::string("cannot write ") + DcmTag(tag).getTagName() + " " +
-                       tag.toString().c_str());
+                       tag.toString());
 }
 
 // A decimal string of at most 16 characters (DS).
@@ -207,17 +207,21 @@ void write_accessories(DcmItem& item, const plan::Beam& beam) {
   put(item, DCM_NumberOfBoli, "0");
   put(item, DCM_NumberOfBlocks, std::to_string(beam.blocks.size()));
   for (std::size_t b = 0; b < beam.blocks.size(); ++b) {
-    // A tray with one small shielding block far outside the field (the model keeps the tray only).
+    const plan::Block& source = beam.blocks[b];
     DcmItem& block = new_item(item, DCM_BlockSequence, b);
-    put(block, DCM_BlockTrayID, beam.blocks[b].id);
-    put(block, DCM_SourceToBlockTrayDistance, "650");
-    put(block, DCM_BlockType, "SHIELDING");
-    put(block, DCM_BlockDivergence, "PRESENT");
-    put(block, DCM_BlockNumber, std::to_string(beam.blocks[b].number.value_or(static_cast<int>(b) + 1)));
-    put(block, DCM_MaterialID, "ALLOY");
-    put(block, DCM_BlockThickness, "75");
-    put(block, DCM_BlockNumberOfPoints, "4");
-    put(block, DCM_BlockData, ds_list({300.0, 300.0, 310.0, 300.0, 310.0, 310.0, 300.0, 310.0}));
+    put(block, DCM_BlockTrayID, source.tray_id);
+    put(block, DCM_SourceToBlockTrayDistance, source.source_to_tray_mm ? ds(*source.source_to_tray_mm) : "");
+    put(block, DCM_BlockType, source.type.absent() ? "SHIELDING" : source.type.text);
+    put(block, DCM_BlockDivergence, source.divergence.text);
+    put(block, DCM_BlockNumber, std::to_string(source.number.value_or(static_cast<int>(b) + 1)));
+    if (!source.name.empty()) put(block, DCM_BlockName, source.name);
+    put(block, DCM_MaterialID, source.material_id);
+    put(block, DCM_BlockThickness, source.thickness_mm ? ds(*source.thickness_mm) : "");
+    if (source.transmission) put(block, DCM_BlockTransmission, ds(*source.transmission));
+    put(block, DCM_BlockNumberOfPoints, std::to_string(source.outline_mm.size()));
+    std::vector<double> data;
+    for (const auto& v : source.outline_mm) data.insert(data.end(), {v[0], v[1]});
+    put(block, DCM_BlockData, ds_list(data));
   }
 }
 

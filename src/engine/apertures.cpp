@@ -4,6 +4,9 @@
 
 #include <countersign/geometry/swept_opening.hpp>
 
+#include <algorithm>
+#include <cmath>
+
 namespace countersign::engine::stages {
 
 StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam, const plan::ControlPoint& cp,
@@ -19,6 +22,35 @@ StageResult<geometry::Aperture> aperture_at(const plan::Beam& beam, const plan::
   return std::move(built).value();
 }
 
+bool in_open_field(const geometry::Aperture& aperture, const std::vector<BlockShape>& blocks, double x_mm,
+                   double y_mm) {
+  if (aperture.area_mm2() <= 0.0 || !aperture.contains(x_mm, y_mm)) return false;
+  return std::all_of(blocks.begin(), blocks.end(),
+                     [&](const BlockShape& b) { return b.contains(x_mm, y_mm) == b.aperture; });
+}
+
+double open_field_edge_distance_mm(const geometry::Aperture& aperture, const std::vector<BlockShape>& blocks,
+                                   double x_mm, double y_mm) {
+  double nearest = aperture.distance_to_edge_mm(x_mm, y_mm);
+  for (const BlockShape& block : blocks) {
+    const auto& v = block.outline_mm;
+    for (std::size_t i = 0; i < v.size(); ++i) {
+      const auto& a = v[i];
+      const auto& b = v[(i + 1) % v.size()];
+      const double dx = b[0] - a[0];
+      const double dy = b[1] - a[1];
+      const double length2 = dx * dx + dy * dy;
+      const double t =
+          length2 > 0.0 ? std::clamp(((x_mm - a[0]) * dx + (y_mm - a[1]) * dy) / length2, 0.0, 1.0) : 0.0;
+      const double cx = a[0] + t * dx;
+      const double cy = a[1] + t * dy;
+      // A block edge hidden behind the jaws or leaves is no edge of the open field.
+      if (aperture.contains(cx, cy)) nearest = std::min(nearest, std::hypot(x_mm - cx, y_mm - cy));
+    }
+  }
+  return nearest;
+}
+
 bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolved) {
   return aperture.shaped_by_mlc() || !resolved.blocks.empty();
 }
@@ -26,6 +58,7 @@ bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolv
 BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0, bool modulated) {
   BeamOutline outline;
   outline.jaws = aperture0.jaws();
+  outline.leaf_travel = aperture0.leaf_travel();
   if (!modulated) {
     outline.open = aperture0.rows();
     outline.shaped_by_mlc = aperture0.shaped_by_mlc();

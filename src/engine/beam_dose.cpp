@@ -46,7 +46,7 @@ void add_beam_approximations(const ResolvedBeam& resolved, const MetersetSplit& 
       r.aperture.jaws().y_source == geometry::JawSource::mlc_envelope) {
     r.approximations.push_back({ApproximationKind::mlc_envelope_as_collimator});
   }
-  if (r.features.blocks) r.approximations.push_back({ApproximationKind::blocks_not_modelled});
+  if (r.features.blocks) r.approximations.push_back({ApproximationKind::blocks_as_outlines});
   const double ssd0_cm = util::mm_to_cm(surface_distance_mm(r));
   if (r.method == Method::pdd && std::abs(ssd0_cm - data.pdd_ssd_cm) > 0.05) {
     Approximation a{ApproximationKind::mayneord_f_factor};
@@ -60,8 +60,10 @@ void add_beam_approximations(const ResolvedBeam& resolved, const MetersetSplit& 
 StageResult<void> open_field(const plan::Beam& beam, const ResolvedBeam& resolved, BeamDose& r) {
   const plan::ControlPoint& cp0 = beam.control_points.front();
   TRY_ASSIGN(r.aperture, aperture_at(beam, cp0, 0, *resolved.data));
-  r.point_in_field = r.aperture.contains(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
-  r.edge_distance_mm = r.aperture.distance_to_edge_mm(r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
+  r.point_in_field =
+      in_open_field(r.aperture, resolved.blocks, r.point.iso_plane_x_mm, r.point.iso_plane_y_mm);
+  r.edge_distance_mm = open_field_edge_distance_mm(r.aperture, resolved.blocks, r.point.iso_plane_x_mm,
+                                                   r.point.iso_plane_y_mm);
   r.features.jaw_centre_offset_mm = r.aperture.jaws().centre_offset_mm();
   const double jaw_area_mm2 = r.aperture.jaws().width_mm() * r.aperture.jaws().length_mm();
   r.features.open_to_jaw_area_ratio = jaw_area_mm2 > 0.0 ? r.aperture.area_mm2() / jaw_area_mm2 : 0.0;

@@ -43,10 +43,10 @@ StageResult<void> resolve_accessories(const plan::Beam& beam, const beamdata::Be
     }
   }
   std::string tray_id;
-  for (const plan::Accessory& block : beam.blocks) {
-    if (block.id.empty()) continue;
-    if (!tray_id.empty() && block.id != tray_id) return problem_of(ProblemKind::several_block_trays);
-    tray_id = block.id;
+  for (const plan::Block& block : beam.blocks) {
+    if (block.tray_id.empty()) continue;
+    if (!tray_id.empty() && block.tray_id != tray_id) return problem_of(ProblemKind::several_block_trays);
+    tray_id = block.tray_id;
   }
   if (!tray_id.empty()) {
     resolved.tray = data.tray(tray_id);
@@ -57,6 +57,31 @@ StageResult<void> resolve_accessories(const plan::Beam& beam, const beamdata::Be
       problem.library_beam = data.id;
       return problem;
     }
+  }
+  return {};
+}
+
+// The beam's blocks as the sector integration and the primary path see them: outlines at the
+// isocentre plane (as Block Data states them), each with the plan's Block Transmission or else the
+// library's block_transmission; neither: not checked.
+StageResult<void> resolve_blocks(const plan::Beam& beam, const beamdata::BeamData& data,
+                                 ResolvedBeam& resolved) {
+  for (const plan::Block& block : beam.blocks) {
+    BlockShape shape;
+    shape.outline_mm = block.outline_mm;
+    shape.aperture = block.type == plan::BlockType::aperture;
+    if (block.transmission) {
+      shape.transmission = *block.transmission;
+    } else if (data.block_transmission) {
+      shape.transmission = *data.block_transmission;
+    } else {
+      CalculationProblem problem = problem_of(ProblemKind::block_transmission_missing);
+      problem.attribute = attribute::block_transmission;
+      problem.library_beam = data.id;
+      problem.item_id = block.number ? std::to_string(*block.number) : std::string{};
+      return problem;
+    }
+    resolved.blocks.push_back(std::move(shape));
   }
   return {};
 }
@@ -116,6 +141,7 @@ StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam&
   r.beam_data = match.beam;
 
   TRY(resolve_accessories(beam, *resolved.data, resolved));
+  TRY(resolve_blocks(beam, *resolved.data, resolved));
   r.features.wedged = resolved.wedge != nullptr;
   r.features.tray = resolved.tray != nullptr;
   r.features.blocks = !beam.blocks.empty();

@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <utility>
 
 namespace countersign::engine {
 
@@ -55,6 +56,7 @@ bool ray_through_box(double px, double py, double ux, double uy, double x0, doub
 
 // Whether a point lies in an open leaf-pair row (rows are sorted by y, as the aperture builds them).
 bool in_opening(const geometry::Aperture& aperture, double x, double y) {
+  if (aperture.leaf_travel() == geometry::LeafTravel::y) std::swap(x, y);  // rows are in the leaves' frame
   const std::vector<geometry::ApertureRow>& rows = aperture.rows();
   auto it = std::upper_bound(rows.begin(), rows.end(), y,
                              [](double v, const geometry::ApertureRow& r) { return v < r.y_lower_mm; });
@@ -76,10 +78,12 @@ void collect_breakpoints(const SectorField& field, double px, double py, double 
   const auto add = [&](double t) {
     if (t > 0.0 && t < t_max) ts.push_back(t);
   };
+  const geometry::LeafTravel travel = field.aperture->leaf_travel();
   for (const geometry::ApertureRow& r : field.aperture->rows()) {
     double a = 0.0;
     double b = 0.0;
-    if (r.open() && ray_through_box(px, py, ux, uy, r.lo_mm, r.hi_mm, r.y_lower_mm, r.y_upper_mm, a, b)) {
+    const geometry::RectMm box = r.rect(travel);
+    if (r.open() && ray_through_box(px, py, ux, uy, box.x1_mm, box.x2_mm, box.y1_mm, box.y2_mm, a, b)) {
       add(a);
       add(b);
     }

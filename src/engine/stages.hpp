@@ -103,6 +103,16 @@ struct PartDepths {
                                                           int control_point_index,
                                                           const beamdata::BeamData& data);
 
+// Whether a point of the isocentre plane sees the source through the opening and past every block
+// (inside an APERTURE block's outline, outside a SHIELDING block's).
+[[nodiscard]] bool in_open_field(const geometry::Aperture& aperture, const std::vector<BlockShape>& blocks,
+                                 double x_mm, double y_mm);
+// Distance from a point of the isocentre plane to the nearest edge of the open field: the opening's
+// edges and the parts of block edges that lie inside the opening.
+[[nodiscard]] double open_field_edge_distance_mm(const geometry::Aperture& aperture,
+                                                 const std::vector<BlockShape>& blocks, double x_mm,
+                                                 double y_mm);
+
 // Whether the opening is shaped by anything but the jaws (MLC or blocks): such parts get sector
 // integration.
 [[nodiscard]] bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolved);

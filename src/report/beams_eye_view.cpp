@@ -61,6 +61,7 @@ std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   // The outline is the one the engine built with the apertures; nothing is rebuilt here.
   c.jaws = dose.outline.jaws;
   c.open = dose.outline.open;
+  c.leaf_travel = dose.outline.leaf_travel;
   c.shaped_by_mlc = !c.modulated && dose.outline.shaped_by_mlc;
   c.outline_known = dose.outline.known;
   if (dose.patient) {
@@ -93,8 +94,9 @@ BevMapping bev_mapping(const BevContent& content, const BevPanel& panel) {
     for (const double y : {j.y1_mm, j.y2_mm}) reach(x, y);
   }
   for (const auto& r : content.open) {
-    for (const double x : {r.lo_mm, r.hi_mm}) {
-      for (const double y : {r.y_lower_mm, r.y_upper_mm}) reach(x, y);
+    const geometry::RectMm b = r.rect(content.leaf_travel);
+    for (const double x : {b.x1_mm, b.x2_mm}) {
+      for (const double y : {b.y1_mm, b.y2_mm}) reach(x, y);
     }
   }
   if (content.dose_point_mm) reach(content.dose_point_mm->x, content.dose_point_mm->y);
@@ -167,11 +169,18 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
   svg += text({3.0, 5.5}, "\u25B2 towards gantry", "start", 2.5);
 
   const geometry::JawOpening& j = c.jaws;
+  // A rectangle given in the leaves' frame (u along their travel, v across).
+  const bool along_y = c.leaf_travel == geometry::LeafTravel::y;
+  const auto leaf_frame = [&](double u1, double v1, double u2, double v2, std::string_view style) {
+    return along_y ? polygon(m, v1, u1, v2, u2, style) : polygon(m, u1, v1, u2, v2, style);
+  };
+  const double ju1 = along_y ? j.y1_mm : j.x1_mm;
+  const double ju2 = along_y ? j.y2_mm : j.x2_mm;
   if (c.modulated) {
     // Area open in at least one part, then the jaw envelope (dashed).
     for (const auto& r : c.open) {
-      svg += polygon(m, r.lo_mm, r.y_lower_mm, r.hi_mm, r.y_upper_mm,
-                     "fill=\"#d4d4d4\" stroke=\"#d4d4d4\" stroke-width=\"0.05\"");
+      svg += leaf_frame(r.lo_mm, r.y_lower_mm, r.hi_mm, r.y_upper_mm,
+                        "fill=\"#d4d4d4\" stroke=\"#d4d4d4\" stroke-width=\"0.05\"");
     }
     svg += polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm,
                    "fill=\"none\" stroke=\"#000\" stroke-width=\"0.5\" stroke-dasharray=\"2.2 1.2\"");
@@ -181,11 +190,11 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
       const std::string_view leaf = "fill=\"#c4c4c4\" stroke=\"#3a3a3a\" stroke-width=\"0.12\"";
       for (const auto& r : c.open) {
         if (!r.open()) {
-          svg += polygon(m, j.x1_mm, r.y_lower_mm, j.x2_mm, r.y_upper_mm, leaf);
+          svg += leaf_frame(ju1, r.y_lower_mm, ju2, r.y_upper_mm, leaf);
           continue;
         }
-        if (r.lo_mm > j.x1_mm) svg += polygon(m, j.x1_mm, r.y_lower_mm, r.lo_mm, r.y_upper_mm, leaf);
-        if (r.hi_mm < j.x2_mm) svg += polygon(m, r.hi_mm, r.y_lower_mm, j.x2_mm, r.y_upper_mm, leaf);
+        if (r.lo_mm > ju1) svg += leaf_frame(ju1, r.y_lower_mm, r.lo_mm, r.y_upper_mm, leaf);
+        if (r.hi_mm < ju2) svg += leaf_frame(r.hi_mm, r.y_lower_mm, ju2, r.y_upper_mm, leaf);
       }
     }
     svg +=

@@ -42,6 +42,26 @@ json accessories(const std::vector<plan::Accessory>& items) {
   return list;
 }
 
+// Blocks: the first three keys as before (id = Block Tray ID), then the block's own attributes.
+json blocks(const std::vector<plan::Block>& items) {
+  json list = json::array();
+  for (const auto& block : items) {
+    json outline = json::array();
+    for (const auto& v : block.outline_mm) outline.push_back(json::array({v[0], v[1]}));
+    list.push_back({{"number", optional_value(block.number)},
+                    {"id", optional_text(block.tray_id)},
+                    {"type", optional_text(block.type)},
+                    {"name", optional_text(block.name)},
+                    {"divergence", optional_text(block.divergence)},
+                    {"source_to_tray_mm", optional_value(block.source_to_tray_mm)},
+                    {"material_id", optional_text(block.material_id)},
+                    {"thickness_mm", optional_value(block.thickness_mm)},
+                    {"transmission", optional_value(block.transmission)},
+                    {"outline_mm", outline}});
+  }
+  return list;
+}
+
 // Jaw pair positions from X/ASYMX and Y/ASYMY, whichever the plan uses.
 json jaws(const plan::ControlPoint* cp) {
   json out = {{"x1", nullptr}, {"x2", nullptr}, {"y1", nullptr}, {"y2", nullptr}};
@@ -146,8 +166,9 @@ json beam_json(const plan::Plan& plan, const plan::Beam& beam) {
   }
   json tray_ids = json::array();
   for (const auto& block : beam.blocks) {
-    if (!block.id.empty() && std::find(tray_ids.begin(), tray_ids.end(), block.id) == tray_ids.end()) {
-      tray_ids.push_back(block.id);
+    if (!block.tray_id.empty() &&
+        std::find(tray_ids.begin(), tray_ids.end(), block.tray_id) == tray_ids.end()) {
+      tray_ids.push_back(block.tray_id);
     }
   }
   json cps = json::array();
@@ -177,7 +198,7 @@ json beam_json(const plan::Plan& plan, const plan::Beam& beam) {
           {"mlc_leaf_pairs", mlc_pairs},
           {"beam_limiting_devices", devices},
           {"wedges", wedges},
-          {"blocks", accessories(beam.blocks)},
+          {"blocks", blocks(beam.blocks)},
           {"block_tray_ids", tray_ids},
           {"applicators", accessories(beam.applicators)},
           {"compensators", accessories(beam.compensators)},

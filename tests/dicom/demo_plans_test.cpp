@@ -127,7 +127,8 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
       EXPECT_TRUE(beam->blocks.empty());
     } else {
       ASSERT_EQ(beam->blocks.size(), 1u);
-      EXPECT_EQ(beam->blocks[0].id, row.at("tray_id"));
+      EXPECT_EQ(beam->blocks[0].tray_id, row.at("tray_id"));
+      EXPECT_GE(beam->blocks[0].outline_mm.size(), 3u);
     }
 
     const plan::ReferencedBeam* ref = reference(plan, number);

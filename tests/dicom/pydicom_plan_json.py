@@ -99,6 +99,20 @@ def accessories(items, number_kw, id_kw, type_kw):
             for i in items]
 
 
+def blocks_of(items):
+    """Block Sequence items: the three accessory keys, then the block's own attributes."""
+    out = []
+    for i in items:
+        data = numbers(i, "BlockData") or []
+        out.append({"number": integer(i, "BlockNumber"), "id": text(i, "BlockTrayID"), "type": text(i, "BlockType"),
+                    "name": text(i, "BlockName"), "divergence": text(i, "BlockDivergence"),
+                    "source_to_tray_mm": number(i, "SourceToBlockTrayDistance"),
+                    "material_id": text(i, "MaterialID"), "thickness_mm": number(i, "BlockThickness"),
+                    "transmission": number(i, "BlockTransmission"),
+                    "outline_mm": [[data[k], data[k + 1]] for k in range(0, len(data) - 1, 2)]})
+    return out
+
+
 def jaws(devices):
     out = {"x1": None, "x2": None, "y1": None, "y2": None}
     for pair, lo, hi in ((("X", "ASYMX"), "x1", "x2"), (("Y", "ASYMY"), "y1", "y2")):
@@ -188,7 +202,7 @@ def beam_json(ds, beam):
                           "in_beam_dose_reference_sequence": False})
             points.append(entry)
             listed.add(n)
-    blocks = accessories(sequence(beam, "BlockSequence"), "BlockNumber", "BlockTrayID", "BlockType")
+    blocks = blocks_of(sequence(beam, "BlockSequence"))
     trays = []
     for b in blocks:
         if b["id"] and b["id"] not in trays:

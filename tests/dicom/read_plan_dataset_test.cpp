@@ -27,7 +27,7 @@ TEST(ReadPlanDataset, DatasetLoadedByDcmtkReadsLikeTheFile) {
   ASSERT_TRUE(from_file.has_value());
   EXPECT_EQ(plan->sop_instance_uid, from_file->sop_instance_uid);
   EXPECT_EQ(plan->patient_setups.at(0).setup_technique.text, "FIXED_SSD");
-  EXPECT_EQ(plan->beams.at(0).blocks.at(0).id, "TRAY-A");
+  EXPECT_EQ(plan->beams.at(0).blocks.at(0).tray_id, "TRAY-A");
   EXPECT_EQ(plan->fraction_groups.at(0).beams.at(0).meterset_mu,
             from_file->fraction_groups.at(0).beams.at(0).meterset_mu);
 }

@@ -10,7 +10,10 @@
 
 #include <gtest/gtest.h>
 
+#include <array>
+#include <optional>
 #include <string>
+#include <vector>
 
 namespace countersign::engine {
 namespace {
@@ -31,6 +34,18 @@ struct Fixture : ::testing::Test {
   }
   const beamdata::BeamData& data() const { return library.machines.front().beams.front(); }
 };
+
+// A block as the plan reader gives it: a polygon at the isocentre plane (mm), a type, a tray.
+plan::Block block(std::vector<std::array<double, 2>> outline_mm, const char* type,
+                  std::optional<double> transmission, const char* tray_id = "TRAY-T") {
+  plan::Block b;
+  b.number = 1;
+  b.tray_id = tray_id;
+  b.type = plan::parse_term<plan::BlockType>(type);
+  b.transmission = transmission;
+  b.outline_mm = std::move(outline_mm);
+  return b;
+}
 
 // For failure messages: the problem's kind and attribute.
 std::string shown(const std::optional<CalculationProblem>& problem) {
@@ -154,13 +169,64 @@ TEST_F(Fixture, UnknownWedgeOrTrayIsUnknownAccessory) {
   EXPECT_EQ(unknown_wedge.problem->plan_text, "W99");
   EXPECT_EQ(unknown_wedge.problem->attribute.tag, "(300A,00D4)");
   plan::Beam tray = static_beam(1, 0);
-  tray.blocks.push_back({1, "NO-SUCH-TRAY", "SHIELDING"});
+  tray.blocks.push_back(block({{300, 300}, {310, 300}, {310, 310}}, "SHIELDING", 0.05, "NO-SUCH-TRAY"));
   EXPECT_EQ(run(make_plan({{tray, 100.0, 1.0, 100.0}})).problem->kind, ProblemKind::tray_not_in_library);
   plan::Beam known = static_beam(1, 0);
-  known.blocks.push_back({1, "TRAY-T", "SHIELDING"});
+  // A block far outside the field: the tray's factor, and no change to the scatter.
+  known.blocks.push_back(block({{300, 300}, {310, 300}, {310, 310}}, "SHIELDING", 0.05));
   const BeamDose r = run(make_plan({{known, 100.0, 1.0, 100.0}}));
   ASSERT_FALSE(r.problem);
   EXPECT_DOUBLE_EQ(r.dose.factors.tray.value, 0.97);
+}
+
+TEST_F(Fixture, BlockWithoutAnyTransmissionIsNotComputed) {
+  plan::Beam beam = static_beam(1, 0);
+  beam.blocks.push_back(block({{20, 20}, {40, 20}, {40, 40}}, "SHIELDING", std::nullopt));
+  library.machines.front().beams.front().block_transmission.reset();
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  ASSERT_TRUE(r.problem);
+  EXPECT_EQ(r.problem->kind, ProblemKind::block_transmission_missing);
+  EXPECT_EQ(r.problem->attribute.tag, "(300A,0102)");
+  // The library's block_transmission stands in when the plan gives none.
+  library.machines.front().beams.front().block_transmission = 0.04;
+  EXPECT_FALSE(run(make_plan({{beam, 100.0, 1.0, 100.0}})).problem);
+}
+
+TEST_F(Fixture, ShieldingBlockFromThePlanReducesScatterAndShadowsThePoint) {
+  // A 10 x 10 cm field with a 5 x 10 cm shielding block over its left part (x up to -10 mm), on tray
+  // TRAY-T (factor 0.97), transmission 3 %: the point on the axis keeps its primary and loses the
+  // scatter of the blocked part. Hand estimate: the point's right half sees the scatter of the
+  // symmetric 10 x 10 cm field, its left half that of a 2 x 10 cm field (Sterling 3.33 cm), so Sp·TMR
+  // is about the mean of the two (0.942 of the open field's with the fixture's tables).
+  plan::Beam open_beam = static_beam(1, 0);
+  plan::Beam blocked = static_beam(1, 0);
+  blocked.blocks.push_back(block({{-60, -60}, {-10, -60}, {-10, 60}, {-60, 60}}, "SHIELDING", 0.03));
+  const BeamDose open = run(make_plan({{open_beam, 100.0, 1.0, 100.0}}));
+  const BeamDose r = run(make_plan({{blocked, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem) << shown(r.problem);
+  ASSERT_FALSE(r.segments.empty());
+  EXPECT_EQ(r.segments.front().scatter_method, ScatterMethod::sector_integration);
+  EXPECT_TRUE(r.point_in_field);
+  EXPECT_NEAR(r.edge_distance_mm, 10.0, 1e-9);  // the block's edge, 1 cm from the point
+  const auto sp_tmr = [](double side_cm) {
+    return test_fixtures::model_sp(side_cm) * test_fixtures::model_tmr(10.0, side_cm);
+  };
+  const double halves = 0.5 * (sp_tmr(10.0 / 3.0) + sp_tmr(10.0)) / sp_tmr(10.0);
+  const double ratio = r.computed_dose_gy / open.computed_dose_gy / 0.97;
+  EXPECT_NEAR(ratio, halves, 0.01);
+  EXPECT_LT(ratio, 1.0);
+  // Under the block: outside the open field, its dose a few percent of the open field's.
+  const BeamDose shadow = run(make_plan({{blocked, 100.0, 1.0, 100.0}}, {-30, 0, 0}));
+  ASSERT_FALSE(shadow.problem) << shown(shadow.problem);
+  EXPECT_FALSE(shadow.point_in_field);
+  EXPECT_LT(shadow.computed_dose_gy / open.computed_dose_gy / 0.97, 0.2);
+  EXPECT_GT(shadow.computed_dose_gy / open.computed_dose_gy / 0.97, 0.03);
+  // An APERTURE block of the same open part gives the same dose.
+  plan::Beam cutout = static_beam(1, 0);
+  cutout.blocks.push_back(block({{-10, -60}, {60, -60}, {60, 60}, {-10, 60}}, "APERTURE", 0.03));
+  const BeamDose same = run(make_plan({{cutout, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(same.problem) << shown(same.problem);
+  EXPECT_NEAR(same.computed_dose_gy, r.computed_dose_gy, 1e-9 * r.computed_dose_gy);
 }
 
 TEST_F(Fixture, CompensatorIsUnsupportedAccessory) {
@@ -220,14 +286,35 @@ TEST_F(Fixture, MissingGantryAngle) {
   EXPECT_EQ(r.problem->control_point, 0);
 }
 
-TEST_F(Fixture, MlcyIsUnsupportedGeometry) {
+TEST_F(Fixture, MlcyWithoutLeafBoundariesIsMissingPlanData) {
   plan::Beam beam = static_beam(1, 0);
   beam.control_points[0].devices.push_back({plan::term(plan::DeviceType::mlcy), {0.0, 0.0}});
   const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
   ASSERT_TRUE(r.problem);
   EXPECT_EQ(r.problem->kind, ProblemKind::aperture_unusable);
   ASSERT_TRUE(r.problem->cause);
-  EXPECT_EQ(r.problem->cause->kind, ErrorKind::bad_value);  // the geometry module's error, kept
+  EXPECT_EQ(r.problem->cause->kind, ErrorKind::missing_attribute);  // the geometry module's error, kept
+  EXPECT_EQ(r.problem->cause->tag, "(300A,00BE)");
+}
+
+TEST_F(Fixture, MlcyFieldAsWideAsTheJawsGivesTheJawFieldsDose) {
+  // Ten 10 mm MLCY leaf pairs across x, every pair open beyond the 10 x 10 cm jaws: the sector
+  // integration of the opening reproduces the tables' Sp·TMR of the 10 x 10 cm field (within 0.5 %).
+  plan::Beam beam = static_beam(1, 0);
+  plan::BeamLimitingDevice mlc;
+  mlc.type = plan::term(plan::DeviceType::mlcy);
+  mlc.pair_count = 10;
+  for (int i = 0; i <= 10; ++i) mlc.leaf_boundaries_mm.push_back(-50.0 + 10.0 * i);
+  beam.beam_limiting_devices.push_back(mlc);
+  std::vector<double> positions(10, -60.0);
+  positions.insert(positions.end(), 10, 60.0);
+  beam.control_points[0].devices.push_back({plan::term(plan::DeviceType::mlcy), positions});
+  const BeamDose open = run(make_plan({{static_beam(1, 0), 100.0, 1.0, 100.0}}));
+  const BeamDose r = run(make_plan({{beam, 100.0, 1.0, 100.0}}));
+  ASSERT_FALSE(r.problem) << shown(r.problem);
+  EXPECT_EQ(r.segments.front().scatter_method, ScatterMethod::sector_integration);
+  EXPECT_EQ(r.aperture.leaf_travel(), geometry::LeafTravel::y);
+  EXPECT_NEAR(r.computed_dose_gy / open.computed_dose_gy, 1.0, 0.005);
 }
 
 TEST_F(Fixture, PointAboveTheSurfaceIsUnsupportedGeometry) {

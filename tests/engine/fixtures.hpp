@@ -36,6 +36,7 @@ inline const std::vector<double> depth_nodes_cm{1.5, 2, 3, 4, 5, 6, 7, 8, 10, 12
 
 inline beamdata::Table1D table_1d(const std::string& quantity, double (*f)(double)) {
   std::vector<double> values;
+  values.reserve(field_nodes_cm.size());
   for (double s : field_nodes_cm) values.push_back(f(s));
   return beamdata::Table1D("test/" + quantity + ".csv", quantity, "field_cm", field_nodes_cm, values);
 }

@@ -10,6 +10,7 @@
 
 #include <cmath>
 #include <numbers>
+#include <vector>
 
 namespace countersign::engine {
 namespace {
@@ -173,6 +174,31 @@ TEST(SectorIntegration, BodyOutlineEndsTheRays) {
   EXPECT_NEAR(sector_sp_tmr(field, b, 10.0) / table_sp_tmr(b, 10.0, 4.0 * std::sqrt(std::numbers::pi)), 1.0,
               0.002);
   EXPECT_LT(sector_sp_tmr(field, b, 10.0), open);
+}
+
+TEST(SectorIntegration, MlcyShapeIsTheMirroredMlcxShape) {
+  // An L-shaped opening of leaf rows made by MLCX leaves, and the same rows as MLCY leaves (the shape
+  // mirrored in the line x = y). Mirroring keeps every distance and maps the sectors' central rays
+  // (5°, 15°, ... 355°) onto themselves, so the point (x, y) of the first and (y, x) of the second see
+  // the same scatter: the MLCY frame must be handled exactly.
+  const auto b = test_fixtures::test_beam();
+  const geometry::JawOpening jaws{-60, 60, -60, 60};
+  std::vector<geometry::ApertureRow> rows;
+  for (int i = 0; i < 12; ++i) {
+    const double v = -60.0 + 10.0 * i;
+    rows.push_back({v, v + 10.0, -60.0, i < 4 ? 60.0 : -20.0});  // a 12 cm arm and a 4 cm wide leg
+  }
+  const geometry::Aperture along_x(jaws, rows, true, geometry::LeafTravel::x);
+  const geometry::Aperture along_y(jaws, rows, true, geometry::LeafTravel::y);
+  const SectorField fx{&along_x, nullptr, 0.015, {}};
+  const SectorField fy{&along_y, nullptr, 0.015, {}};
+  EXPECT_TRUE(along_x.contains(-40.0, 30.0));
+  EXPECT_TRUE(along_y.contains(30.0, -40.0));
+  EXPECT_FALSE(along_y.contains(40.0, 30.0));  // x = 40 is in the leg, open only for y < -20
+  EXPECT_FALSE(along_x.contains(30.0, 40.0));
+  const double mx = sector_sp_tmr(fx, b, 10.0, -40.0, 20.0);
+  const double my = sector_sp_tmr(fy, b, 10.0, 20.0, -40.0);
+  EXPECT_NEAR(my, mx, 1e-12 * mx);
 }
 
 }  // namespace

@@ -8,10 +8,10 @@
 namespace countersign::geometry {
 namespace {
 
-plan::Beam beam_with_mlc(int pairs, double leaf_width_mm) {
+plan::Beam beam_with_mlc(int pairs, double leaf_width_mm, plan::DeviceType type = plan::DeviceType::mlcx) {
   plan::Beam beam;
   plan::BeamLimitingDevice mlc;
-  mlc.type = plan::term(plan::DeviceType::mlcx);
+  mlc.type = plan::term(type);
   mlc.pair_count = pairs;
   for (int i = 0; i <= pairs; ++i)
     mlc.leaf_boundaries_mm.push_back(-0.5 * pairs * leaf_width_mm + i * leaf_width_mm);
@@ -72,6 +72,42 @@ TEST(Aperture, MlcShapeAreaPerimeterAndEdges) {
   EXPECT_NEAR(a->distance_to_edge_mm(10.0, -5.0), 5.0, 1e-9);  // to the step at y = 0
 }
 
+// The same four leaf pairs as an MLCY (leaves travelling along y, boundaries along x): the opening
+// is the MLCX one mirrored in the line x = y, so area and perimeter are the same and every point
+// query answers for the mirrored point.
+TEST(Aperture, MlcyIsTheMirroredMlcxShape) {
+  plan::ControlPoint cp = jaws(-20, 20, -20, 20);
+  cp.devices.push_back({plan::term(plan::DeviceType::mlcy), {-30, -25, -20, 5, /*B*/ 30, 25, 0, 5}});
+  const auto a = build_aperture(beam_with_mlc(4, 10.0, plan::DeviceType::mlcy), cp);
+  ASSERT_TRUE(a) << a.error().message();
+  EXPECT_EQ(a->leaf_travel(), LeafTravel::y);
+  EXPECT_NEAR(a->area_mm2(), 1000.0, 1e-9);
+  EXPECT_NEAR(a->perimeter_mm(), 140.0, 1e-9);
+  EXPECT_TRUE(a->contains(5.0, -10.0));
+  EXPECT_FALSE(a->contains(5.0, 10.0));  // under the bank-B leaf of pair 3
+  EXPECT_FALSE(a->contains(15.0, 0.0));  // closed pair 4
+  EXPECT_NEAR(a->distance_to_edge_mm(5.0, -10.0), 5.0, 1e-9);
+  EXPECT_NEAR(a->distance_to_edge_mm(-5.0, 10.0), 5.0, 1e-9);
+  const RectMm third = a->rows()[2].rect(a->leaf_travel());  // pair 3 spans x 0..10, open y -20..0
+  EXPECT_DOUBLE_EQ(third.x1_mm, 0.0);
+  EXPECT_DOUBLE_EQ(third.x2_mm, 10.0);
+  EXPECT_DOUBLE_EQ(third.y1_mm, -20.0);
+  EXPECT_DOUBLE_EQ(third.y2_mm, 0.0);
+}
+
+TEST(Aperture, MlcyEnvelopeReplacesMissingYJaws) {
+  plan::ControlPoint cp;
+  cp.devices.push_back({plan::term(plan::DeviceType::asymx), {-10, 10}});
+  cp.devices.push_back({plan::term(plan::DeviceType::mlcy), {-30, -10, 20, 40}});
+  const auto a = build_aperture(beam_with_mlc(2, 10.0, plan::DeviceType::mlcy), cp);
+  ASSERT_TRUE(a) << a.error().message();
+  EXPECT_EQ(a->jaws().y_source, JawSource::mlc_envelope);
+  EXPECT_EQ(a->jaws().x_source, JawSource::jaws);
+  EXPECT_DOUBLE_EQ(a->jaws().y1_mm, -30.0);
+  EXPECT_DOUBLE_EQ(a->jaws().y2_mm, 40.0);
+  EXPECT_NEAR(a->area_mm2(), 500.0 + 500.0, 1e-9);
+}
+
 TEST(Aperture, MlcEnvelopeReplacesMissingJaws) {
   const plan::Beam beam = beam_with_mlc(2, 10.0);
   plan::ControlPoint cp;
@@ -95,7 +131,11 @@ TEST(Aperture, RejectsMissingOrUnsupportedDevices) {
 
   plan::ControlPoint mlcy = jaws(-50, 50, -50, 50);
   mlcy.devices.push_back({plan::term(plan::DeviceType::mlcy), {0, 0}});
-  EXPECT_EQ(build_aperture(plan::Beam{}, mlcy).error().kind, ErrorKind::bad_value);
+  EXPECT_EQ(build_aperture(plan::Beam{}, mlcy).error().kind, ErrorKind::missing_attribute);  // no boundaries
+  plan::ControlPoint both = jaws(-50, 50, -50, 50);
+  both.devices.push_back({plan::term(plan::DeviceType::mlcx), {-5, 5}});
+  both.devices.push_back({plan::term(plan::DeviceType::mlcy), {-5, 5}});
+  EXPECT_EQ(build_aperture(beam_with_mlc(1, 10.0), both).error().kind, ErrorKind::bad_value);
 
   plan::ControlPoint bad_count = jaws(-50, 50, -50, 50);
   bad_count.devices.push_back({plan::term(plan::DeviceType::mlcx), {1, 2, 3}});

@@ -24,4 +24,8 @@ struct SyntheticPlan {
 // The Wedge Type (300A,00D3) a plan gives the library's wedge: STANDARD (physical) or DYNAMIC.
 [[nodiscard]] const char* wedge_type(const beamdata::WedgeData& wedge);
 
+// A block on the tray `tray_id` that shields nothing: a 1 cm square far outside any field (30 cm off
+// axis), transmission 5 %, so that the tray (and its factor) is in the beam and the field is not.
+[[nodiscard]] plan::Block tray_marker_block(const std::string& tray_id);
+
 }  // namespace countersign::check

@@ -15,7 +15,7 @@ enum class ApproximationKind {
   arc_steps,                    // max_step_deg: arcs split into gantry steps
   mlc_shape_equivalent_square,  // an MLC-shaped static field through 4A/P, not sector integration
   mlc_envelope_as_collimator,   // no jaws for one axis: the MLC envelope stands in for them (Sc)
-  blocks_not_modelled,          // block shapes present and not modelled
+  blocks_as_outlines,           // blocks modelled by their outlines, sharp edges, uniform transmission
   mayneord_f_factor,            // ssd_cm, table_ssd_cm: PDD at another SSD by the Mayneord F factor
   sector_integration,           // part_count = sectors, max_step_deg = widest sector, beyond_largest_field
 };

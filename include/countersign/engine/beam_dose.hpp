@@ -95,7 +95,8 @@ struct BeamFeatures {
 // of the jaws.
 struct BeamOutline {
   geometry::JawOpening jaws;
-  std::vector<geometry::ApertureRow> open;
+  std::vector<geometry::ApertureRow> open;  // in the leaves' frame (see leaf_travel)
+  geometry::LeafTravel leaf_travel = geometry::LeafTravel::x;
   bool shaped_by_mlc = false;  // static beam with an MLC: the leaves are drawn inside the jaws
   bool known = false;          // false: no outline could be built (nothing to draw but the jaws)
 };

@@ -48,6 +48,7 @@ enum class ProblemKind {
   mlc_transmission_missing,  // library_beam, machine: beams with leaves need mlc_transmission
   leaf_end_offset_missing,   // library_beam, machine: beams with leaves need mlc_leaf_end_offset_mm
   oar_table_missing,         // library_beam, plan_value = off-axis distance mm
+  block_transmission_missing,  // library_beam, item_id = Block Number: no (300A,0102) and no block_transmission
 };
 
 // Where in the plan a missing value was looked for.

@@ -1,8 +1,10 @@
 #pragma once
 
 // The field opening at one control point, in the isocentre plane of the beam limiting device
-// system (mm): the jaw rectangle, intersected with the MLC opening when there is an MLCX.
+// system (mm): the jaw rectangle, intersected with the MLC opening when there is an MLCX or MLCY.
 // Leaf positions and leaf boundaries are used as DICOM states them (projected to the isocentre).
+// Rows are kept in the leaves' own frame: u along leaf travel, v across it (the leaf boundaries);
+// for MLCX u = x and v = y, for MLCY u = y and v = x. Every query takes and gives x, y.
 
 #include <countersign/plan/plan.hpp>
 #include <countersign/util/error.hpp>
@@ -27,22 +29,42 @@ struct JawOpening {
   [[nodiscard]] double centre_offset_mm() const;
 };
 
-// One leaf pair's opening after clipping to the jaws; an empty row has lo_mm >= hi_mm.
+// The axis the leaves travel along: x for MLCX (and jaws only), y for MLCY.
+enum class LeafTravel { x, y };
+
+// An axis-aligned rectangle of the isocentre plane (mm).
+struct RectMm {
+  double x1_mm = 0.0;
+  double x2_mm = 0.0;
+  double y1_mm = 0.0;
+  double y2_mm = 0.0;
+};
+
+// One leaf pair's opening after clipping to the jaws; an empty row has lo_mm >= hi_mm. In the
+// leaves' frame: y_lower/y_upper are the pair's boundaries (v), lo/hi its tips (u).
 struct ApertureRow {
   double y_lower_mm = 0.0;
   double y_upper_mm = 0.0;
   double lo_mm = 0.0;  // bank A tip (or X1)
   double hi_mm = 0.0;  // bank B tip (or X2)
+  // The row as a rectangle of the isocentre plane.
+  [[nodiscard]] RectMm rect(LeafTravel travel) const {
+    return travel == LeafTravel::x ? RectMm{lo_mm, hi_mm, y_lower_mm, y_upper_mm}
+                                   : RectMm{y_lower_mm, y_upper_mm, lo_mm, hi_mm};
+  }
   [[nodiscard]] bool open() const { return hi_mm > lo_mm && y_upper_mm > y_lower_mm; }
 };
 
 class Aperture {
  public:
   Aperture() = default;
-  Aperture(JawOpening jaws, std::vector<ApertureRow> rows, bool shaped_by_mlc);
+  Aperture(JawOpening jaws, std::vector<ApertureRow> rows, bool shaped_by_mlc,
+           LeafTravel travel = LeafTravel::x);
 
   [[nodiscard]] const JawOpening& jaws() const { return jaws_; }
+  // In the leaves' frame (see leaf_travel()); rect() gives each in x, y.
   [[nodiscard]] const std::vector<ApertureRow>& rows() const { return rows_; }
+  [[nodiscard]] LeafTravel leaf_travel() const { return travel_; }
   [[nodiscard]] bool shaped_by_mlc() const { return shaped_by_mlc_; }
   [[nodiscard]] double area_mm2() const { return area_mm2_; }
   [[nodiscard]] double perimeter_mm() const { return perimeter_mm_; }
@@ -57,14 +79,16 @@ class Aperture {
   JawOpening jaws_;
   std::vector<ApertureRow> rows_;
   bool shaped_by_mlc_ = false;
+  LeafTravel travel_ = LeafTravel::x;
   double area_mm2_ = 0.0;
   double perimeter_mm_ = 0.0;
 };
 
-// The opening at a control point from its jaw and MLCX positions and the beam's leaf boundaries.
+// The opening at a control point from its jaw and MLCX or MLCY positions and the beam's leaf
+// boundaries (MLCX and MLCY together: bad_value).
 // Rounded leaf ends: every open leaf pair's tips move apart by leaf_end_offset_mm each (their
 // radiological positions), before clipping to the jaws.
-// Errors: a missing device or positions (missing_attribute), MLCY or malformed positions (bad_value).
+// Errors: a missing device or positions (missing_attribute), malformed positions (bad_value).
 [[nodiscard]] Expected<Aperture> build_aperture(const plan::Beam& beam,
                                                 const plan::ControlPoint& control_point,
                                                 double leaf_end_offset_mm = 0.0);

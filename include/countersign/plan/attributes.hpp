@@ -49,6 +49,8 @@ inline constexpr DicomAttribute wedge_sequence{"Wedge Sequence", "(300A,00D1)"};
 inline constexpr DicomAttribute wedge_type{"Wedge Type", "(300A,00D3)"};
 inline constexpr DicomAttribute wedge_id{"Wedge ID", "(300A,00D4)"};
 inline constexpr DicomAttribute block_tray_id{"Block Tray ID", "(300A,00F5)"};
+inline constexpr DicomAttribute block_transmission{"Block Transmission", "(300A,0102)"};
+inline constexpr DicomAttribute block_data{"Block Data", "(300A,0106)"};
 inline constexpr DicomAttribute referenced_bolus_sequence{"Referenced Bolus Sequence", "(300C,00B0)"};
 
 }  // namespace attribute

@@ -55,6 +55,10 @@ enum class BeamDoseMeaning { absent, beam_level, fraction_level, other };
 enum class DoseReferenceStructure { absent, point, volume, coordinates, site, other };
 // Wedge Position (300A,0118).
 enum class WedgePositionState { absent, in, out, other };
+// Block Type (300A,00F8): SHIELDING blocks inside the outline, APERTURE blocks outside it.
+enum class BlockType { absent, shielding, aperture, other };
+// Block Divergence (300A,00FA): whether the block's edges follow the diverging rays.
+enum class BlockDivergence { absent, present, absent_divergence, other };
 
 // The DICOM spelling of each listed term; specialised below for every enum above.
 template <class Term>
@@ -103,6 +107,9 @@ COUNTERSIGN_DEFINED_TERMS(DoseReferenceStructure, {DoseReferenceStructure::point
                           {DoseReferenceStructure::site, "SITE"});
 COUNTERSIGN_DEFINED_TERMS(WedgePositionState, {WedgePositionState::in, "IN"},
                           {WedgePositionState::out, "OUT"});
+COUNTERSIGN_DEFINED_TERMS(BlockType, {BlockType::shielding, "SHIELDING"}, {BlockType::aperture, "APERTURE"});
+COUNTERSIGN_DEFINED_TERMS(BlockDivergence, {BlockDivergence::present, "PRESENT"},
+                          {BlockDivergence::absent_divergence, "ABSENT"});
 
 #undef COUNTERSIGN_DEFINED_TERMS
 

@@ -95,6 +95,23 @@ struct Accessory {
   std::string type;           // its type attribute where DICOM has one
 };
 
+// One item of the Block Sequence (300A,00F4): a shielding block or an aperture (photon block or
+// electron cutout). The outline is as DICOM defines Block Data: (x, y) vertices in the IEC BEAM
+// LIMITING DEVICE coordinate system, projected to the isocentre plane (mm), a closed polygon.
+struct Block {
+  std::optional<int> number;                  // Block Number (300A,00FC)
+  std::string tray_id;                        // Block Tray ID (300A,00F5)
+  std::string name;                           // Block Name (300A,00FE)
+  Coded<BlockType> type;                      // Block Type (300A,00F8): SHIELDING, APERTURE
+  Coded<BlockDivergence> divergence;          // Block Divergence (300A,00FA): PRESENT, ABSENT
+  std::string mounting_position;              // Block Mounting Position (300A,00FB): PATIENT_SIDE, SOURCE_SIDE
+  std::optional<double> source_to_tray_mm;    // Source to Block Tray Distance (300A,00F6)
+  std::string material_id;                    // Material ID (300A,00E1)
+  std::optional<double> thickness_mm;         // Block Thickness (300A,0100)
+  std::optional<double> transmission;         // Block Transmission (300A,0102), a fraction
+  std::vector<std::array<double, 2>> outline_mm;  // Block Data (300A,0106), Block Number of Points (300A,0104) vertices
+};
+
 // Positions of one beam limiting device at a control point (Beam Limiting Device Position Sequence).
 struct DevicePositions {
   Coded<DeviceType> type;              // RT Beam Limiting Device Type (300A,00B8)
@@ -156,7 +173,7 @@ struct Beam {
   std::optional<double> sad_mm;                      // Source-Axis Distance (300A,00B4)
   std::vector<BeamLimitingDevice> beam_limiting_devices;  // (300A,00B6)
   std::vector<Wedge> wedges;                         // Wedge Sequence (300A,00D1)
-  std::vector<Accessory> blocks;                     // Block Sequence (300A,00F4), id = Block Tray ID (300A,00F5)
+  std::vector<Block> blocks;                         // Block Sequence (300A,00F4)
   std::vector<Accessory> applicators;                // Applicator Sequence (300A,0107)
   std::vector<Accessory> compensators;               // Compensator Sequence (300A,00E3)
   std::vector<Accessory> boli;                       // Referenced Bolus Sequence (300C,00B0)

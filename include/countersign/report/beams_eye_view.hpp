@@ -57,6 +57,7 @@ struct BevContent {
   double collimator_deg = 0.0;
   geometry::JawOpening jaws;                // static: control point 0; modulated: envelope of all parts
   std::vector<geometry::ApertureRow> open;  // static: the opening; modulated: area open in any part
+  geometry::LeafTravel leaf_travel = geometry::LeafTravel::x;  // the frame of `open` (MLCY: y)
   bool shaped_by_mlc = false;               // static beam with an MLC: draw the leaves inside the jaws
   bool modulated = false;
   bool outline_known = true;             // false: a modulated beam whose leaf shapes could not be built
