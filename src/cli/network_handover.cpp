@@ -23,7 +23,8 @@ struct StandIn {
   const char* description;
 };
 
-constexpr std::array<StandIn, 5> stand_ins{{
+// Sized by its initialisers, so a command added here can never leave an empty entry behind.
+constexpr auto stand_ins = std::to_array<StandIn>({
     {"watch",
      "Check every RT Plan file that arrives in a folder, exactly once (run by countersign-network; "
      "`countersign watch --help` for its options)"},
@@ -33,7 +34,11 @@ constexpr std::array<StandIn, 5> stand_ins{{
     {"send",
      "Send the results of a recorded check again to an archive (run by countersign-network; "
      "`countersign send --help` for its options)"},
-}};
+    {"serve",
+     "The department web view of the history (run by countersign-network; `countersign serve --help` for "
+     "its options)"},
+    {"user", "Users of the web view (run by countersign-network; `countersign user --help` for its options)"},
+});
 
 bool is_network_command(std::string_view word) {
   for (const auto& stand_in : stand_ins) {

@@ -9,6 +9,8 @@
 #include <algorithm>
 #include <filesystem>
 #include <string>
+#include <utility>
+#include <vector>
 
 namespace countersign::test {
 namespace {
@@ -48,14 +50,20 @@ TEST(StartupLibraries, TheNetworkProgramIsBesideItAndLoadsLibpqOnlyForAPostgresq
 }
 
 TEST(StartupLibraries, NetworkCommandsAreHandedOverWithTheirOwnHelp) {
-  for (const std::string command : {"watch", "receive", "send"}) {
+  // Each stand-in reaches the real command: its own options are in its help.
+  const std::vector<std::pair<std::string, std::string>> commands{{"watch", "--calling-ae"},
+                                                                  {"receive", "--calling-ae"},
+                                                                  {"send", "--calling-ae"},
+                                                                  {"serve", "--listen"},
+                                                                  {"user", "add"}};
+  for (const auto& [command, option] : commands) {
     const CommandOutput help = run_command(quote(program().string()) + " " + command + " --help");
     EXPECT_EQ(help.exit_code, 0) << command << ": " << help.err;
-    EXPECT_NE(help.out.find("--calling-ae"), std::string::npos) << command << ": " << help.out;
+    EXPECT_NE(help.out.find(option), std::string::npos) << command << ": " << help.out;
   }
   const CommandOutput listed = run_command(quote(program().string()) + " --help");
   EXPECT_EQ(listed.exit_code, 0);
-  for (const char* command : {"watch", "receive", "send", "check", "explain"})
+  for (const char* command : {"watch", "receive", "send", "serve", "user", "check", "explain"})
     EXPECT_NE(listed.out.find(command), std::string::npos) << command;
   // A check that sends its results is the network program's too: a bad destination is its error.
   const CommandOutput bad =
