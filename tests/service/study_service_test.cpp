@@ -28,22 +28,6 @@ const fs::path& lung_study() {
 }
 constexpr const char* plan_uid = "2.25.301642988147209845366118572013.201.1.0";  // dcmdump of the plan
 
-std::string slurp(const fs::path& file) {
-  std::ifstream in(file, std::ios::binary);
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
-
-bool wait_until(const std::function<bool()>& condition, std::chrono::milliseconds timeout) {
-  const auto deadline = std::chrono::steady_clock::now() + timeout;
-  while (std::chrono::steady_clock::now() < deadline) {
-    if (condition()) return true;
-    std::this_thread::sleep_for(50ms);
-  }
-  return condition();
-}
-
 // Copies a file into the inbox the way a receiver or careful exporter does: written aside, renamed in.
 void arrive(const fs::path& source, const fs::path& inbox, const std::string& name) {
   const fs::path aside = inbox.parent_path() / ("staging-" + name);
@@ -54,7 +38,7 @@ void arrive(const fs::path& source, const fs::path& inbox, const std::string& na
 nlohmann::json plan_result(const fs::path& results) {
   const fs::path file = test::result_file(results, plan_uid, ".json");
   if (!fs::exists(file)) return {};
-  return nlohmann::json::parse(slurp(file)).at("plans").at(0);
+  return nlohmann::json::parse(test::file_text(file)).at("plans").at(0);
 }
 
 class StudyServiceTest : public ::testing::Test {
@@ -79,12 +63,13 @@ TEST_F(StudyServiceTest, APlanWaitingForItsStudySurvivesSigkillAndIsCheckedWithT
     Program watcher({"watch", inbox().string(), "--out", results().string(), "--study-wait", "600"},
                     dir_ / "first.log");
     ASSERT_TRUE(watcher.running());
-    ASSERT_TRUE(wait_until(
+    ASSERT_TRUE(test::wait_until(
         [&] {
-          return slurp(dir_ / "first.log").find("waiting for the study of RP.dcm") != std::string::npos;
+          return test::file_text(dir_ / "first.log").find("waiting for the study of RP.dcm") !=
+                 std::string::npos;
         },
         30s))
-        << slurp(dir_ / "first.log");
+        << test::file_text(dir_ / "first.log");
     watcher.signal(SIGKILL);
     watcher.wait();
   }
@@ -130,16 +115,20 @@ TEST_F(StudyServiceTest, ReceiveTakesThePlanBeforeItsStudyFromStorescuAndChecksI
                     "FERN-TPS", "--out", results().string(), "--study-wait", "600"},
                    dir_ / "receive.log"};
   ASSERT_TRUE(receiver.running());
-  ASSERT_TRUE(wait_until(
-      [&] { return slurp(dir_ / "receive.log").find("receiving as AE") != std::string::npos; }, 20s))
-      << slurp(dir_ / "receive.log");
+  ASSERT_TRUE(test::wait_until(
+      [&] { return test::file_text(dir_ / "receive.log").find("receiving as AE") != std::string::npos; },
+      20s))
+      << test::file_text(dir_ / "receive.log");
   const std::string send = "storescu -aet FERN-TPS -aec FERN-CHECK 127.0.0.1 " + std::to_string(port) + " ";
   // The plan first, as a planning system may send it, then the study, and an RT Dose along with it.
   auto sent = test::run_command(send + test::quote((lung_study() / "RP.fern_lung_4field.dcm").string()));
   ASSERT_EQ(sent.exit_code, 0) << sent.out << sent.err;
-  ASSERT_TRUE(wait_until(
-      [&] { return slurp(dir_ / "receive.log").find("waiting for the study") != std::string::npos; }, 20s))
-      << slurp(dir_ / "receive.log");
+  ASSERT_TRUE(test::wait_until(
+      [&] {
+        return test::file_text(dir_ / "receive.log").find("waiting for the study") != std::string::npos;
+      },
+      20s))
+      << test::file_text(dir_ / "receive.log");
   std::string study_files;
   for (const auto& entry : fs::directory_iterator{lung_study()}) {
     if (entry.path().filename().string().rfind("RP", 0) != 0)
@@ -149,12 +138,12 @@ TEST_F(StudyServiceTest, ReceiveTakesThePlanBeforeItsStudyFromStorescuAndChecksI
       send + study_files +
       test::quote((test::source_dir() / "testdata" / "malformed" / "rt_dose_sop_class.dcm").string()));
   ASSERT_EQ(sent.exit_code, 0) << sent.out << sent.err;
-  ASSERT_TRUE(wait_until([&] { return !plan_result(results()).is_null(); }, 60s))
-      << slurp(dir_ / "receive.log");
+  ASSERT_TRUE(test::wait_until([&] { return !plan_result(results()).is_null(); }, 60s))
+      << test::file_text(dir_ / "receive.log");
   const auto plan = plan_result(results());
   EXPECT_TRUE(plan.at("patient_study").at("used").get<bool>()) << plan.at("patient_study");
   for (const auto& beam : plan.at("beams")) EXPECT_EQ(beam.at("patient").at("source"), "ct") << beam;
-  const std::string log = slurp(dir_ / "receive.log");
+  const std::string log = test::file_text(dir_ / "receive.log");
   EXPECT_NE(log.find("received CT Image "), std::string::npos) << log;
   EXPECT_NE(log.find(": RT Dose "), std::string::npos) << log;  // discarded, and said so
   EXPECT_TRUE(fs::is_empty(results() / "quarantine")) << log;

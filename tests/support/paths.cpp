@@ -1,5 +1,6 @@
 #include "support/paths.hpp"
 
+#include <sys/wait.h>
 #include <array>
 #include <cstdio>
 #include <cstdlib>
@@ -7,23 +8,18 @@
 #include <random>
 #include <sstream>
 #include <stdexcept>
-#include <sys/wait.h>
+#include <thread>
 
 namespace countersign::test {
 
 namespace {
 std::string env_or_throw(const char* name) {
   const char* value = std::getenv(name);
-  if (value == nullptr || *value == '\0') throw std::runtime_error(std::string{"environment variable not set: "} + name);
+  if (value == nullptr || *value == '\0')
+    throw std::runtime_error(std::string{"environment variable not set: "} + name);
   return value;
 }
 
-std::string slurp(const std::filesystem::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
 }  // namespace
 
 // The environment wins; the compile-time paths from tests/CMakeLists.txt cover a variable that
@@ -44,7 +40,9 @@ std::string env_or_default(const char* name, const char* fallback) {
 #define COUNTERSIGN_TEST_BINARY ""
 #endif
 
-std::filesystem::path source_dir() { return env_or_default("COUNTERSIGN_SOURCE_DIR", COUNTERSIGN_TEST_SOURCE_DIR); }
+std::filesystem::path source_dir() {
+  return env_or_default("COUNTERSIGN_SOURCE_DIR", COUNTERSIGN_TEST_SOURCE_DIR);
+}
 std::filesystem::path program() { return env_or_default("COUNTERSIGN_BINARY", COUNTERSIGN_TEST_BINARY); }
 
 std::string quote(const std::string& argument) {
@@ -66,12 +64,13 @@ CommandOutput run_command(const std::string& command_line) {
   const auto dir = make_temp_dir("countersign-run");
   const auto out_file = dir / "out";
   const auto err_file = dir / "err";
-  const std::string full = command_line + " >" + quote(out_file.string()) + " 2>" + quote(err_file.string()) + " </dev/null";
+  const std::string full =
+      command_line + " >" + quote(out_file.string()) + " 2>" + quote(err_file.string()) + " </dev/null";
   const int status = std::system(full.c_str());
   CommandOutput result;
   result.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  result.out = slurp(out_file);
-  result.err = slurp(err_file);
+  result.out = file_text(out_file);
+  result.err = file_text(err_file);
   std::filesystem::remove_all(dir);
   return result;
 }
@@ -81,6 +80,22 @@ std::optional<std::string> python_with_pydicom() {
     if (run_command(candidate + " -c 'import pydicom'").exit_code == 0) return candidate;
   }
   return std::nullopt;
+}
+
+std::string file_text(const std::filesystem::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+bool wait_until(const std::function<bool()>& condition, std::chrono::milliseconds timeout) {
+  const auto deadline = std::chrono::steady_clock::now() + timeout;
+  while (std::chrono::steady_clock::now() < deadline) {
+    if (condition()) return true;
+    std::this_thread::sleep_for(std::chrono::milliseconds{20});
+  }
+  return condition();
 }
 
 }  // namespace countersign::test

@@ -1,5 +1,7 @@
 #include "support/serve_process.hpp"
 
+#include "support/paths.hpp"
+
 #include <fcntl.h>
 #include <spawn.h>
 #include <sys/wait.h>
@@ -14,17 +16,6 @@
 extern char** environ;  // NOLINT(readability-redundant-declaration): posix_spawn needs the environment
 
 namespace countersign::test {
-
-namespace {
-
-std::string slurp(const std::filesystem::path& file) {
-  std::ifstream in(file, std::ios::binary);
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
-
-}  // namespace
 
 ServeProcess::ServeProcess(const std::filesystem::path& program, const std::vector<std::string>& arguments,
                            const std::filesystem::path& scratch)
@@ -49,7 +40,7 @@ ServeProcess::ServeProcess(const std::filesystem::path& program, const std::vect
   const std::regex listening{"listening on (https?)://127\\.0\\.0\\.1:([0-9]+)/"};
   for (int i = 0; i < 200 && port_ == 0; ++i) {
     std::smatch m;
-    const std::string text = slurp(out_);
+    const std::string text = file_text(out_);
     if (std::regex_search(text, m, listening)) {
       scheme_ = m[1];
       port_ = std::stoi(m[2]);
@@ -76,7 +67,7 @@ ServeProcess::~ServeProcess() {
   ::waitpid(pid_, &status, 0);
 }
 
-std::string ServeProcess::output() const { return slurp(out_) + slurp(err_); }
-std::string ServeProcess::log() const { return slurp(err_); }
+std::string ServeProcess::output() const { return file_text(out_) + file_text(err_); }
+std::string ServeProcess::log() const { return file_text(err_); }
 
 }  // namespace countersign::test
