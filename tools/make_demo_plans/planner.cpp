@@ -1,10 +1,13 @@
 #include "planner.hpp"
 
+#include "pencil_planner.hpp"
+
 #include <demo_linac/model.hpp>
 
 #include <algorithm>
 #include <cmath>
 #include <numeric>
+#include <optional>
 #include <stdexcept>
 
 namespace make_demo_plans {
@@ -19,8 +22,8 @@ double rectangle_equivalent_square_cm(double width_cm, double length_cm) {
   return 4.0 * width_cm * length_cm / (2.0 * (width_cm + length_cm));
 }
 
-// Dose per MU (cGy/MU) at the dose point for one aperture.
-double dose_per_mu_cgy(const BeamSpec& beam, const std::vector<double>& mlc_mm) {
+// Dose per MU (cGy/MU) at the dose point for one aperture, by the hand-calculation forms.
+double hand_dose_per_mu_cgy(const BeamSpec& beam, const std::vector<double>& mlc_mm) {
   const auto& model = demo_linac::beam_model(beam.energy_mv);
   const double dmax_cm = demo_linac::dmax_cm(model);
   const double sad_cm = demo_linac::sad_cm;
@@ -54,7 +57,13 @@ std::vector<double> mean_aperture(const std::vector<double>& a, const std::vecto
   return mean;
 }
 
-void plan_beam(BeamSpec& beam) {
+// The planning system's model for this beam: the pencil beam when it is MLC-shaped or blocked.
+double dose_per_mu_cgy(const PencilPlanner* pencil, const BeamSpec& beam, const std::vector<double>& mlc_mm) {
+  return pencil != nullptr && uses_pencil_beam(beam) ? pencil->dose_per_mu_cgy(beam, mlc_mm)
+                                                     : hand_dose_per_mu_cgy(beam, mlc_mm);
+}
+
+void plan_beam(BeamSpec& beam, const PencilPlanner* pencil) {
   const std::size_t n = beam.control_points.size();
   if (n < 2) throw std::logic_error("a beam needs at least two control points");
   beam.cumulative_weights.assign(n, 0.0);
@@ -74,7 +83,7 @@ void plan_beam(BeamSpec& beam) {
     const double total = std::accumulate(beam.segment_weights.begin(), beam.segment_weights.end(), 0.0);
     for (std::size_t k = 0; k < beam.segment_weights.size(); ++k) {
       weights[2 * k] = beam.segment_weights[k] / total;  // the beam is on between the segment's two CPs
-      interval_dose_per_mu[2 * k] = dose_per_mu_cgy(beam, beam.control_points[2 * k].mlc_mm);
+      interval_dose_per_mu[2 * k] = dose_per_mu_cgy(pencil, beam, beam.control_points[2 * k].mlc_mm);
     }
   } else {
     for (std::size_t i = 0; i + 1 < n; ++i) {
@@ -85,7 +94,7 @@ void plan_beam(BeamSpec& beam) {
           beam.control_points[i].mlc_mm.empty()
               ? std::vector<double>{}
               : mean_aperture(beam.control_points[i].mlc_mm, beam.control_points[i + 1].mlc_mm);
-      interval_dose_per_mu[i] = dose_per_mu_cgy(beam, aperture);
+      interval_dose_per_mu[i] = dose_per_mu_cgy(pencil, beam, aperture);
     }
   }
   double dose_per_mu = 0.0;
@@ -155,7 +164,11 @@ double aperture_equivalent_square_cm(const std::array<double, 4>& jaws_mm,
 }
 
 void plan_doses(PlanSpec& plan) {
-  for (auto& beam : plan.beams) plan_beam(beam);
+  // The library is read and the kernels fitted only for a plan that needs them.
+  std::optional<PencilPlanner> pencil;
+  if (std::any_of(plan.beams.begin(), plan.beams.end(), uses_pencil_beam))
+    pencil.emplace(demo_library_folder());
+  for (auto& beam : plan.beams) plan_beam(beam, pencil ? &*pencil : nullptr);
 }
 
 }  // namespace make_demo_plans

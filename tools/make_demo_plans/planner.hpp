@@ -1,8 +1,10 @@
 #pragma once
 
 // The stand-in "planning system" of the INVENTED demo: computes each beam's dose per MU at its dose
-// point from the invented FERN-LINAC-1 model (tools/demo_linac/model.hpp), then the MU for the
-// planned dose. Methods (AAPM TG-71, 2014, the isocentric TMR form and the SSD/PDD form):
+// point, then the MU for the planned dose. MLC-shaped, blocked and modulated beams go through the
+// pencil-beam convolution fitted to the demo tables (pencil_planner.hpp, tools/pencil_beam/); open
+// beams through the invented FERN-LINAC-1 model (tools/demo_linac/model.hpp) by the hand-calculation
+// forms (AAPM TG-71, 2014, the isocentric TMR form and the SSD/PDD form):
 //   isocentric: D/MU = output Sc(s_c) Sp(s_d) TMR(d, s_d) WF TF OAR(d, r) ((SSDcal + dmax)/SPD)^2
 //   fixed SSD:  D/MU = output Sc(s_c) Sp(s_d0) PDD(d, s_s, SSD)/100 WF TF OAR ((SSDcal + dmax)/(SSD +
 //   dmax))^2

@@ -1,5 +1,6 @@
 #include "write_plan.hpp"
 
+#include "pencil_planner.hpp"
 #include "planner.hpp"
 
 #include <demo_linac/model.hpp>
@@ -297,12 +298,12 @@ void write_beam(DcmItem& item, const PlanSpec& plan, const BeamSpec& beam) {
     put(block, DCM_BlockName, "CORNER");
     put(block, DCM_MaterialID, "DEMO-ALLOY");
     put(block, DCM_BlockThickness, "75");
-    put(block, DCM_BlockTransmission, "0.05");
-    const double x2 = beam.jaws_mm[1];
-    const double y2 = beam.jaws_mm[3];
-    put(block, DCM_BlockNumberOfPoints, "4");
-    put(block, DCM_BlockData,
-        ds_list({x2 - 20.0, y2 - 40.0, x2 + 5.0, y2 - 40.0, x2 + 5.0, y2 + 5.0, x2 - 20.0, y2 + 5.0}));
+    put(block, DCM_BlockTransmission, ds(corner_block_transmission));
+    std::vector<double> points;
+    for (const auto& vertex : corner_block_outline_mm(beam))
+      points.insert(points.end(), vertex.begin(), vertex.end());
+    put(block, DCM_BlockNumberOfPoints, std::to_string(points.size() / 2));
+    put(block, DCM_BlockData, ds_list(points));
   }
   put(item, DCM_FinalCumulativeMetersetWeight, "1");
   put(item, DCM_NumberOfControlPoints, std::to_string(beam.control_points.size()));
