@@ -40,10 +40,10 @@ TEST(Fluence, LeavesTransmitTheirShareAndRoundedEndsWidenEachOpenPair) {
   o.jaws_mm = {-40.0, 40.0, -25.0, 25.0};
   o.leaf_boundaries_mm = ten_pairs();
   o.leaf_positions_mm.assign(20, 0.0);
-  for (int i = 0; i < 10; ++i) {
+  for (std::size_t i = 0; i < 10; ++i) {
     const bool open = i >= 3 && i < 7;  // four pairs open from -10 to +10 mm, six closed at 0
-    o.leaf_positions_mm[static_cast<std::size_t>(i)] = open ? -10.0 : 0.0;
-    o.leaf_positions_mm[static_cast<std::size_t>(10 + i)] = open ? 10.0 : 0.0;
+    o.leaf_positions_mm[i] = open ? -10.0 : 0.0;
+    o.leaf_positions_mm[10 + i] = open ? 10.0 : 0.0;
   }
   o.leaf_transmission = 0.02;
   // Open: 4 pairs x 5 mm x 20 mm = 400 mm^2; under leaves: 80 x 50 - 400 = 3600 mm^2 at 2 %.

@@ -11,6 +11,7 @@
 
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <functional>
 #include <string>
 #include <vector>
@@ -42,7 +43,7 @@ Built build(const Field& f) {
   b.opening.jaws_mm = f.jaws_mm;
   b.opening.leaf_transmission = f.leaf_transmission;
   std::vector<geometry::ApertureRow> rows;
-  const int pairs = static_cast<int>((f.jaws_mm[3] - f.jaws_mm[2]) / pair_width_mm + 0.5);
+  const int pairs = static_cast<int>(std::lround((f.jaws_mm[3] - f.jaws_mm[2]) / pair_width_mm));
   std::vector<double> lo, hi;
   for (int i = 0; i <= pairs; ++i) b.opening.leaf_boundaries_mm.push_back(f.jaws_mm[2] + i * pair_width_mm);
   for (int i = 0; i < pairs; ++i) {
@@ -134,6 +135,7 @@ Field mantle() {
   const std::vector<std::array<double, 2>> left_lung{{-130.0, -110.0}, {-30.0, -110.0}, {-30.0, 70.0},
                                                      {-60.0, 90.0},    {-110.0, 90.0},  {-130.0, 60.0}};
   std::vector<std::array<double, 2>> right_lung;
+  right_lung.reserve(left_lung.size());
   for (const auto& v : left_lung) right_lung.push_back({-v[0], v[1]});
   f.shielding_mm = {left_lung, right_lung};
   return f;

@@ -194,7 +194,7 @@ void write_devices(DcmItem& beam_item, const BeamSpec& beam) {
   if (beam.has_mlc) {
     DcmItem& item = new_item(beam_item, DCM_BeamLimitingDeviceSequence, index++);
     put(item, DCM_RTBeamLimitingDeviceType, "MLCX");
-    put(item, DCM_NumberOfLeafJawPairs, std::to_string(demo_linac::mlc_leaf_pairs).c_str());
+    put(item, DCM_NumberOfLeafJawPairs, std::to_string(demo_linac::mlc_leaf_pairs));
     put(item, DCM_LeafPositionBoundaries, ds_list(leaf_boundaries_mm()));
   }
 }

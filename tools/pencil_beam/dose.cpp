@@ -54,7 +54,7 @@ double convolve(const Kernel& kernel, const FluenceGrid& fluence, const PointGeo
     for (int j = 0; j < fluence.ny; ++j) {
       const double row_weight = gy[static_cast<std::size_t>(j)];
       if (row_weight < 1e-12) continue;
-      const double* row = &fluence.values[static_cast<std::size_t>(j * fluence.nx)];
+      const double* row = &fluence.values[fluence.index(0, j)];
       double row_sum = 0.0;
       for (int k = 0; k < fluence.nx; ++k) row_sum += row[k] * gx[static_cast<std::size_t>(k)];
       sum += row_weight * row_sum;

@@ -102,14 +102,14 @@ FluenceGrid rasterise(const Opening& opening, double cell_mm) {
   grid.y0_mm = jaws[2];
   grid.nx = static_cast<int>(std::ceil((jaws[1] - jaws[0]) / cell_mm - 1e-9));
   grid.ny = static_cast<int>(std::ceil((jaws[3] - jaws[2]) / cell_mm - 1e-9));
-  grid.values.assign(static_cast<std::size_t>(grid.nx * grid.ny), 0.0);
+  grid.values.assign(grid.index(0, grid.ny), 0.0);
   for (int j = 0; j < grid.ny; ++j) {
     const double y1 = grid.y0_mm + j * cell_mm;
     for (int i = 0; i < grid.nx; ++i) {
       const double x1 = grid.x0_mm + i * cell_mm;
       double value = cell_value(opening, x1, x1 + cell_mm, y1, y1 + cell_mm);
       if (value > 0.0 && !opening.blocks.empty()) value *= mean_block_factor(opening.blocks, x1, y1, cell_mm);
-      grid.values[static_cast<std::size_t>(j * grid.nx + i)] = value;
+      grid.values[grid.index(i, j)] = value;
     }
   }
   return grid;

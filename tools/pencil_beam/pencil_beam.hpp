@@ -24,6 +24,7 @@
 #include <countersign/beamdata/library.hpp>
 
 #include <array>
+#include <cstddef>
 #include <optional>
 #include <vector>
 
@@ -54,7 +55,10 @@ struct FluenceGrid {
   int nx = 0;
   int ny = 0;
   std::vector<double> values;  // row-major: values[j * nx + i]
-  [[nodiscard]] double at(int i, int j) const { return values[static_cast<std::size_t>(j * nx + i)]; }
+  [[nodiscard]] std::size_t index(int i, int j) const {
+    return static_cast<std::size_t>(j) * static_cast<std::size_t>(nx) + static_cast<std::size_t>(i);
+  }
+  [[nodiscard]] double at(int i, int j) const { return values[index(i, j)]; }
 };
 
 // The opening as fluence on cells of cell_mm; block cells are sampled 4 x 4 within each cell.
