@@ -85,13 +85,28 @@ std::string describe_extrapolation(const engine::Factor& factor) {
                      where);
 }
 
+// A wedged point off the axis whose off-axis ratio along the gradient is the open field's (no
+// orientation table, or no Wedge Orientation in the plan).
+bool wedged_off_axis_without_profile(const engine::BeamDose& c) {
+  constexpr double on_axis_mm = 1.0;  // as the engine's OAR rule: closer than this is on the axis
+  return c.features.wedged && c.features.wedge_profile != engine::WedgeProfile::orientation_table &&
+         c.point.off_axis_mm > on_axis_mm;
+}
+
+std::string_view missing_wedge_profile(const engine::BeamDose& c) {
+  return c.features.wedge_profile == engine::WedgeProfile::no_orientation
+             ? "the plan gives no Wedge Orientation (300A,00D8)"
+             : "the library has no orientation table for the wedge";
+}
+
 FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (c.features.modulated) return FieldCategory::modulated;
   const bool off_axis = c.point.off_axis_mm > util::cm_to_mm(policy.simple_max_off_axis_cm);
   const bool asymmetric = c.features.jaw_centre_offset_mm > util::cm_to_mm(policy.simple_max_jaw_offset_cm);
   const bool shaped = c.features.open_to_jaw_area_ratio < policy.simple_min_open_fraction;
-  return (off_axis || asymmetric || shaped || c.features.blocks) ? FieldCategory::complex
-                                                                 : FieldCategory::simple;
+  return (off_axis || asymmetric || shaped || c.features.blocks || wedged_off_axis_without_profile(c))
+             ? FieldCategory::complex
+             : FieldCategory::simple;
 }
 
 Medium medium_of(const engine::BeamDose& c, const TolerancePolicy& policy) {
@@ -137,12 +152,14 @@ std::optional<Finding> safety_findings(const engine::BeamDose& c, const Toleranc
                     100.0 * c.edge_meterset_share, util::cm_to_mm(policy.min_edge_distance_cm),
                     100.0 * policy.max_edge_meterset_share)};
   }
-  if (c.features.wedged && c.point.off_axis_mm > util::cm_to_mm(policy.wedge_max_off_axis_cm)) {
+  if (wedged_off_axis_without_profile(c) &&
+      c.point.off_axis_mm > util::cm_to_mm(policy.wedge_max_off_axis_cm)) {
     return Finding{
         Reason::unsupported_geometry,
-        fmt::format("wedged field with the point {:.1f} cm off axis: the open-field OAR does not apply "
-                    "(policy limit {:.1f} cm)",
-                    util::mm_to_cm(c.point.off_axis_mm), policy.wedge_max_off_axis_cm)};
+        fmt::format("wedged field with the point {:.1f} cm off axis and {}: the open-field OAR does not "
+                    "apply (policy limit {:.1f} cm)",
+                    util::mm_to_cm(c.point.off_axis_mm), missing_wedge_profile(c),
+                    policy.wedge_max_off_axis_cm)};
   }
   const bool plan_depth_used = !c.patient && c.depth.kind == engine::DepthChoice::planned &&
                                c.depth.source != engine::DepthSource::derived_spd_minus_ssd &&

@@ -55,8 +55,10 @@ bool shaped_field(const geometry::Aperture& aperture, const ResolvedBeam& resolv
   return aperture.shaped_by_mlc() || !resolved.blocks.empty();
 }
 
-BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0, bool modulated) {
+BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0,
+                         const std::vector<BlockShape>& blocks, bool modulated) {
   BeamOutline outline;
+  outline.blocks = blocks;
   outline.jaws = aperture0.jaws();
   outline.leaf_travel = aperture0.leaf_travel();
   if (!modulated) {

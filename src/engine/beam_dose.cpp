@@ -67,7 +67,7 @@ StageResult<void> open_field(const plan::Beam& beam, const ResolvedBeam& resolve
   r.features.jaw_centre_offset_mm = r.aperture.jaws().centre_offset_mm();
   const double jaw_area_mm2 = r.aperture.jaws().width_mm() * r.aperture.jaws().length_mm();
   r.features.open_to_jaw_area_ratio = jaw_area_mm2 > 0.0 ? r.aperture.area_mm2() / jaw_area_mm2 : 0.0;
-  r.outline = beam_outline(beam, r.aperture, false);
+  r.outline = beam_outline(beam, r.aperture, resolved.blocks, false);
   r.ssd_mm = cp0.ssd_mm;
   return {};
 }
@@ -87,7 +87,7 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
   MetersetSplit split;
   TRY_ASSIGN(split, split_meterset(beam, resolved.meterset_mu));  // 8. segments: the parts
   r.features.modulated = split.moving || split.parts.size() > 1;
-  if (r.features.modulated) r.outline = beam_outline(beam, r.aperture, true);
+  if (r.features.modulated) r.outline = beam_outline(beam, r.aperture, resolved.blocks, true);
   TRY(compute_segments(beam, point, resolved, split, options, r));  // 4-7 per part, summed
 
   r.inputs = r.segments.front().inputs;
@@ -102,6 +102,20 @@ StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
 
 std::string_view to_code(ScatterMethod method) {
   return method == ScatterMethod::sector_integration ? "sector_integration" : "equivalent_square";
+}
+
+std::string_view to_code(WedgeProfile profile) {
+  switch (profile) {
+    case WedgeProfile::not_wedged:
+      return "not_wedged";
+    case WedgeProfile::orientation_table:
+      return "orientation_table";
+    case WedgeProfile::no_table:
+      return "no_table";
+    case WedgeProfile::no_orientation:
+      return "no_orientation";
+  }
+  return "unknown";
 }
 
 const Factor* BeamDose::first_extrapolated() const {

@@ -39,6 +39,7 @@ DoseInputs formula_inputs(const BeamDose& r, const ResolvedBeam& resolved, const
   // Behind the leaves: the jaw field's dose times the MLC transmission.
   in.field_at_isocentre_cm = path.under_leaves ? scatter.collimator_field_cm : scatter.open_field_cm;
   in.wedge = resolved.wedge;
+  in.wedge_axes = wedge_axes(resolved, part.iso_plane_x_mm, part.iso_plane_y_mm);
   in.tray = resolved.tray;
   in.transmission = path.transmission;
   return in;

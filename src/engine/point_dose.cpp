@@ -3,6 +3,7 @@
 #include <countersign/beamdata/conversions.hpp>
 
 #include <array>
+#include <cmath>
 
 namespace countersign::engine {
 
@@ -47,7 +48,7 @@ double squared(double x) { return x * x; }
 }  // namespace
 
 const Factor* PointDose::first_extrapolated() const {
-  const std::array<const Factor*, 11> all{&factors.calibration_depth,
+  const std::array<const Factor*, 12> all{&factors.calibration_depth,
                                           &factors.calibration_sc,
                                           &factors.calibration_sp,
                                           &factors.sc,
@@ -56,6 +57,7 @@ const Factor* PointDose::first_extrapolated() const {
                                           &factors.pdd,
                                           &factors.oar,
                                           &factors.wedge,
+                                          &factors.wedge_profile,
                                           &factors.tray,
                                           &factors.transmission};
   for (const Factor* f : all) {
@@ -103,11 +105,16 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
   if (in.tray != nullptr) f.tray = Factor{in.tray->factor, FactorBasis::manifest_constant, std::nullopt};
   if (in.transmission != 1.0)
     f.transmission = Factor{in.transmission, FactorBasis::manifest_constant, std::nullopt};
+  const bool wedge_profile = in.wedge_axes && in.wedge != nullptr && in.wedge->orientation_table;
+  const double oar_distance_cm = wedge_profile ? std::abs(in.wedge_axes->across_cm) : in.off_axis_cm;
   if (beam.oar) {
-    f.oar = from_lookup(beam.oar->at(in.depth_cm, in.off_axis_cm));
+    f.oar = from_lookup(beam.oar->at(in.depth_cm, oar_distance_cm));
   } else {
     f.oar = Factor{1.0, FactorBasis::on_axis_unity, std::nullopt};
   }
+  if (wedge_profile)
+    f.wedge_profile =
+        from_lookup(in.wedge->orientation_table->at(in.depth_cm, in.wedge_axes->towards_thick_cm));
 
   double depth_term = 0.0;
   if (in.method == Method::tmr) {
@@ -132,8 +139,8 @@ PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& i
 
   const double reference = f.calibration_depth.value * f.calibration_sc.value * f.calibration_sp.value;
   result.dose_per_mu_cgy = f.output_cgy_per_mu / reference * f.sc.value * f.sp.value * depth_term *
-                           f.oar.value * f.wedge.value * f.tray.value * f.transmission.value *
-                           f.inverse_square.value;
+                           f.oar.value * f.wedge.value * f.wedge_profile.value * f.tray.value *
+                           f.transmission.value * f.inverse_square.value;
   result.dose_cgy = in.meterset_mu * result.dose_per_mu_cgy;
   return result;
 }

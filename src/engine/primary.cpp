@@ -3,6 +3,11 @@
 
 #include "stages.hpp"
 
+#include <countersign/util/units.hpp>
+
+#include <cmath>
+#include <numbers>
+
 namespace countersign::engine::stages {
 
 namespace {
@@ -33,6 +38,19 @@ PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::Poi
     }
   }
   return path;
+}
+
+std::optional<WedgeAxes> wedge_axes(const ResolvedBeam& resolved, double iso_plane_x_mm,
+                                    double iso_plane_y_mm) {
+  if (resolved.wedge == nullptr || !resolved.wedge->orientation_table || !resolved.wedge_orientation_deg)
+    return std::nullopt;
+  const double theta = *resolved.wedge_orientation_deg * std::numbers::pi / 180.0;
+  const double thin_x = -std::sin(theta);  // unit vector towards the thin end
+  const double thin_y = std::cos(theta);
+  WedgeAxes axes;
+  axes.towards_thick_cm = -util::mm_to_cm(iso_plane_x_mm * thin_x + iso_plane_y_mm * thin_y);
+  axes.across_cm = util::mm_to_cm(iso_plane_x_mm * thin_y - iso_plane_y_mm * thin_x);
+  return axes;
 }
 
 StageResult<void> require_oar(const beamdata::BeamData& data, const geometry::PointInBeam& point) {

@@ -33,6 +33,7 @@ StageResult<void> resolve_accessories(const plan::Beam& beam, const beamdata::Be
       problem.library_radiation = data.radiation;
       return problem;
     }
+    resolved.wedge_orientation_deg = w.orientation_deg;
     const bool plan_dynamic = w.type == plan::WedgeType::dynamic;
     if (plan_dynamic != (resolved.wedge->kind == beamdata::WedgeKind::dynamic)) {
       CalculationProblem problem = problem_of(ProblemKind::wedge_kind_mismatch);
@@ -84,6 +85,13 @@ StageResult<void> resolve_blocks(const plan::Beam& beam, const beamdata::BeamDat
     resolved.blocks.push_back(std::move(shape));
   }
   return {};
+}
+
+WedgeProfile wedge_profile_of(const ResolvedBeam& resolved) {
+  if (resolved.wedge == nullptr) return WedgeProfile::not_wedged;
+  if (!resolved.wedge->orientation_table) return WedgeProfile::no_table;
+  if (!resolved.wedge_orientation_deg) return WedgeProfile::no_orientation;
+  return WedgeProfile::orientation_table;
 }
 
 ProblemKind kind_of(const std::optional<beamdata::MatchFailure>& failure) {
@@ -143,6 +151,7 @@ StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam&
   TRY(resolve_accessories(beam, *resolved.data, resolved));
   TRY(resolve_blocks(beam, *resolved.data, resolved));
   r.features.wedged = resolved.wedge != nullptr;
+  r.features.wedge_profile = wedge_profile_of(resolved);
   r.features.tray = resolved.tray != nullptr;
   r.features.blocks = !beam.blocks.empty();
 

@@ -79,7 +79,18 @@ void collect_breakpoints(const SectorField& field, double px, double py, double 
     if (t > 0.0 && t < t_max) ts.push_back(t);
   };
   const geometry::LeafTravel travel = field.aperture->leaf_travel();
-  for (const geometry::ApertureRow& r : field.aperture->rows()) {
+  // Only rows whose span across the leaves (v: y for MLCX, x for MLCY) the ray reaches can be
+  // crossed; rows are sorted by v, so the others are skipped without a box test.
+  const bool along_x = travel == geometry::LeafTravel::x;
+  const double v0 = along_x ? py : px;
+  const double v1 = v0 + (along_x ? uy : ux) * t_max;
+  const double v_min = std::min(v0, v1);
+  const double v_max = std::max(v0, v1);
+  const std::vector<geometry::ApertureRow>& rows = field.aperture->rows();
+  auto first = std::lower_bound(rows.begin(), rows.end(), v_min,
+                                [](const geometry::ApertureRow& r, double v) { return r.y_upper_mm < v; });
+  for (auto it = first; it != rows.end() && it->y_lower_mm <= v_max; ++it) {
+    const geometry::ApertureRow& r = *it;
     double a = 0.0;
     double b = 0.0;
     const geometry::RectMm box = r.rect(travel);
@@ -141,9 +152,16 @@ ScatterMaximumRatios::ScatterMaximumRatios(const beamdata::BeamData& data, doubl
   largest_radius_cm_ = axis.back() / std::sqrt(std::numbers::pi);
   const auto n = static_cast<std::size_t>(std::ceil(largest_radius_cm_ / step_cm_)) + 1;
   grid_.resize(n + 1);
-  for (std::size_t i = 0; i <= n; ++i) {
+  // The grid's sides grow with i, so the bracketing node is found by walking the axis once (the
+  // same bracket interpolate() finds: the first node past s, from index 1, at most the last).
+  std::size_t k = 1;
+  for (std::size_t i = 0; i <= n && axis.size() >= 2; ++i) {
     const double s = std::min(circle_equivalent_square_cm(static_cast<double>(i) * step_cm_), axis.back());
-    grid_[i] = interpolate(axis, tmr_axis, s) * interpolate(axis, sp_axis, s) / sp0_ - tmr0_;
+    while (k + 1 < axis.size() && axis[k] <= s) ++k;
+    const double t = (s - axis[k - 1]) / (axis[k] - axis[k - 1]);
+    const double tmr_s = tmr_axis[k - 1] + t * (tmr_axis[k] - tmr_axis[k - 1]);
+    const double sp_s = sp_axis[k - 1] + t * (sp_axis[k] - sp_axis[k - 1]);
+    grid_[i] = tmr_s * sp_s / sp0_ - tmr0_;
   }
 }
 
@@ -190,10 +208,19 @@ SectorScatter integrate_sectors(const SectorField& field, double x_mm, double y_
   std::vector<double> ts;
   ts.reserve(64);
   double sum = 0.0;
+  // Central rays at (k + 0.5) widths: the first from one sincos, each next one turned by a width.
+  const double width_rad = width_deg * std::numbers::pi / 180.0;
+  const double turn_cos = std::cos(width_rad);
+  const double turn_sin = std::sin(width_rad);
+  double ux = std::cos(0.5 * width_rad);
+  double uy = std::sin(0.5 * width_rad);
   for (int k = 0; k < out.sectors; ++k) {
+    if (k > 0) {
+      const double turned_x = turn_cos * ux - turn_sin * uy;
+      uy = turn_sin * ux + turn_cos * uy;
+      ux = turned_x;
+    }
     const double direction_deg = (k + 0.5) * width_deg;
-    const double ux = std::cos(direction_deg * std::numbers::pi / 180.0);
-    const double uy = std::sin(direction_deg * std::numbers::pi / 180.0);
     double t_in = 0.0;
     double t_out = 0.0;
     if (!ray_through_box(x_mm, y_mm, ux, uy, j.x1_mm, j.x2_mm, j.y1_mm, j.y2_mm, t_in, t_out)) continue;

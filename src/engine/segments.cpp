@@ -161,7 +161,10 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
   const bool sectors = shaped_field(aperture, resolved) && path.counted;
   const SectorSetup setup{s.point, s.depth_mm, s.point.spd_mm, r.sad_mm, max_sector_deg, &options};
   const ScatterInputs scatter = scatter_inputs(aperture, resolved, sectors ? &setup : nullptr);
-  const PartGeometry geometry{s.meterset_mu, s.depth_mm, s.point.spd_mm, s.ssd_mm, s.point.off_axis_mm};
+  const PartGeometry geometry{s.meterset_mu,         s.depth_mm,
+                              s.point.spd_mm,        s.ssd_mm,
+                              s.point.off_axis_mm,   s.point.iso_plane_x_mm,
+                              s.point.iso_plane_y_mm};
   s.inputs = formula_inputs(r, resolved, geometry, scatter, path);
   if (!path.counted) {
     s.dose.method = r.method;  // outside the jaws: no dose counted

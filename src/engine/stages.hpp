@@ -40,8 +40,9 @@ using StageResult = Expected<T, CalculationProblem>;
 struct ResolvedBeam {
   const beamdata::Machine* machine = nullptr;
   const beamdata::BeamData* data = nullptr;
-  const beamdata::WedgeData* wedge = nullptr;  // the wedge in the beam, or none
-  const beamdata::TrayData* tray = nullptr;    // the block tray in the beam, or none
+  const beamdata::WedgeData* wedge = nullptr;   // the wedge in the beam, or none
+  std::optional<double> wedge_orientation_deg;  // its Wedge Orientation (300A,00D8), as the plan gives it
+  const beamdata::TrayData* tray = nullptr;     // the block tray in the beam, or none
   const plan::PatientSetup* setup = nullptr;
   geometry::PatientPosition position = geometry::PatientPosition::hfs;
   double meterset_mu = 0.0;
@@ -119,8 +120,9 @@ struct PartDepths {
 
 // What the beam's-eye view draws: control point 0's opening for a static beam, the swept area of
 // every delivering pair of control points for a modulated one.
+// The blocks are drawn as the calculation used them (Block Data at the isocentre plane).
 [[nodiscard]] BeamOutline beam_outline(const plan::Beam& beam, const geometry::Aperture& aperture0,
-                                       bool modulated);
+                                       const std::vector<BlockShape>& blocks, bool modulated);
 
 // ---- 5. scatter ----------------------------------------------------------------------------------
 // The field sizes the scatter factors are looked up with, at the isocentre plane.
@@ -159,6 +161,13 @@ struct PrimaryPath {
 // Where the point lies relative to one part's opening, and what reaches it.
 [[nodiscard]] PrimaryPath primary_path(const geometry::Aperture& aperture, const geometry::PointInBeam& point,
                                        bool modulated, const ResolvedBeam& resolved);
+// The point against the wedge's gradient, when the wedge's orientation table applies (the library
+// has one and the plan gives the Wedge Orientation); else nullopt. IEC 61217 as DICOM states it:
+// Wedge Orientation turns the wedge filter system about +Z of the beam-limiting-device system, and
+// the wedge's thin end lies along the wedge system's +Y, so at orientation θ the thin end points
+// along (−sin θ, cos θ) of the beam-limiting-device system (which carries the collimator angle).
+[[nodiscard]] std::optional<WedgeAxes> wedge_axes(const ResolvedBeam& resolved, double iso_plane_x_mm,
+                                                  double iso_plane_y_mm);
 // The off-axis ratio needs a table off the axis (closer than 1 mm an absent table is harmless).
 [[nodiscard]] StageResult<void> require_oar(const beamdata::BeamData& data,
                                             const geometry::PointInBeam& point);
@@ -175,6 +184,8 @@ struct PartGeometry {
   double spd_mm = 0.0;
   double ssd_mm = 0.0;
   double off_axis_mm = 0.0;
+  double iso_plane_x_mm = 0.0;  // the point at the isocentre plane, beam-limiting-device system
+  double iso_plane_y_mm = 0.0;
 };
 [[nodiscard]] DoseInputs formula_inputs(const BeamDose& r, const ResolvedBeam& resolved,
                                         const PartGeometry& part, const ScatterInputs& scatter,

@@ -64,6 +64,7 @@ std::optional<BevContent> bev_content(const engine::BeamDose& dose) {
   c.leaf_travel = dose.outline.leaf_travel;
   c.shaped_by_mlc = !c.modulated && dose.outline.shaped_by_mlc;
   c.outline_known = dose.outline.known;
+  c.blocks = dose.outline.blocks;
   if (dose.patient) {
     for (const auto& [x, y] : dose.patient->body_outline_iso_mm) c.body_outline_mm.push_back({x, y});
   }
@@ -106,6 +107,17 @@ BevMapping bev_mapping(const BevContent& content, const BevPanel& panel) {
                     {0.5 * panel.width_mm, 0.5 * panel.height_mm});
 }
 
+std::string_view block_line_style(bool aperture) {
+  // SHIELDING: solid outline over a light fill (blocked inside); APERTURE: long dashes, no fill
+  // (open inside). The jaws are a thinner solid line, a modulated beam's jaw envelope shorter dashes.
+  return aperture ? "fill=\"none\" stroke=\"#000\" stroke-width=\"0.7\" stroke-dasharray=\"4 1.2\""
+                  : "fill=\"#9a9a9a\" fill-opacity=\"0.55\" stroke=\"#000\" stroke-width=\"0.7\"";
+}
+
+std::string_view block_legend_words(bool aperture) {
+  return aperture ? "aperture block: open inside" : "shielding block: blocked inside";
+}
+
 namespace {
 
 std::string number(double v) { return fmt::format("{:.2f}", std::abs(v) < 0.005 ? 0.0 : v); }
@@ -141,6 +153,35 @@ double scale_bar_cm(double scale) {
     if (util::cm_to_mm(cm) * scale <= 50.0 + 1e-9) best = cm;
   }
   return best;
+}
+
+// The blocks as polygons in their line style, and a legend in words for each type drawn, top left
+// under the gantry label (inside the margin kept free for labels).
+std::string blocks_svg(const BevMapping& m, const std::vector<engine::BlockShape>& blocks) {
+  std::string svg;
+  bool drawn[2] = {false, false};  // [shielding, aperture]
+  for (const engine::BlockShape& block : blocks) {
+    if (block.outline_mm.size() < 3) continue;
+    std::string points;
+    for (const auto& [x, y] : block.outline_mm) {
+      const PaperMm p = m.to_paper(x, y);
+      points += number(p.x) + "," + number(p.y) + " ";
+    }
+    points.pop_back();
+    svg += fmt::format("<polygon class=\"{}\" points=\"{}\" {}/>\n",
+                       block.aperture ? "block-aperture" : "block-shielding", points,
+                       block_line_style(block.aperture));
+    drawn[block.aperture ? 1 : 0] = true;
+  }
+  double y = 9.0;
+  for (const bool aperture : {false, true}) {
+    if (!drawn[aperture ? 1 : 0]) continue;
+    svg += fmt::format("<rect class=\"legend\" x=\"3.00\" y=\"{}\" width=\"7.00\" height=\"1.80\" {}/>\n",
+                       number(y - 0.9), block_line_style(aperture));
+    svg += text({11.5, y}, block_legend_words(aperture), "start", 2.2);
+    y += 2.8;
+  }
+  return svg;
 }
 
 }  // namespace
@@ -200,6 +241,8 @@ std::string beams_eye_view_svg(const BevContent& c, const BevPanel& panel) {
     svg +=
         polygon(m, j.x1_mm, j.y1_mm, j.x2_mm, j.y2_mm, "fill=\"none\" stroke=\"#000\" stroke-width=\"0.6\"");
   }
+
+  svg += blocks_svg(m, c.blocks);
 
   // The body at the point's depth (from the CT), dotted.
   if (c.body_outline_mm.size() > 2) {

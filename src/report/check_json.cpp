@@ -42,6 +42,7 @@ json factors_json(const engine::PointDose& d) {
               {"mayneord_f", tmr ? json(nullptr) : factor_value(f.mayneord_f)},
               {"oar", factor_value(f.oar)},
               {"wedge", factor_value(f.wedge)},
+              {"wedge_profile", factor_value(f.wedge_profile)},
               {"tray", factor_value(f.tray)},
               {"transmission", factor_value(f.transmission)},
               {"inverse_square", factor_value(f.inverse_square)},
@@ -58,6 +59,7 @@ json provenance_json(const engine::PointDose& d) {
          {"sp", factor_provenance(f.sp)},
          {"oar", factor_provenance(f.oar)},
          {"wedge", factor_provenance(f.wedge)},
+         {"wedge_profile", factor_provenance(f.wedge_profile)},
          {"tray", factor_provenance(f.tray)},
          {"transmission", factor_provenance(f.transmission)},
          {"inverse_square", factor_provenance(f.inverse_square)}};
@@ -148,6 +150,7 @@ void add_calculation(json& j, const engine::BeamDose& c, const check::Calculatio
   j["point_in_field"] = c.point_in_field;
   j["edge_distance_cm"] = util::mm_to_cm(c.edge_distance_mm);
   j["modulated"] = c.features.modulated;
+  j["wedge_profile"] = std::string(engine::to_code(c.features.wedge_profile));
   j["segment_count"] = c.segments.size();
   add_scatter(j, c.segments.front());  // static beam: its one part; modulated: see segments
   j["equivalent_square_dose_gy"] = c.equivalent_square_dose_gy;
@@ -233,6 +236,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
                           "point_in_field",
                           "edge_distance_cm",
                           "modulated",
+                          "wedge_profile",
                           "segment_count",
                           "fields",
                           "factors",

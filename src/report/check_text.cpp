@@ -1,11 +1,14 @@
 #include <countersign/report/check_text.hpp>
+#include <countersign/report/scatter_comparison.hpp>
 #include <countersign/util/units.hpp>
 
 #include <countersign/util/text.hpp>
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
+#include <vector>
 
 namespace countersign::report {
 
@@ -74,6 +77,38 @@ void write_medium_lines(std::ostream& out, const check::BeamCheck& b) {
   }
 }
 
+// Per beam that used sector integration: its dose beside the equivalent square's, and for a beam of
+// several parts the range of the parts' differences (`explain` lists every part).
+void write_scatter_lines(std::ostream& out, const check::BeamCheck& b) {
+  if (!b.calculation) return;
+  const std::vector<ScatterComparison> rows = scatter_comparisons(*b.calculation);
+  if (rows.empty()) return;
+  const ScatterComparison& beam = rows.front();
+  out << fmt::format(
+      "  beam {} {}: sector integration {:.4f} Gy, equivalent square {:.4f} Gy, difference {:+.2f} %\n",
+      b.beam_number, shown(b.beam_name), beam.sector_dose_gy, beam.equivalent_square_dose_gy,
+      beam.difference_percent);
+  if (rows.size() < 2) return;
+  const auto [low, high] = std::minmax_element(rows.begin() + 1, rows.end(),
+                                               [](const ScatterComparison& a, const ScatterComparison& c) {
+                                                 return a.difference_percent < c.difference_percent;
+                                               });
+  out << fmt::format(
+      "    {} of {} parts by sector integration, differences from {:+.2f} % (part {}) to {:+.2f} % (part "
+      "{})\n",
+      rows.size() - 1, b.calculation->segments.size(), low->difference_percent, low->part,
+      high->difference_percent, high->part);
+}
+
+void write_scatter_section(std::ostream& out, const check::PlanCheck& c) {
+  const bool any = std::any_of(c.beams.begin(), c.beams.end(), [](const check::BeamCheck& b) {
+    return b.calculation && !scatter_comparisons(*b.calculation).empty();
+  });
+  if (!any) return;
+  out << "\nSector integration beside the equivalent square (Sterling's 4A/P of the same opening):\n";
+  for (const check::BeamCheck& b : c.beams) write_scatter_lines(out, b);
+}
+
 }  // namespace
 
 void write_check_text(std::ostream& out, const check::PlanCheck& c) {
@@ -113,6 +148,7 @@ void write_check_text(std::ostream& out, const check::PlanCheck& c) {
   }
   out << "\nMedium and depth of each beam:\n";
   for (const check::BeamCheck& b : c.beams) write_medium_lines(out, b);
+  write_scatter_section(out, c);
   if (!c.dose_references.empty()) {
     out << "\nDose references (sum of contributions):\n";
     for (const check::DoseReferenceCheck& r : c.dose_references) {

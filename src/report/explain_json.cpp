@@ -4,6 +4,7 @@
 
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/report/scatter_comparison.hpp>
 #include <countersign/util/units.hpp>
 #include "patient_json.hpp"
 
@@ -197,6 +198,19 @@ json parts_json(const engine::BeamDose& c) {
 
 namespace {
 
+// The sector-integration dose beside the equivalent-square dose (scatter_comparison.hpp).
+json scatter_comparison_json(const engine::BeamDose& c) {
+  json rows = json::array();
+  for (const ScatterComparison& r : scatter_comparisons(c)) {
+    rows.push_back({{"part", r.part == 0 ? json(nullptr) : json(r.part)},
+                    {"from_control_point", r.part == 0 ? json(nullptr) : json(r.from_control_point)},
+                    {"sector_integration_dose_gy", r.sector_dose_gy},
+                    {"equivalent_square_dose_gy", r.equivalent_square_dose_gy},
+                    {"difference_percent", r.difference_percent}});
+  }
+  return rows;
+}
+
 json model_checks_json(const engine::BeamDose& c) {
   const engine::ReferenceConditions& ref = c.dose.reference;
   const engine::FormalismComparison& f = c.model.formalism;
@@ -267,11 +281,13 @@ nlohmann::json explanation_to_json(const check::PlanCheck& check, const check::B
     j["factors"] = factors_json(c->dose);
     j["dose_per_mu_cgy"] = c->dose.dose_per_mu_cgy;
     j["parts"] = parts_json(*c);
+    j["scatter_comparison"] = scatter_comparison_json(*c);
   } else {
     j["method"] = nullptr;
     j["factors"] = json::array();
     j["dose_per_mu_cgy"] = nullptr;
     j["parts"] = json::array();
+    j["scatter_comparison"] = json::array();
   }
   if (e.tmr && e.pdd) {
     j["formalisms"] = {{"tmr", formalism_json(*e.tmr)},

@@ -3,11 +3,14 @@
 #include <countersign/geometry/patient_position.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_report.hpp>
+#include <countersign/report/scatter_comparison.hpp>
 #include <countersign/util/units.hpp>
 
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <string>
+#include <vector>
 
 namespace countersign::report {
 
@@ -94,6 +97,23 @@ std::string model_checks_text(const check::PlanCheck& check, const engine::BeamD
       c.used_sector_integration() ? fmt::format("{:.2f} %", u.sector_percent)
                                   : std::string{"not computed (no sector integration)"},
       u.heterogeneity_percent);
+  return out;
+}
+
+// The sector-integration dose beside the equivalent-square dose: the beam, then every part that
+// used sector integration.
+std::string scatter_comparison_text(const engine::BeamDose& c) {
+  const std::vector<ScatterComparison> rows = scatter_comparisons(c);
+  if (rows.empty()) return {};
+  std::string out =
+      "\nSector integration beside the equivalent square (Sterling's 4A/P of the same opening)\n"
+      "      part  from_cp   sector Gy  equiv. sq. Gy  difference %\n";
+  for (const ScatterComparison& r : rows) {
+    out += fmt::format("    {:>6}  {:>7}  {:>10.5f}  {:>13.5f}  {:>+12.2f}\n",
+                       r.part == 0 ? std::string{"beam"} : std::to_string(r.part),
+                       r.part == 0 ? std::string{"-"} : std::to_string(r.from_control_point),
+                       r.sector_dose_gy, r.equivalent_square_dose_gy, r.difference_percent);
+  }
   return out;
 }
 
@@ -222,6 +242,8 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
       }
     }
   }
+
+  if (c.dose_computed) out += scatter_comparison_text(c);
 
   if (e.tmr && e.pdd) {
     out += "\nBoth formalisms (same inputs, the engine called with each method)\n";

@@ -30,6 +30,7 @@ std::vector<FactorRow> factor_rows(const engine::PointDose& dose, FactorSelectio
   // The OAR is always shown: a value of 1 on the axis is itself a statement.
   rows.push_back({"oar", "Off-axis ratio OAR(d, r)", "multiplies", &f.oar});
   add("wedge", "Wedge factor", "multiplies", f.wedge);
+  add("wedge_profile", "Wedged off-axis ratio along the gradient", "multiplies", f.wedge_profile);
   add("tray", "Tray factor", "multiplies", f.tray);
   add("transmission", "MLC transmission", "multiplies", f.transmission);
   add("inverse_square",

@@ -4,6 +4,7 @@
 #include <countersign/report/beams_eye_view.hpp>
 #include <countersign/report/factor_rows.hpp>
 #include <countersign/report/html_escape.hpp>
+#include <countersign/report/scatter_comparison.hpp>
 #include <countersign/util/units.hpp>
 
 #include "html_parts.hpp"
@@ -11,6 +12,8 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <string>
+#include <vector>
 
 namespace countersign::report::html {
 
@@ -158,6 +161,30 @@ std::string parts_table(const engine::BeamDose& c) {
   return out;
 }
 
+// The sector-integration dose beside the equivalent-square dose: the beam, then every part that used
+// sector integration (all of them, unlike the parts table: this is the comparison a reviewer asks for).
+std::string scatter_table(const engine::BeamDose& c) {
+  const std::vector<ScatterComparison> rows = scatter_comparisons(c);
+  if (rows.empty()) return {};
+  std::string out =
+      "<h3>Sector integration beside the equivalent square</h3>\n"
+      "<p>Phantom scatter of the shaped opening by sector integration (used), and the same beam through "
+      "Sterling's equivalent square (4A/P) of the opening.</p>\n"
+      "<table class=\"factors scatter\"><thead><tr><th>Part</th><th class=\"num\">From CP</th>"
+      "<th class=\"num\">Sector integration Gy</th><th class=\"num\">Equivalent square Gy</th>"
+      "<th class=\"num\">Difference %</th></tr></thead><tbody>\n";
+  for (const ScatterComparison& r : rows) {
+    out += fmt::format(
+        "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{:.4f}</td><td class=\"num\">{:.4f}</td>"
+        "<td class=\"num\">{:+.2f}</td></tr>\n",
+        r.part == 0 ? " class=\"total\"" : "", r.part == 0 ? std::string{"Beam"} : std::to_string(r.part),
+        r.part == 0 ? std::string{"\u2013"} : std::to_string(r.from_control_point), r.sector_dose_gy,
+        r.equivalent_square_dose_gy, r.difference_percent);
+  }
+  out += "</tbody></table>\n";
+  return out;
+}
+
 std::string figure(const engine::BeamDose& c) {
   const auto content = bev_content(c);
   if (!content) return "<p>No beam's-eye view: the field geometry was not resolved.</p>\n";
@@ -170,6 +197,12 @@ std::string figure(const engine::BeamDose& c) {
       "isocentre plane ({:.1f} mm off axis).",
       scale_text(mapping.scale()), 100.0 * mapping.scale(), content->off_axis_mm);
   if (content->shaped_by_mlc) caption += " Grey: MLC leaves inside the jaws.";
+  const auto has_block = [&](bool aperture) {
+    return std::any_of(content->blocks.begin(), content->blocks.end(),
+                       [aperture](const engine::BlockShape& b) { return b.aperture == aperture; });
+  };
+  if (has_block(false)) caption += " Solid outline over a light fill: shielding block (blocked inside).";
+  if (has_block(true)) caption += " Long dashes: aperture block (open inside).";
   if (content->modulated) {
     caption += content->outline_known ? " Grey: area open in at least one part of the beam; dashed: envelope "
                                         "of the jaws; small circles: the "
@@ -235,6 +268,7 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
                          c.method == engine::Method::tmr ? "isocentric TMR" : "fixed-SSD PDD");
       out += factor_table(c);
     }
+    out += scatter_table(c);
   } else if (beam.words.problem) {
     out += fmt::format("<p>No dose was computed: {}.</p>\n", html_escape(beam.words.problem->sentence));
   }

@@ -200,6 +200,72 @@ TEST_F(Verdict, WedgeWithOffAxisPointIsUnsupportedGeometry) {
             Status::within_tolerance);
 }
 
+// A point behind a shielding block (Block Data from x = −60 to −10 mm across the field, tray TRAY-T,
+// transmission 3 %): its dose is computed (transmitted primary plus the open part's scatter) but it
+// is not judged, as it is outside the open field; a point in the open part 40 mm from the block's
+// edge is judged as a complex (blocked) field.
+TEST_F(Verdict, BlockedPointIsOutsideTheOpenField) {
+  plan::Beam beam = static_beam(1, 0, 100.0, 100.0);
+  plan::Block block;
+  block.number = 1;
+  block.tray_id = "TRAY-T";
+  block.type = plan::parse_term<plan::BlockType>("SHIELDING");
+  block.transmission = 0.03;
+  block.outline_mm = {{-60.0, -120.0}, {-10.0, -120.0}, {-10.0, 120.0}, {-60.0, 120.0}};
+  beam.blocks.push_back(block);
+  const PlanCheck behind = run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {-35, 0, 0}), {1.0}));
+  EXPECT_EQ(behind.beams[0].status, Status::not_checked);
+  EXPECT_EQ(behind.beams[0].reason.reason, Reason::point_outside_field) << behind.beams[0].reason.sentence;
+  ASSERT_TRUE(behind.beams[0].calculation);
+  EXPECT_TRUE(behind.beams[0].calculation->dose_computed);
+  const PlanCheck open = run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0}));
+  EXPECT_EQ(open.beams[0].status, Status::within_tolerance) << open.beams[0].reason.sentence;
+  EXPECT_EQ(open.beams[0].category, FieldCategory::complex);
+}
+
+// Without an orientation table, a wedged point off the axis but within wedge_max_off_axis_cm (2 cm)
+// is judged as a complex field; beyond it, not checked, naming what is missing.
+TEST_F(Verdict, WedgedPointOffAxisWithoutProfileIsComplex) {
+  plan::Beam beam = static_beam(1, 0, 100.0, 100.0);
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), "W30", 30.0, std::nullopt, 90.0});
+  const PlanCheck near = run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {10, 0, 0}), {1.0}));
+  EXPECT_EQ(near.beams[0].status, Status::within_tolerance) << near.beams[0].reason.sentence;
+  EXPECT_EQ(near.beams[0].category, FieldCategory::complex);
+  const PlanCheck far = run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {30, 0, 0}), {1.0}));
+  EXPECT_EQ(far.beams[0].reason.reason, Reason::unsupported_geometry);
+  EXPECT_NE(far.beams[0].reason.sentence.find("no orientation table"), std::string::npos)
+      << far.beams[0].reason.sentence;
+  // On the axis the wedge changes nothing: a simple field.
+  const PlanCheck axis = run(with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}), {1.0}));
+  EXPECT_EQ(axis.beams[0].category, FieldCategory::simple);
+}
+
+// A wedge turned by 180°. The plan's dose is the one delivered with the thin end (orientation 270°,
+// IEC 61217: thin end towards +X) over the point 4 cm along +X; the plan then states orientation 90°
+// (thin end towards −X). With the library's orientation table the check computes the thick side's
+// dose: the deviation is the ratio of the profile's two sides, 0.9016 / 1.112 − 1 = −18.9 % (hand
+// interpolation in the fixture's table, engine/fixtures.hpp), far outside the 3 % of a complex field.
+// Without the table the same point 4 cm off axis is not checked (beyond wedge_max_off_axis_cm).
+TEST_F(Verdict, WedgeTurnedBy180DegreesIsFlagged) {
+  library.machines[0].beams[0].wedges[0].orientation_table = test_fixtures::test_wedge_profile();
+  plan::Beam beam = static_beam(1, 0, 100.0, 100.0);
+  beam.wedges.push_back({1, plan::parse_term<plan::WedgeType>("STANDARD"), "W30", 30.0, std::nullopt, 270.0});
+  plan::Plan plan = with_planned(make_plan({{beam, 100.0, 1.0, 100.0}}, {40, 0, 0}), {1.0});
+  const PlanCheck as_planned = run(plan);
+  EXPECT_EQ(as_planned.beams[0].status, Status::within_tolerance) << as_planned.beams[0].reason.sentence;
+  EXPECT_EQ(as_planned.beams[0].category, FieldCategory::complex);  // 4 cm off axis
+
+  plan.beams[0].wedges[0].orientation_deg = 90.0;
+  const PlanCheck turned = run(plan);
+  const BeamCheck& b = turned.beams[0];
+  EXPECT_EQ(b.status, Status::outside_tolerance) << b.reason.sentence;
+  EXPECT_EQ(b.reason.reason, Reason::deviation_exceeds_tolerance);
+  EXPECT_NEAR(*b.deviation_percent, 100.0 * (0.9016 / 1.112 - 1.0), 1e-6);
+
+  library.machines[0].beams[0].wedges[0].orientation_table.reset();
+  EXPECT_EQ(run(plan).beams[0].reason.reason, Reason::unsupported_geometry);
+}
+
 TEST_F(Verdict, CategoriesAndTolerances) {
   // Off-axis 30 mm > 20 mm: complex, 3 %.
   const PlanCheck off =

@@ -48,6 +48,7 @@ TEST(ExplainCli, JsonHasTheDocumentedKeys) {
                           "factors",
                           "dose_per_mu_cgy",
                           "parts",
+                          "scatter_comparison",
                           "formalisms",
                           "sensitivity",
                           "approximations",

@@ -83,6 +83,20 @@ inline beamdata::BeamData test_beam() {
   return b;
 }
 
+// An INVENTED wedged off-axis ratio for the test beam's W30 (beamdata/FORMAT.md: depth_cm x signed
+// distance along the gradient at the isocentre plane, thin end negative, 1 on the axis): the same
+// row at every depth, so that a hand calculation needs only the linear interpolation across distance.
+inline const std::vector<double> wedge_profile_cm{-10, -5, 0, 5, 10};
+inline const std::vector<double> wedge_profile_row{1.30, 1.14, 1.0, 0.877, 0.769};
+inline beamdata::Table2D test_wedge_profile() {
+  const std::vector<double> depths{0, 10, 20, 30};
+  std::vector<double> values;
+  for (std::size_t i = 0; i < depths.size(); ++i)
+    values.insert(values.end(), wedge_profile_row.begin(), wedge_profile_row.end());
+  return beamdata::Table2D("test/w30_profile.csv", "wedge_oar", "depth_cm", depths, "wedge_axis_cm",
+                           wedge_profile_cm, values);
+}
+
 inline beamdata::Library test_library() {
   beamdata::Library library;
   library.root = "in-memory";

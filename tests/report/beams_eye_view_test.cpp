@@ -139,5 +139,62 @@ TEST(BeamsEyeView, ContentIsTheCalculationsOutline) {
   EXPECT_FALSE(bev_content(engine::BeamDose{}));
 }
 
+// Blocks: Block Data polygons at the isocentre plane drawn to scale, shielding and aperture told apart
+// by line style and named in words. The default panel draws a 10 x 10 cm field at 0.8 (test above),
+// axis at the panel centre (60, 60) mm: a vertex (x, y) lands at (60 + 0.8 x, 60 − 0.8 y) (hand).
+TEST(BeamsEyeView, BlocksAreDrawnToScaleInTheirLineStyleWithALegendInWords) {
+  BevContent c;
+  c.jaws = {-50.0, 50.0, -50.0, 50.0};
+  c.open = {{-50.0, 50.0, -50.0, 50.0}};
+  c.blocks.push_back({{{-20.0, -20.0}, {20.0, -20.0}, {20.0, 0.0}, {-20.0, 0.0}}, false, 0.03});
+  c.blocks.push_back({{{-40.0, -40.0}, {40.0, -40.0}, {40.0, 40.0}, {-40.0, 40.0}}, true, 0.03});
+  const BevPanel panel;
+  ASSERT_DOUBLE_EQ(bev_mapping(c, panel).scale(), 0.8);
+  const std::string svg = beams_eye_view_svg(c, panel);
+  // (−20, −20) → (44, 76); (20, −20) → (76, 76); (20, 0) → (76, 60); (−20, 0) → (44, 60).
+  EXPECT_NE(svg.find("<polygon class=\"block-shielding\" points=\"44.00,76.00 76.00,76.00 76.00,60.00 "
+                     "44.00,60.00\" " +
+                     std::string(block_line_style(false))),
+            std::string::npos)
+      << svg;
+  // (±40, ±40) → 28 and 92.
+  EXPECT_NE(svg.find("<polygon class=\"block-aperture\" points=\"28.00,92.00 92.00,92.00 92.00,28.00 "
+                     "28.00,28.00\" " +
+                     std::string(block_line_style(true))),
+            std::string::npos)
+      << svg;
+  EXPECT_NE(block_line_style(true), block_line_style(false));
+  EXPECT_NE(std::string(block_line_style(true)).find("stroke-dasharray"), std::string::npos);
+  EXPECT_EQ(std::string(block_line_style(false)).find("stroke-dasharray"), std::string::npos);
+  EXPECT_NE(svg.find("shielding block: blocked inside"), std::string::npos);
+  EXPECT_NE(svg.find("aperture block: open inside"), std::string::npos);
+
+  // Collimator 90°: a vertex (x, y) of the collimator system is (−y, x) of the gantry system
+  // (right-handed about Z): (−20, −20) → (20, −20) → (76, 76); (20, −20) → (20, 20) → (76, 44);
+  // (20, 0) → (0, 20) → (60, 44); (−20, 0) → (0, −20) → (60, 76).
+  c.collimator_deg = 90.0;
+  c.blocks.resize(1);
+  const std::string turned = beams_eye_view_svg(c, panel);
+  EXPECT_NE(turned.find("points=\"76.00,76.00 76.00,44.00 60.00,44.00 60.00,76.00\""), std::string::npos)
+      << turned;
+  EXPECT_EQ(turned.find("aperture block: open inside"), std::string::npos);  // only the types drawn
+}
+
+// The engine hands the blocks it used to the drawing with the outline.
+TEST(BeamsEyeView, BlocksComeFromTheCalculationsOutline) {
+  engine::BeamDose dose;
+  dose.point.spd_mm = 1000.0;
+  dose.aperture = geometry::Aperture({-50.0, 50.0, -50.0, 50.0}, {{-50.0, 50.0, -50.0, 50.0}}, false);
+  dose.outline.jaws = {-50.0, 50.0, -50.0, 50.0};
+  dose.outline.open = {{-50.0, 50.0, -50.0, 50.0}};
+  dose.outline.known = true;
+  dose.outline.blocks.push_back({{{0.0, 0.0}, {10.0, 0.0}, {10.0, 10.0}}, false, 0.05});
+  const auto content = bev_content(dose);
+  ASSERT_TRUE(content);
+  ASSERT_EQ(content->blocks.size(), 1u);
+  EXPECT_DOUBLE_EQ(content->blocks[0].outline_mm[2][1], 10.0);
+  EXPECT_FALSE(content->blocks[0].aperture);
+}
+
 }  // namespace
 }  // namespace countersign::report

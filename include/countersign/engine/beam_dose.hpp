@@ -18,8 +18,8 @@
 #include <countersign/geometry/beam_frame.hpp>
 #include <countersign/plan/plan.hpp>
 
-#include <functional>
 #include <algorithm>
+#include <functional>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -80,10 +80,20 @@ struct DepthUsed {
   bool equivalent_by_policy = false;
 };
 
+// A wedged beam: where the off-axis ratio along the wedge's gradient comes from.
+enum class WedgeProfile {
+  not_wedged,
+  orientation_table,  // the library's orientation_table, aimed by Wedge Orientation and the collimator angle
+  no_table,           // the library has no orientation_table for the wedge: the open-field OAR only
+  no_orientation,     // the plan gives no Wedge Orientation (300A,00D8): the open-field OAR only
+};
+[[nodiscard]] std::string_view to_code(WedgeProfile profile);
+
 // Facts the tolerance policy sorts beams by.
 struct BeamFeatures {
   bool modulated = false;  // more than one segment, or a moving gantry
   bool wedged = false;
+  WedgeProfile wedge_profile = WedgeProfile::not_wedged;
   bool tray = false;
   bool blocks = false;                  // block shapes present (not modelled)
   double jaw_centre_offset_mm = 0.0;    // distance of the jaw rectangle's centre from the axis
@@ -97,8 +107,9 @@ struct BeamOutline {
   geometry::JawOpening jaws;
   std::vector<geometry::ApertureRow> open;  // in the leaves' frame (see leaf_travel)
   geometry::LeafTravel leaf_travel = geometry::LeafTravel::x;
-  bool shaped_by_mlc = false;  // static beam with an MLC: the leaves are drawn inside the jaws
-  bool known = false;          // false: no outline could be built (nothing to draw but the jaws)
+  bool shaped_by_mlc = false;      // static beam with an MLC: the leaves are drawn inside the jaws
+  bool known = false;              // false: no outline could be built (nothing to draw but the jaws)
+  std::vector<BlockShape> blocks;  // the beam's blocks at the isocentre plane, as the calculation used them
 };
 
 // One part of the meterset delivered with one aperture and one beam direction.
@@ -162,8 +173,9 @@ struct BeamDose {
   double equivalent_square_dose_gy = 0.0;
   double sector_vs_equivalent_square_percent = 0.0;
   [[nodiscard]] bool used_sector_integration() const {
-    return std::any_of(segments.begin(), segments.end(),
-                       [](const Segment& s) { return s.scatter_method == ScatterMethod::sector_integration; });
+    return std::any_of(segments.begin(), segments.end(), [](const Segment& s) {
+      return s.scatter_method == ScatterMethod::sector_integration;
+    });
   }
   // The share of the meterset delivered (in parts that reach the point) with the point closer than
   // EngineOptions::segment_edge_distance_mm to the part's opening's edge.

@@ -26,6 +26,13 @@ namespace countersign::engine {
 enum class Method { tmr, pdd };
 [[nodiscard]] std::string_view to_code(Method method);
 
+// A point's place against a wedge's gradient at the isocentre plane (cm): along the gradient,
+// positive towards the thick end (the orientation table's axis, beamdata/FORMAT.md), and across it.
+struct WedgeAxes {
+  double towards_thick_cm = 0.0;
+  double across_cm = 0.0;
+};
+
 // Everything the formula needs, resolved from the plan and the geometry. Units in the names.
 struct DoseInputs {
   Method method = Method::tmr;
@@ -38,8 +45,11 @@ struct DoseInputs {
   double collimator_field_cm = 0.0;    // s_c: equivalent square of the jaw opening at the isocentre
   double field_at_isocentre_cm = 0.0;  // equivalent square of the irradiated field at the isocentre plane
   const beamdata::WedgeData* wedge = nullptr;  // the wedge in the beam (library data), or none
-  const beamdata::TrayData* tray = nullptr;    // the tray in the beam, or none
-  double transmission = 1.0;  // 1 in the open field; the MLC transmission under closed leaves
+  // Set when the wedge's orientation table applies: the OAR is then the wedged off-axis ratio along
+  // the gradient times the open-field OAR across it (separable profiles, common practice, no source).
+  std::optional<WedgeAxes> wedge_axes;
+  const beamdata::TrayData* tray = nullptr;  // the tray in the beam, or none
+  double transmission = 1.0;                 // 1 in the open field; the MLC transmission under closed leaves
 };
 
 // How a factor's value was obtained.
@@ -91,6 +101,7 @@ struct DoseFactors {
   Factor mayneord_f;  // PDD form
   Factor oar;
   Factor wedge;
+  Factor wedge_profile;  // wedged off-axis ratio along the gradient (the wedge's orientation table)
   Factor tray;
   Factor transmission;  // MLC transmission when the point is under the leaves
   Factor inverse_square;
@@ -112,7 +123,9 @@ struct PointDose {
 
 // The dose at the point. Table lookups outside a table are computed (extrapolated linearly) and
 // marked; judging them is the caller's job. The OAR is looked up when the library has a table,
-// else taken as 1 (basis on_axis_unity) and the caller decides whether that is acceptable.
+// else taken as 1 (basis on_axis_unity) and the caller decides whether that is acceptable. With
+// wedge_axes the OAR is looked up at the distance across the gradient and the wedge's orientation
+// table at the distance along it.
 [[nodiscard]] PointDose compute_point_dose(const beamdata::BeamData& beam, const DoseInputs& inputs);
 
 }  // namespace countersign::engine

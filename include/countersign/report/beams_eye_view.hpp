@@ -10,6 +10,7 @@
 
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace countersign::report {
@@ -58,14 +59,19 @@ struct BevContent {
   geometry::JawOpening jaws;                // static: control point 0; modulated: envelope of all parts
   std::vector<geometry::ApertureRow> open;  // static: the opening; modulated: area open in any part
   geometry::LeafTravel leaf_travel = geometry::LeafTravel::x;  // the frame of `open` (MLCY: y)
-  bool shaped_by_mlc = false;               // static beam with an MLC: draw the leaves inside the jaws
+  bool shaped_by_mlc = false;  // static beam with an MLC: draw the leaves inside the jaws
   bool modulated = false;
   bool outline_known = true;             // false: a modulated beam whose leaf shapes could not be built
   std::optional<PaperMm> dose_point_mm;  // projected to the isocentre plane (collimator system, mm)
   std::vector<PaperMm> part_points_mm;   // modulated/arc: the point as each part sees it
   double off_axis_mm = 0.0;
-  std::vector<PaperMm> body_outline_mm;  // with a CT: the body at the point's depth (isocentre-plane mm)
+  std::vector<PaperMm> body_outline_mm;    // with a CT: the body at the point's depth (isocentre-plane mm)
+  std::vector<engine::BlockShape> blocks;  // Block Data polygons (collimator system, isocentre plane, mm)
 };
+
+// How a block is drawn, told apart by line style and named in the drawing's legend (not by colour).
+[[nodiscard]] std::string_view block_line_style(bool aperture);
+[[nodiscard]] std::string_view block_legend_words(bool aperture);
 
 // The drawing's content for a computed beam, from the outline the engine built with the apertures
 // (static: control point 0's opening; modulated: the area open in any part and the jaw envelope).
