@@ -6,7 +6,17 @@
 
 namespace countersign::engine {
 
-std::string_view to_code(Method method) { return method == Method::tmr ? "tmr" : "pdd"; }
+std::string_view to_code(Method method) {
+  switch (method) {
+    case Method::tmr:
+      return "tmr";
+    case Method::pdd:
+      return "pdd";
+    case Method::electron:
+      return "electron";
+  }
+  return "unknown";
+}
 
 std::string_view to_code(FactorBasis basis) {
   switch (basis) {
@@ -47,7 +57,9 @@ double squared(double x) { return x * x; }
 }  // namespace
 
 const Factor* PointDose::first_extrapolated() const {
-  const std::array<const Factor*, 11> all{&factors.calibration_depth,
+  const std::array<const Factor*, 13> all{&factors.calibration_depth,
+                                          &factors.applicator,
+                                          &factors.cutout,
                                           &factors.calibration_sc,
                                           &factors.calibration_sp,
                                           &factors.sc,
