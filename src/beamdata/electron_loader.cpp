@@ -11,7 +11,9 @@ ElectronDraft MachineLoader::electron_beam(const toml::table& t, const std::stri
   ElectronDraft draft;
   ElectronBeamData& b = draft.data;
   reader_.unknown_keys(
-      t, {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "calibration", "applicator"}, path);
+      t,
+      {"id", "radiation", "energy_mv", "dmax_cm", "pdd_ssd_cm", "ssd_range_cm", "calibration", "applicator"},
+      path);
   const auto id = reader_.text(t, "id", path);
   const auto energy = reader_.number(t, "energy_mv", path, 1.0, 50.0);  // MeV for electrons
   const auto dmax = reader_.number(t, "dmax_cm", path, 0.1, 6.0);
@@ -23,6 +25,9 @@ ElectronDraft MachineLoader::electron_beam(const toml::table& t, const std::stri
   draft.dmax_known = dmax.has_value();
   draft.pdd_ssd_known = pdd_ssd.has_value();
   bool complete = id && energy && dmax && pdd_ssd;
+  const auto range = reader_.number_pair(t, "ssd_range_cm", path, min_distance_cm, max_distance_cm);
+  if (range) b.ssd_range_cm = SsdRange{range->first, range->second};
+  complete = (range.has_value() || t.get("ssd_range_cm") == nullptr) && complete;
   complete = read_electron_calibration(t, path, draft) && complete;
   if (draft.calibration_known && std::abs(b.calibration.output_cgy_per_mu - 1.0) > 0.2)
     reader_.problem(

@@ -54,6 +54,13 @@ const ElectronBeamData* Machine::electron_beam(double energy_mev) const {
   return nullptr;
 }
 
+const BolusData* Machine::bolus(const std::string& id) const {
+  for (const auto& b : boli) {
+    if (b.id == id) return &b;
+  }
+  return nullptr;
+}
+
 const Machine* Library::machine(const std::string& name) const {
   for (const auto& m : machines) {
     if (m.answers_to(name)) return &m;
@@ -103,6 +110,32 @@ BeamMatch Library::match(const std::string& machine_name, const std::string& rad
     result.failure = MatchFailure::unknown_energy;
     sentence << "Machine '" << result.machine->name << "' has no " << radiation_type << " beam data at "
              << energy_mv << " MV.";
+  }
+  result.explanation = sentence.str();
+  return result;
+}
+
+ElectronMatch Library::match_electron(const std::string& machine_name, double energy_mev) const {
+  ElectronMatch result;
+  const BeamMatch photon = match(machine_name, "ELECTRON", energy_mev);
+  result.machine = photon.machine;
+  if (result.machine == nullptr) {
+    result.failure = MatchFailure::unknown_machine;
+    result.explanation = photon.explanation;
+    return result;
+  }
+  result.beam = result.machine->electron_beam(energy_mev);
+  if (result.beam != nullptr) return result;
+  std::ostringstream sentence;
+  if (result.machine->electron_beams.empty()) {
+    result.failure = MatchFailure::unknown_radiation;
+    sentence << "Machine '" << result.machine->name << "' has no electron beam data.";
+  } else {
+    result.failure = MatchFailure::unknown_energy;
+    sentence << "Machine '" << result.machine->name << "' has no electron beam data at " << energy_mev
+             << " MeV (it has";
+    for (const auto& e : result.machine->electron_beams) sentence << ' ' << e.energy_mev;
+    sentence << " MeV).";
   }
   result.explanation = sentence.str();
   return result;

@@ -111,10 +111,31 @@ bool MachineLoader::beam_ids_unique(const MachineDraft& draft, const std::vector
   return unique;
 }
 
+bool MachineLoader::boli(const toml::table& manifest, Machine& machine) {
+  bool complete = true;
+  const auto entries = reader_.table_array(manifest, "bolus", "");
+  for (std::size_t i = 0; i < entries.size(); ++i) {
+    const std::string path = indexed_path("", "bolus", i);
+    reader_.unknown_keys(*entries[i], {"id", "thickness_cm"}, path);
+    const auto id = reader_.text(*entries[i], "id", path);
+    const auto thickness = reader_.number(*entries[i], "thickness_cm", path, 0.05, 5.0);
+    if (id && machine.bolus(*id) != nullptr) {
+      reader_.problem(entries[i], path + "id", "bolus id '" + *id + "' appears twice");
+      complete = false;
+    }
+    if (!id || !thickness) {
+      complete = false;
+      continue;
+    }
+    machine.boli.push_back({*id, *thickness});
+  }
+  return complete;
+}
+
 MachineDraft MachineLoader::machine(const toml::table& manifest) {
   MachineDraft draft;
   draft.machine.manifest = reader_.file();
-  reader_.unknown_keys(manifest, {"machine", "aliases", "sad_cm", "beam"}, "");
+  reader_.unknown_keys(manifest, {"machine", "aliases", "sad_cm", "beam", "bolus"}, "");
   const auto name = reader_.text(manifest, "machine", "");
   draft.machine.aliases = reader_.text_list(manifest, "aliases", "");
   const auto sad = reader_.number(manifest, "sad_cm", "", min_distance_cm, max_distance_cm);
@@ -133,6 +154,7 @@ MachineDraft MachineLoader::machine(const toml::table& manifest) {
     }
   }
 
+  complete = boli(manifest, draft.machine) && complete;
   const auto beams = reader_.table_array(manifest, "beam", "");
   if (beams.empty()) {
     reader_.problem(&manifest, "beam", "the manifest defines no [[beam]]");

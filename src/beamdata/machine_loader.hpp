@@ -65,6 +65,8 @@ class MachineLoader {
   bool read_electron_calibration(const toml::table& t, const std::string& path, ElectronDraft& draft);
   bool applicator(const toml::table& t, const std::string& path, ApplicatorData& applicator);
 
+  // The optional [[bolus]] entries (id, thickness_cm) into machine.boli.
+  bool boli(const toml::table& manifest, Machine& machine);
   bool beam_ids_unique(const MachineDraft& draft, const std::vector<const toml::table*>& beams);
 
   std::filesystem::path folder_;

@@ -52,7 +52,8 @@ std::optional<Finding> beam_finding(const CalculationProblem& p) {
     case ProblemKind::radiation_not_photon:
       return Finding{
           Reason::unsupported_radiation,
-          fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON beams are checked", p.plan_text)};
+          fmt::format("Radiation Type (300A,00C6) is \"{}\"; only PHOTON and ELECTRON beams are checked",
+                      p.plan_text)};
     case ProblemKind::dosimeter_unit_not_mu:
       return Finding{
           Reason::unsupported_technique,
@@ -107,6 +108,38 @@ std::optional<Finding> accessory_finding(const CalculationProblem& p) {
       return Finding{Reason::unknown_accessory,
                      fmt::format("Block Tray ID (300A,00F5) \"{}\" is not in the beam data of {}",
                                  p.plan_text, p.library_beam)};
+    case ProblemKind::several_applicators:
+      return Finding{Reason::unsupported_accessory, "the beam has more than one applicator (300A,0107)"};
+    case ProblemKind::applicator_not_in_library:
+      return Finding{
+          Reason::unknown_accessory,
+          fmt::format("Applicator ID (300A,0108) \"{}\" is not in the beam data of electron beam {}",
+                      p.plan_text, p.library_beam)};
+    case ProblemKind::electron_accessory_unsupported:
+      return Finding{
+          Reason::unsupported_accessory,
+          fmt::format("the electron beam has {}; only one cutout (Block Type (300A,00F8) APERTURE) "
+                      "in an applicator is modelled",
+                      p.plan_text)};
+    case ProblemKind::cutout_unusable:
+      return Finding{Reason::unsupported_geometry,
+                     fmt::format("the cutout's Block Data (300A,0106) of block {} encloses no area",
+                                 p.item_id.empty() ? std::string{"?"} : p.item_id)};
+    case ProblemKind::cutout_table_missing:
+      return Finding{Reason::missing_beam_data,
+                     fmt::format("applicator {} of electron beam {} has no cutout table and the beam has a "
+                                 "cutout",
+                                 p.item_id, p.library_beam)};
+    case ProblemKind::several_boli:
+      return Finding{
+          Reason::unsupported_accessory,
+          "the electron beam has more than one bolus (300C,00B0); their thicknesses cannot be placed"};
+    case ProblemKind::bolus_thickness_unknown:
+      return Finding{
+          Reason::bolus_thickness_unknown,
+          fmt::format("Bolus ID (300A,00DC) \"{}\": machine {} lists no [[bolus]] of that id, and an "
+                      "RT Plan carries no bolus thickness; the depth cannot include it",
+                      p.plan_text, p.machine)};
     case ProblemKind::bolus_without_plan_depth:
       if (p.plan_text == "ct") {
         return Finding{Reason::unsupported_accessory,
@@ -184,6 +217,17 @@ Finding geometry_finding(const CalculationProblem& p) {
       return {Reason::missing_beam_data,
               fmt::format("beam {} has no OAR table and the point is {:.1f} cm off axis", p.library_beam,
                           util::mm_to_cm(p.plan_value.value_or(0.0)))};
+    case ProblemKind::electron_point_off_axis:
+      return {
+          Reason::unsupported_geometry,
+          fmt::format("the dose point is {:.1f} mm off the central axis; electron beams are checked on the "
+                      "axis only (the library has no electron off-axis data)",
+                      p.plan_value.value_or(0.0))};
+    case ProblemKind::electron_calibration_ssd_differs:
+      return {Reason::missing_beam_data,
+              fmt::format("electron beam {}: the calibration SSD {:g} cm differs from the tables' pdd_ssd_cm "
+                          "{:g} cm; the formula needs them equal",
+                          p.library_beam, p.plan_value.value_or(0.0), p.library_value.value_or(0.0))};
     case ProblemKind::block_transmission_missing:
       return {Reason::missing_beam_data,
               fmt::format("block {} gives no Block Transmission (300A,0102) and beam {} has no "
@@ -233,6 +277,10 @@ std::string depth_description(const engine::DepthUsed& depth) {
 }
 
 std::string method_reason(const engine::BeamDose& dose) {
+  if (dose.method == engine::Method::electron) {
+    return "electron form of AAPM TG-71: output x applicator factor x cutout factor x PDD/100 x "
+           "effective-SSD inverse square";
+  }
   const bool pdd = dose.method == engine::Method::pdd;
   if (!dose.method_basis) return {};
   if (dose.method_basis == engine::MethodBasis::user_choice) {
@@ -242,6 +290,62 @@ std::string method_reason(const engine::BeamDose& dose) {
   if (dose.setup_technique.absent()) return "isocentric (TMR) form: Setup Technique (300A,01B0) is absent";
   return "isocentric (TMR) form: Setup Technique (300A,01B0) is " + dose.setup_technique.text;
 }
+
+namespace {
+
+std::string cutout_sentence(const engine::ElectronFacts& e) {
+  const engine::CutoutSize& c = e.cutout;
+  switch (c.method) {
+    case engine::CutoutMethod::open_applicator:
+      return fmt::format("Cutout: none; the open applicator {} ({:g} cm square) is used.", e.applicator_id,
+                         e.applicator_field_cm);
+    case engine::CutoutMethod::equivalent_square:
+      return fmt::format(
+          "Cutout: equivalent square 4A/P = {:.2f} cm (area {:.1f} cm2, perimeter {:.1f} cm), from Block "
+          "Data at "
+          "the isocentre plane scaled to the tables' SSD {:g} cm.",
+          c.equivalent_square_cm, c.area_cm2, c.perimeter_cm, e.standard_ssd_cm);
+    case engine::CutoutMethod::square_root_rule:
+      return fmt::format(
+          "Cutout: elongated, square-root rule CF(X,Y) = sqrt(CF(X) CF(Y)) and PDD(d,X,Y) = sqrt(PDD(d,X) "
+          "PDD(d,Y)) with X = {:.2f} cm, Y = {:.2f} cm, the rectangle of the cutout's area {:.1f} cm2 and the "
+          "aspect of its principal axes (perimeter {:.1f} cm) at the tables' SSD {:g} cm (4A/P would be {:.2f} "
+          "cm).",
+          c.side_x_cm, c.side_y_cm, c.area_cm2, c.perimeter_cm, e.standard_ssd_cm, c.equivalent_square_cm);
+  }
+  return {};
+}
+
+// The electron approximations; the numbers are in BeamDose::electron.
+std::string electron_sentence(const engine::Approximation& a, const engine::BeamDose& dose) {
+  if (!dose.electron) return {};
+  const engine::ElectronFacts& e = *dose.electron;
+  switch (a.kind) {
+    case engine::ApproximationKind::electron_cutout_size:
+      return cutout_sentence(e);
+    case engine::ApproximationKind::electron_pdd_at_standard_ssd:
+      return fmt::format(
+          "SSD {:.1f} cm (air gap {:+.1f} cm from the tables' {:.1f} cm): inverse square with applicator "
+          "{}'s "
+          "effective SSD {:.1f} cm; the PDD of the tables' SSD is used, its change with SSD is ignored.",
+          a.ssd_cm, e.air_gap_cm, a.table_ssd_cm, e.applicator_id, e.effective_ssd_cm);
+    case engine::ApproximationKind::electron_bolus_added:
+      return fmt::format(
+          "Bolus {}: {:.2f} cm from the library, taken as water-equivalent, added to the depth below the "
+          "skin "
+          "({:.2f} cm -> {:.2f} cm); the surface the beam enters is the bolus's, {:.2f} cm nearer the source "
+          "than Source to Surface Distance (300A,0130).",
+          e.bolus_id, e.bolus_thickness_cm.value_or(0.0), e.skin_depth_cm, e.depth_cm,
+          e.bolus_thickness_cm.value_or(0.0));
+    case engine::ApproximationKind::electron_normal_incidence:
+      return "No CT: the surface is taken perpendicular to the beam (the obliquity is not known), a flat "
+             "water-equivalent patient.";
+    default:
+      return {};
+  }
+}
+
+}  // namespace
 
 std::string approximation_sentence(const engine::Approximation& a, const engine::BeamDose& dose) {
   switch (a.kind) {
@@ -291,6 +395,11 @@ std::string approximation_sentence(const engine::Approximation& a, const engine:
           "change in "
           "phantom scatter (about half a percent).",
           a.ssd_cm, a.table_ssd_cm);
+    case engine::ApproximationKind::electron_cutout_size:
+    case engine::ApproximationKind::electron_pdd_at_standard_ssd:
+    case engine::ApproximationKind::electron_bolus_added:
+    case engine::ApproximationKind::electron_normal_incidence:
+      return electron_sentence(a, dose);
   }
   return {};
 }

@@ -101,6 +101,11 @@ std::string_view missing_wedge_profile(const engine::BeamDose& c) {
 
 FieldCategory categorise(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (c.features.modulated) return FieldCategory::modulated;
+  // An electron field shaped by a cutout is a shaped field; the open applicator is a simple one.
+  if (c.electron) {
+    return c.electron->cutout.method == engine::CutoutMethod::open_applicator ? FieldCategory::simple
+                                                                              : FieldCategory::complex;
+  }
   const bool off_axis = c.point.off_axis_mm > util::cm_to_mm(policy.simple_max_off_axis_cm);
   const bool asymmetric = c.features.jaw_centre_offset_mm > util::cm_to_mm(policy.simple_max_jaw_offset_cm);
   const bool shaped = c.features.open_to_jaw_area_ratio < policy.simple_min_open_fraction;
@@ -204,7 +209,8 @@ void judge_beam(BeamCheck& beam, const TolerancePolicy& policy) {
   const double computed = c.computed_dose_gy;
   if (computed > 0.0 && beam.meterset_mu) beam.independent_mu = *beam.meterset_mu * planned / computed;
   beam.deviation_percent = 100.0 * (computed - planned) / planned;
-  beam.calc_uncertainty_percent = c.model.uncertainty.combined_percent;
+  // The uncertainty estimate covers the photon tables; for an electron beam none is claimed.
+  if (!c.electron) beam.calc_uncertainty_percent = c.model.uncertainty.combined_percent;
   // The plan contradicts itself, or the CT: a person must look, whatever the dose says. With a CT the
   // plan's SSD and depths are compared with the CT's surface along the ray; without one, with each
   // other on a flat surface.

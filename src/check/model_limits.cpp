@@ -115,6 +115,7 @@ std::optional<Finding> geometry_finding(const engine::BeamDose& c, const Toleran
 }
 
 std::optional<Finding> model_edge_finding(const engine::BeamDose& c, const TolerancePolicy& policy) {
+  if (c.electron) return electron_edge_finding(c, policy);
   if (c.beam_data == nullptr) return std::nullopt;
   if (auto f = buildup_finding(c, policy)) return f;
   if (auto f = small_field_finding(c, policy)) return f;

@@ -22,4 +22,10 @@ namespace countersign::check {
 [[nodiscard]] std::optional<Finding> model_edge_finding(const engine::BeamDose& c,
                                                         const TolerancePolicy& policy);
 
+// Edges of the electron model (electron_limits.cpp, not checked): the SSD outside the beam's
+// ssd_range_cm (or an extended distance without one), a cutout smaller than the tables' smallest
+// field, the point beyond the depth of 80 % dose, and, with a CT, oblique incidence.
+[[nodiscard]] std::optional<Finding> electron_edge_finding(const engine::BeamDose& c,
+                                                           const TolerancePolicy& policy);
+
 }  // namespace countersign::check

@@ -74,6 +74,14 @@ std::string_view reason_code(Reason reason) {
       return "missing_tissue";
     case Reason::plan_geometry_differs_from_ct:
       return "plan_geometry_differs_from_ct";
+    case Reason::point_beyond_eighty_percent_depth:
+      return "point_beyond_eighty_percent_depth";
+    case Reason::cutout_below_table:
+      return "cutout_below_table";
+    case Reason::oblique_incidence:
+      return "oblique_incidence";
+    case Reason::bolus_thickness_unknown:
+      return "bolus_thickness_unknown";
     case Reason::nothing_to_check:
       return "nothing_to_check";
   }

@@ -93,6 +93,8 @@ const std::map<std::string, Key>& keys() {
        {&TolerancePolicy::patient_max_missing_tissue_fraction, 0.0, 1.0}},
       {"patient.plan_equivalent_depth_switch_percent",
        {&TolerancePolicy::patient_plan_equivalent_depth_switch_percent, 0.0, 100.0}},
+      // [electron]
+      {"electron.max_obliquity_deg", {&TolerancePolicy::electron_max_obliquity_deg, 0.0, 89.0}},
   };
   return all;
 }

@@ -131,6 +131,20 @@ std::vector<plan::Accessory> parse_accessories(const std::vector<ItemReader>& it
   return accessories;
 }
 
+// Applicator Sequence (300A,0107): ID, Type as a defined term (an electron cutout is not here but in
+// the Block Sequence, Block Type APERTURE), Description.
+std::vector<plan::Applicator> parse_applicators(const ItemReader& beam_item) {
+  std::vector<plan::Applicator> applicators;
+  for (const auto& item : beam_item.sequence(DCM_ApplicatorSequence, Need::optional)) {
+    plan::Applicator applicator;
+    applicator.id = item.text(DCM_ApplicatorID, Need::optional);
+    applicator.type = item.term<plan::ApplicatorType>(DCM_ApplicatorType, Need::optional);
+    applicator.description = item.text(DCM_ApplicatorDescription, Need::optional);
+    applicators.push_back(std::move(applicator));
+  }
+  return applicators;
+}
+
 // Block Data (300A,0106): Block Number of Points (300A,0104) (x, y) pairs, at least a triangle.
 std::vector<std::array<double, 2>> block_outline(const ItemReader& item) {
   std::vector<std::array<double, 2>> outline;
@@ -406,8 +420,7 @@ plan::Beam parse_beam(const ItemReader& raw_item) {
   beam.boli = parse_accessories(counted_sequence(item, DCM_NumberOfBoli, DCM_ReferencedBolusSequence),
                                 DCM_ReferencedROINumber, DCM_BolusID, DCM_BolusDescription, Need::required);
   beam.blocks = parse_blocks(item);
-  beam.applicators = parse_accessories(item.sequence(DCM_ApplicatorSequence, Need::optional), std::nullopt,
-                                       DCM_ApplicatorID, DCM_ApplicatorType, Need::optional);
+  beam.applicators = parse_applicators(item);
   beam.general_accessories = parse_accessories(item.sequence(DCM_GeneralAccessorySequence, Need::optional),
                                                DCM_GeneralAccessoryNumber, DCM_GeneralAccessoryID,
                                                DCM_GeneralAccessoryType, Need::required);

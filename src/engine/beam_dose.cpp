@@ -72,11 +72,25 @@ StageResult<void> open_field(const plan::Beam& beam, const ResolvedBeam& resolve
   return {};
 }
 
+// Electron beams: stages 2 and 3 as for photons, the applicator's opening, then the electron formula
+// (one static part) and the plan's geometry against itself.
+StageResult<void> run_electron_stages(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
+                                      const DosePoint& point, const ResolvedBeam& resolved,
+                                      const EngineOptions& options, BeamDose& r) {
+  TRY(locate_point(beam, resolved, point, r));              // 2. geometry
+  electron_opening(beam, resolved, r);                      // 4. the applicator's opening
+  TRY(choose_depth(beam, referenced, point, options, r));   // 3. depth (plan or CT)
+  TRY(compute_electron_beam(resolved, point, options, r));  // 7. the electron formula
+  assess_electron_model(beam, referenced, point, r);        // 9. consistency (geometry)
+  return {};
+}
+
 StageResult<void> run_stages(const plan::Plan& plan, const plan::Beam& beam,
                              const plan::ReferencedBeam& referenced, const DosePoint& point,
                              const beamdata::Library& library, const EngineOptions& options, BeamDose& r) {
   ResolvedBeam resolved;
   TRY_ASSIGN(resolved, resolve_beam(plan, beam, referenced, library, r));  // 1. resolve
+  if (resolved.electron != nullptr) return run_electron_stages(beam, referenced, point, resolved, options, r);
   TRY(locate_point(beam, resolved, point, r));                             // 2. geometry
   TRY(open_field(beam, resolved, r));                                      //    (control point 0's opening)
   TRY(choose_depth(beam, referenced, point, options, r));                  // 3. depth (plan or CT)

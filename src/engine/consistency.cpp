@@ -165,4 +165,9 @@ void assess_model(const plan::Beam& beam, const plan::ReferencedBeam& referenced
   r.model.uncertainty = estimate_uncertainty(r);
 }
 
+void assess_electron_model(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
+                           const DosePoint& point, BeamDose& r) {
+  r.model.geometry = geometry_consistency(beam, referenced, point, r);
+}
+
 }  // namespace countersign::engine::stages

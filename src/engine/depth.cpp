@@ -87,6 +87,8 @@ StageResult<void> choose_depth(const plan::Beam& beam, const plan::ReferencedBea
       return problem;
     }
     if (derived(depth.source)) return problem_of(ProblemKind::bolus_without_plan_depth);
+    // Electron beams add the bolus's thickness to the plan's depth below the skin (electron_beam.cpp).
+    if (beam.radiation_type != plan::RadiationType::electron)
     r.approximations.push_back({ApproximationKind::bolus_in_plan_depth});
   }
   if (derived(depth.source)) r.approximations.push_back({ApproximationKind::derived_depth});

@@ -7,7 +7,17 @@
 
 namespace countersign::engine {
 
-std::string_view to_code(Method method) { return method == Method::tmr ? "tmr" : "pdd"; }
+std::string_view to_code(Method method) {
+  switch (method) {
+    case Method::tmr:
+      return "tmr";
+    case Method::pdd:
+      return "pdd";
+    case Method::electron:
+      return "electron";
+  }
+  return "unknown";
+}
 
 std::string_view to_code(FactorBasis basis) {
   switch (basis) {
@@ -48,7 +58,9 @@ double squared(double x) { return x * x; }
 }  // namespace
 
 const Factor* PointDose::first_extrapolated() const {
-  const std::array<const Factor*, 12> all{&factors.calibration_depth,
+  const std::array<const Factor*, 14> all{&factors.calibration_depth,
+                                          &factors.applicator,
+                                          &factors.cutout,
                                           &factors.calibration_sc,
                                           &factors.calibration_sp,
                                           &factors.sc,

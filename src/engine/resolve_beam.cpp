@@ -107,12 +107,29 @@ const plan::PatientSetup* setup_of(const plan::Plan& plan, const plan::Beam& bea
   return nullptr;
 }
 
+// The beam's patient setup and a supported patient position.
+StageResult<ResolvedBeam> resolve_setup(const plan::Plan& plan, const plan::Beam& beam,
+                                        ResolvedBeam& resolved, BeamDose& r) {
+  resolved.setup = setup_of(plan, beam);
+  if (resolved.setup == nullptr) return problem_of(ProblemKind::patient_setup_not_found);
+  r.patient_position = geometry::supported_patient_position(resolved.setup->patient_position.value);
+  if (!r.patient_position) {
+    CalculationProblem problem = problem_of(ProblemKind::patient_position_unsupported);
+    problem.attribute = attribute::patient_position;
+    problem.plan_text = resolved.setup->patient_position.text;
+    return problem;
+  }
+  resolved.position = *r.patient_position;
+  return resolved;
+}
+
 }  // namespace
 
 StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam& beam,
                                        const plan::ReferencedBeam& referenced,
                                        const beamdata::Library& library, BeamDose& r) {
-  if (beam.radiation_type != plan::RadiationType::photon) {
+  const bool electron = beam.radiation_type == plan::RadiationType::electron;
+  if (beam.radiation_type != plan::RadiationType::photon && !electron) {
     CalculationProblem problem = problem_of(ProblemKind::radiation_not_photon);
     problem.attribute = attribute::radiation_type;
     problem.plan_text = beam.radiation_type.text;
@@ -133,6 +150,10 @@ StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam&
   resolved.meterset_mu = *referenced.meterset_mu;
   r.meterset_mu = resolved.meterset_mu;
 
+  if (electron) {
+    TRY(resolve_electron(beam, *cp0.nominal_energy_mv, library, resolved, r));
+    return resolve_setup(plan, beam, resolved, r);
+  }
   const beamdata::BeamMatch match =
       library.match(beam.machine_name, beam.radiation_type.text, *cp0.nominal_energy_mv);
   r.machine = match.machine;
@@ -155,17 +176,7 @@ StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam&
   r.features.tray = resolved.tray != nullptr;
   r.features.blocks = !beam.blocks.empty();
 
-  resolved.setup = setup_of(plan, beam);
-  if (resolved.setup == nullptr) return problem_of(ProblemKind::patient_setup_not_found);
-  r.patient_position = geometry::supported_patient_position(resolved.setup->patient_position.value);
-  if (!r.patient_position) {
-    CalculationProblem problem = problem_of(ProblemKind::patient_position_unsupported);
-    problem.attribute = attribute::patient_position;
-    problem.plan_text = resolved.setup->patient_position.text;
-    return problem;
-  }
-  resolved.position = *r.patient_position;
-  return resolved;
+  return resolve_setup(plan, beam, resolved, r);
 }
 
 }  // namespace countersign::engine::stages

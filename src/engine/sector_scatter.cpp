@@ -2,6 +2,7 @@
 
 #include <countersign/engine/sector_scatter.hpp>
 
+#include <countersign/geometry/polygon.hpp>
 #include <countersign/util/units.hpp>
 
 #include <algorithm>
@@ -173,15 +174,7 @@ double ScatterMaximumRatios::at_radius_cm(double radius_cm) const {
 }
 
 bool BlockShape::contains(double x_mm, double y_mm) const {
-  bool inside = false;  // even-odd rule
-  for (std::size_t i = 0, j = outline_mm.size() - 1; i < outline_mm.size(); j = i++) {
-    const auto& a = outline_mm[i];
-    const auto& b = outline_mm[j];
-    if ((a[1] > y_mm) != (b[1] > y_mm) && x_mm < (b[0] - a[0]) * (y_mm - a[1]) / (b[1] - a[1]) + a[0]) {
-      inside = !inside;
-    }
-  }
-  return inside;
+  return geometry::polygon_contains(outline_mm, x_mm, y_mm);
 }
 
 double transmission_at(const SectorField& field, double x_mm, double y_mm) {

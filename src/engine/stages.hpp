@@ -47,6 +47,14 @@ struct ResolvedBeam {
   geometry::PatientPosition position = geometry::PatientPosition::hfs;
   double meterset_mu = 0.0;
   std::vector<BlockShape> blocks;  // the beam's blocks at the isocentre plane (Block Data)
+  // Electron beams (data is then nullptr): the beam data, the applicator in the plan and in the
+  // library, the cutout (the APERTURE block; none: the open applicator) and the bolus.
+  const beamdata::ElectronBeamData* electron = nullptr;
+  const plan::Applicator* plan_applicator = nullptr;
+  const beamdata::ApplicatorData* applicator = nullptr;
+  const plan::Block* cutout = nullptr;
+  const plan::Accessory* bolus = nullptr;
+  std::optional<double> bolus_thickness_cm;  // from the library's [[bolus]] of the plan's Bolus ID
 };
 
 // The beam's machine and energy in the library, its accessories, its patient setup and meterset.
@@ -55,6 +63,12 @@ struct ResolvedBeam {
 [[nodiscard]] StageResult<ResolvedBeam> resolve_beam(const plan::Plan& plan, const plan::Beam& beam,
                                                      const plan::ReferencedBeam& referenced,
                                                      const beamdata::Library& library, BeamDose& r);
+
+// Electron beams (electron_resolve.cpp): the electron beam data by machine and energy, the single
+// applicator, the cutout, the bolus and its thickness (fills the electron fields of `resolved`).
+[[nodiscard]] StageResult<void> resolve_electron(const plan::Beam& beam, double energy_mev,
+                                                 const beamdata::Library& library, ResolvedBeam& resolved,
+                                                 BeamDose& r);
 
 // ---- 2. geometry ---------------------------------------------------------------------------------
 // Angles, isocentre and SAD of control point 0, and the dose point seen from the source (sets
@@ -191,6 +205,14 @@ struct PartGeometry {
                                         const PartGeometry& part, const ScatterInputs& scatter,
                                         const PrimaryPath& path);
 
+// Electron beams (electron_beam.cpp), stage 4: the applicator's open square at the isocentre plane
+// as the opening (what a drawing and the CT's missing-tissue rule see) and control point 0's SSD.
+void electron_opening(const plan::Beam& beam, const ResolvedBeam& resolved, BeamDose& r);
+// Electron beams (electron_beam.cpp): after stages 1-3, the TG-71 electron formula at the point
+// (cutout size, bolus, effective-SSD inverse square, R80, with a CT the obliquity), one part, into r.
+[[nodiscard]] StageResult<void> compute_electron_beam(const ResolvedBeam& resolved, const DosePoint& point,
+                                                      const EngineOptions& options, BeamDose& r);
+
 // ---- 8. segments ---------------------------------------------------------------------------------
 // One part of the meterset: a plan control point, or one interpolated in the middle of an arc step.
 struct PartPlan {
@@ -224,5 +246,9 @@ struct MetersetSplit {
 // the estimated uncertainty, into r.model. Never stops the calculation.
 void assess_model(const plan::Beam& beam, const plan::ReferencedBeam& referenced, const DosePoint& point,
                   BeamDose& r);
+// Electron beams: the plan's distances against each other only (no other formalism; the
+// uncertainty estimate covers photon tables).
+void assess_electron_model(const plan::Beam& beam, const plan::ReferencedBeam& referenced,
+                           const DosePoint& point, BeamDose& r);
 
 }  // namespace countersign::engine::stages

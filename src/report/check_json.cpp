@@ -31,7 +31,8 @@ json factor_provenance(const engine::Factor& f) {
 json factors_json(const engine::PointDose& d) {
   const engine::DoseFactors& f = d.factors;
   const bool tmr = d.method == engine::Method::tmr;
-  return json{{"output_cgy_per_mu", f.output_cgy_per_mu},
+  return json{
+      {"output_cgy_per_mu", f.output_cgy_per_mu},
               {"calibration_depth", factor_value(f.calibration_depth)},
               {"calibration_sc", factor_value(f.calibration_sc)},
               {"calibration_sp", factor_value(f.calibration_sp)},
@@ -46,6 +47,8 @@ json factors_json(const engine::PointDose& d) {
               {"tray", factor_value(f.tray)},
               {"transmission", factor_value(f.transmission)},
               {"inverse_square", factor_value(f.inverse_square)},
+      {"applicator", d.method == engine::Method::electron ? factor_value(f.applicator) : json(nullptr)},
+      {"cutout", d.method == engine::Method::electron ? factor_value(f.cutout) : json(nullptr)},
               {"dose_per_mu_cgy", d.dose_per_mu_cgy}};
 }
 
@@ -65,6 +68,10 @@ json provenance_json(const engine::PointDose& d) {
          {"inverse_square", factor_provenance(f.inverse_square)}};
   if (tmr) {
     j["tmr"] = factor_provenance(f.tmr);
+  } else if (d.method == engine::Method::electron) {
+    j["pdd"] = factor_provenance(f.pdd);
+    j["applicator"] = factor_provenance(f.applicator);
+    j["cutout"] = factor_provenance(f.cutout);
   } else {
     j["pdd"] = factor_provenance(f.pdd);
     j["mayneord_f"] = factor_provenance(f.mayneord_f);
@@ -119,10 +126,42 @@ json segment_json(const engine::Segment& s) {
   return j;
 }
 
+// Electron beams: the applicator, the cutout's size and method, the bolus, depths and distances.
+json electron_json(const engine::ElectronFacts& e) {
+  const engine::CutoutSize& cut = e.cutout;
+  const bool rule = cut.method == engine::CutoutMethod::square_root_rule;
+  return json{{"applicator_id", e.applicator_id},
+              {"applicator_type", e.applicator_type.empty() ? json(nullptr) : json(e.applicator_type)},
+              {"applicator_field_cm", e.applicator_field_cm},
+              {"effective_ssd_cm", e.effective_ssd_cm},
+              {"standard_ssd_cm", e.standard_ssd_cm},
+              {"cutout_method", std::string(engine::to_code(cut.method))},
+              {"cutout_equivalent_square_cm", cut.equivalent_square_cm},
+              {"cutout_area_cm2", cut.area_cm2},
+              {"cutout_perimeter_cm", cut.perimeter_cm},
+              {"cutout_side_x_cm", rule ? json(cut.side_x_cm) : json(nullptr)},
+              {"cutout_side_y_cm", rule ? json(cut.side_y_cm) : json(nullptr)},
+              {"smallest_table_cutout_cm", e.smallest_table_cutout_cm},
+              {"bolus_id", e.bolus_id.empty() ? json(nullptr) : json(e.bolus_id)},
+              {"bolus_thickness_cm", optional_json(e.bolus_thickness_cm)},
+              {"skin_depth_cm", e.skin_depth_cm},
+              {"depth_cm", e.depth_cm},
+              {"entrance_ssd_cm", e.entrance_ssd_cm},
+              {"air_gap_cm", e.air_gap_cm},
+              {"r80_cm", optional_json(e.r80_cm)},
+              {"obliquity_deg", optional_json(e.obliquity_deg)}};
+}
+
 void add_calculation(json& j, const engine::BeamDose& c, const check::CalculationWords& words) {
   j["machine"] = c.machine != nullptr ? json(c.machine->name) : json(nullptr);
+  if (c.electron_data != nullptr) {
+    j["beam_data_id"] = c.electron_data->id;
+    j["energy_mv"] = c.electron_data->energy_mev;  // MeV for electrons, as the manifest's energy_mv
+  } else {
   j["beam_data_id"] = c.beam_data != nullptr ? json(c.beam_data->id) : json(nullptr);
   j["energy_mv"] = c.beam_data != nullptr ? json(c.beam_data->energy_mv) : json(nullptr);
+  }
+  j["electron"] = c.electron ? electron_json(*c.electron) : json(nullptr);
   j["dose_point"] = json{{"source", std::string(engine::to_code(c.dose_point.source))},
                          {"dose_reference_number", optional_json(c.dose_point.dose_reference_number)},
                          {"x_mm", c.dose_point.point_mm[0]},

@@ -63,8 +63,14 @@ const check::BeamCheck* find_beam(const check::PlanCheck& check, int beam_number
 
 BeamExplanation explain_beam(const check::BeamCheck& beam, const engine::SensitivityLimits& limits) {
   BeamExplanation e;
-  if (!beam.calculation || !beam.calculation->dose_computed || beam.calculation->beam_data == nullptr) {
+  if (!beam.calculation || !beam.calculation->dose_computed) {
     e.sensitivity_note = "no dose was computed for this beam";
+    return e;
+  }
+  if (beam.calculation->beam_data == nullptr) {
+    e.sensitivity_note =
+        "the search for what would reconcile the doses covers photon beams; the factors "
+        "above are this beam's";
     return e;
   }
   const engine::BeamDose& c = *beam.calculation;

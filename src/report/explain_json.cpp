@@ -135,6 +135,18 @@ json beam_data_json(const check::PlanCheck& check, const engine::BeamDose& c) {
                         {"ssd_cm", d.calibration.ssd_cm},
                         {"depth_cm", d.calibration.depth_cm}};
   }
+  if (c.electron_data != nullptr) {
+    const beamdata::ElectronBeamData& e = *c.electron_data;
+    b["beam_id"] = e.id;
+    b["radiation"] = "ELECTRON";
+    b["energy_mv"] = e.energy_mev;  // MeV, as the manifest's energy_mv
+    b["dmax_cm"] = e.dmax_cm;
+    b["pdd_ssd_cm"] = e.pdd_ssd_cm;
+    b["calibration"] = {{"output_cgy_per_mu", e.calibration.output_cgy_per_mu},
+                        {"applicator", e.calibration.applicator},
+                        {"ssd_cm", e.calibration.ssd_cm},
+                        {"depth_cm", e.calibration.depth_cm}};
+  }
   return b;
 }
 

@@ -63,9 +63,12 @@ std::string model_checks_text(const check::PlanCheck& check, const engine::BeamD
   std::string out = "\nModel checks\n";
   const check::TolerancePolicy& policy = check.options.policy;
   const engine::ReferenceConditions& ref = c.dose.reference;
+  if (c.method != engine::Method::electron)
   out += fmt::format(
-      "  calibration geometry {} ({}): reference field {:.2f} cm at the calibration point ({:g} cm from the "
-      "source), {:.2f} cm at the surface, {:.2f} cm collimator setting; the output is divided by the factors "
+        "  calibration geometry {} ({}): reference field {:.2f} cm at the calibration point ({:g} cm from "
+        "the "
+        "source), {:.2f} cm at the surface, {:.2f} cm collimator setting; the output is divided by the "
+        "factors "
       "there\n",
       beamdata::to_string(ref.geometry),
       ref.geometry_defaulted ? "not stated in the library: FORMAT.md's default rule"
@@ -79,6 +82,8 @@ std::string model_checks_text(const check::PlanCheck& check, const engine::BeamD
         engine::to_code(c.method), f.used_dose_per_mu_cgy, engine::to_code(f.other), f.other_dose_per_mu_cgy,
         f.difference_percent, policy.formalism_max_difference_percent,
         f.other_extrapolated ? "; the other form extrapolated its table" : "");
+  } else if (c.method == engine::Method::electron) {
+    out += "  formalisms: not compared (electron beams have one form)\n";
   } else {
     out += "  formalisms: not compared (modulated beam: each part uses the chosen form)\n";
   }
@@ -172,6 +177,32 @@ std::string explanation_text(const check::PlanCheck& check, const check::BeamChe
     out += fmt::format("  calibration {:.4f} cGy/MU, {:g} cm field, SSD {:g} cm, depth {:g} cm\n",
                        d.calibration.output_cgy_per_mu, d.calibration.field_cm, d.calibration.ssd_cm,
                        d.calibration.depth_cm);
+  }
+
+  if (c.electron_data != nullptr) {
+    const auto& d = *c.electron_data;
+    out += fmt::format("  electron beam {} {:g} MeV, dmax {:g} cm, tables at SSD {:g} cm\n", d.id,
+                       d.energy_mev, d.dmax_cm, d.pdd_ssd_cm);
+    out += fmt::format("  calibration {:.4f} cGy/MU, applicator {}, SSD {:g} cm, depth {:g} cm\n",
+                       d.calibration.output_cgy_per_mu, d.calibration.applicator, d.calibration.ssd_cm,
+                       d.calibration.depth_cm);
+  }
+  if (c.electron) {
+    const engine::ElectronFacts& ef = *c.electron;
+    out += fmt::format(
+        "  applicator {} ({}), {:g} cm, effective SSD {:g} cm; cutout {} {:.2f} cm; depth {:.2f} cm{}; R80 "
+        "{}; "
+        "SSD of the entrance surface {:.1f} cm (air gap {:+.1f} cm); obliquity {}\n",
+        ef.applicator_id, ef.applicator_type.empty() ? "type absent" : ef.applicator_type,
+        ef.applicator_field_cm, ef.effective_ssd_cm, engine::to_code(ef.cutout.method),
+        ef.cutout.equivalent_square_cm, ef.depth_cm,
+        ef.bolus_thickness_cm
+            ? fmt::format(" (bolus {} {:.2f} cm included)", ef.bolus_id, *ef.bolus_thickness_cm)
+            : std::string{},
+        ef.r80_cm ? fmt::format("{:.2f} cm", *ef.r80_cm) : std::string{"not reached in the table"},
+        ef.entrance_ssd_cm, ef.air_gap_cm,
+        ef.obliquity_deg ? fmt::format("{:.1f} degrees (CT)", *ef.obliquity_deg)
+                         : std::string{"unknown (no CT)"});
   }
 
   if (c.dose_computed) out += model_checks_text(check, c);

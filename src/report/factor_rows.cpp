@@ -4,8 +4,25 @@
 
 namespace countersign::report {
 
+namespace {
+
+// The electron form (engine/electron_dose.hpp): the cutout and the OAR are always shown (a value of
+// 1 for an open applicator or on the axis is itself a statement).
+std::vector<FactorRow> electron_rows(const engine::DoseFactors& f) {
+  return {{"calibration_depth", "Calibration-depth term PDD_ref(d_cal)/100", "divides", &f.calibration_depth},
+          {"applicator", "Applicator (cone) factor", "multiplies", &f.applicator},
+          {"cutout", "Cutout factor CF(cutout)", "multiplies", &f.cutout},
+          {"pdd", "Percent depth dose PDD(d, cutout)/100 at the tables' SSD", "multiplies", &f.pdd},
+          {"oar", "Off-axis ratio (central axis)", "multiplies", &f.oar},
+          {"inverse_square", "Inverse square ((SSD_eff + d_m)/(SSD_eff + g + d_m))^2", "multiplies",
+           &f.inverse_square}};
+}
+
+}  // namespace
+
 std::vector<FactorRow> factor_rows(const engine::PointDose& dose, FactorSelection selection) {
   const engine::DoseFactors& f = dose.factors;
+  if (dose.method == engine::Method::electron) return electron_rows(f);
   const bool tmr = dose.method == engine::Method::tmr;
   std::vector<FactorRow> rows;
   const auto add = [&](const char* key, const char* name, const char* role, const engine::Factor& factor) {

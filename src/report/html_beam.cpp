@@ -27,9 +27,26 @@ std::string fact(std::string_view label, const std::string& value) {
 
 std::string setup_facts(const engine::BeamDose& c, const check::CalculationWords& words) {
   std::string out = "<table>\n";
+  if (c.machine != nullptr && c.electron_data != nullptr) {
+    out += fact("Machine / beam", fmt::format("{} / {} ({:g} MeV ELECTRON)", c.machine->name,
+                                              c.electron_data->id, c.electron_data->energy_mev));
+  }
   if (c.machine != nullptr && c.beam_data != nullptr) {
     out += fact("Machine / beam", fmt::format("{} / {} ({:g} MV {})", c.machine->name, c.beam_data->id,
                                               c.beam_data->energy_mv, c.beam_data->radiation));
+  }
+  if (c.electron) {
+    const engine::ElectronFacts& e = *c.electron;
+    out += fact("Applicator / cutout",
+                fmt::format("{} ({:g} cm, effective SSD {:g} cm) / {} {:.2f} cm", e.applicator_id,
+                            e.applicator_field_cm, e.effective_ssd_cm, engine::to_code(e.cutout.method),
+                            e.cutout.equivalent_square_cm));
+    out += fact("Depth / R80 / air gap",
+                fmt::format("{:.2f} cm{} / {} / {:+.1f} cm", e.depth_cm,
+                            e.bolus_thickness_cm
+                                ? fmt::format(" (bolus {} {:.2f} cm)", e.bolus_id, *e.bolus_thickness_cm)
+                                : std::string{},
+                            e.r80_cm ? fmt::format("{:.2f} cm", *e.r80_cm) : std::string{"-"}, e.air_gap_cm));
   }
   out += fact("Gantry / coll. / couch",
               fmt::format("{:.1f}\u00B0 / {:.1f}\u00B0 / {:.1f}\u00B0", c.angles.gantry_deg,
@@ -96,6 +113,9 @@ std::string factor_table(const engine::BeamDose& c) {
       d.factors.output_cgy_per_mu,
       cal != nullptr ? fmt::format("{:g} \u00D7 {:g} cm field, SSD {:g} cm, depth {:g} cm", cal->field_cm,
                                    cal->field_cm, cal->ssd_cm, cal->depth_cm)
+      : c.electron_data != nullptr
+          ? fmt::format("applicator {}, SSD {:g} cm, depth {:g} cm", c.electron_data->calibration.applicator,
+                        c.electron_data->calibration.ssd_cm, c.electron_data->calibration.depth_cm)
                      : std::string{});
   for (const FactorRow& row : factor_rows(d)) {
     const engine::Factor& f = *row.factor;
@@ -264,8 +284,10 @@ std::string beam_section(const check::PlanCheck& check, const check::BeamCheck& 
     if (c.features.modulated) {
       out += "<h3>Parts of the beam</h3>\n" + parts_table(c);
     } else {
-      out += fmt::format("<h3>Factors ({} form)</h3>\n",
-                         c.method == engine::Method::tmr ? "isocentric TMR" : "fixed-SSD PDD");
+      const char* form = c.method == engine::Method::tmr   ? "isocentric TMR"
+                         : c.method == engine::Method::pdd ? "fixed-SSD PDD"
+                                                           : "TG-71 electron";
+      out += fmt::format("<h3>Factors ({} form)</h3>\n", form);
       out += factor_table(c);
     }
     out += scatter_table(c);

@@ -42,6 +42,18 @@ json accessories(const std::vector<plan::Accessory>& items) {
   return list;
 }
 
+// Applicators: the keys of the other accessories (no number in DICOM), then the description.
+json applicators(const std::vector<plan::Applicator>& items) {
+  json list = json::array();
+  for (const auto& item : items) {
+    list.push_back({{"number", nullptr},
+                    {"id", optional_text(item.id)},
+                    {"type", optional_text(item.type.text)},
+                    {"description", optional_text(item.description)}});
+  }
+  return list;
+}
+
 // Blocks: the first three keys as before (id = Block Tray ID), then the block's own attributes.
 json blocks(const std::vector<plan::Block>& items) {
   json list = json::array();
@@ -200,7 +212,7 @@ json beam_json(const plan::Plan& plan, const plan::Beam& beam) {
           {"wedges", wedges},
           {"blocks", blocks(beam.blocks)},
           {"block_tray_ids", tray_ids},
-          {"applicators", accessories(beam.applicators)},
+          {"applicators", applicators(beam.applicators)},
           {"compensators", accessories(beam.compensators)},
           {"boli", accessories(beam.boli)},
           {"general_accessories", accessories(beam.general_accessories)},

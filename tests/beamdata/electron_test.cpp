@@ -128,5 +128,39 @@ TEST(ElectronBeams, AMissingCutoutTableIsAbsentNotAssumed) {
   EXPECT_FALSE(library->machines.front().electron_beams.front().applicator("A15")->cutout);
 }
 
+// The optional keys of the electron calculation (FORMAT.md "Electron beams"): an electron beam's
+// ssd_range_cm and the machine's [[bolus]] sheets; absent they stay absent, a repeated bolus id is
+// refused (the plan's Bolus ID would be ambiguous).
+TEST(ElectronBeams, SsdRangeAndBolusSheetsAreReadWhenStated) {
+  const TempDir dir;
+  const fs::path machine = copy_fixture(dir);
+  {
+    const auto plain = load_library(dir.path());
+    ASSERT_TRUE(plain) << plain.error().message();
+    EXPECT_FALSE(plain->machines.front().electron_beams.front().ssd_range_cm);
+    EXPECT_TRUE(plain->machines.front().boli.empty());
+  }
+  testing::replace_in_file(machine / "machine.toml", "pdd_ssd_cm = 100.0\n",
+                           "pdd_ssd_cm = 100.0\nssd_range_cm = [95.0, 115.0]\n");
+  testing::replace_in_file(machine / "machine.toml", "sad_cm = 100.0\n",
+                           "sad_cm = 100.0\n\n[[bolus]]\nid = \"SHEET-5\"\nthickness_cm = 0.5\n");
+  const auto library = load_library(dir.path());
+  ASSERT_TRUE(library) << library.error().message();
+  const Machine& m = library->machines.front();
+  ASSERT_TRUE(m.electron_beams.front().ssd_range_cm);
+  EXPECT_DOUBLE_EQ(m.electron_beams.front().ssd_range_cm->min_cm, 95.0);
+  EXPECT_DOUBLE_EQ(m.electron_beams.front().ssd_range_cm->max_cm, 115.0);
+  ASSERT_NE(m.bolus("SHEET-5"), nullptr);
+  EXPECT_DOUBLE_EQ(m.bolus("SHEET-5")->thickness_cm, 0.5);
+  EXPECT_EQ(m.bolus("SHEET-9"), nullptr);
+
+  testing::replace_in_file(machine / "machine.toml", "thickness_cm = 0.5\n",
+                           "thickness_cm = 0.5\n\n[[bolus]]\nid = \"SHEET-5\"\nthickness_cm = 1.0\n");
+  const auto report = validate_library(dir.path());
+  EXPECT_NE(problems_of(report).find("bolus id 'SHEET-5' appears twice"), std::string::npos)
+      << problems_of(report);
+  EXPECT_FALSE(load_library(dir.path()));
+}
+
 }  // namespace
 }  // namespace countersign::beamdata

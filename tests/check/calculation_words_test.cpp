@@ -95,9 +95,9 @@ TEST(CalculationWords, SentencesQuoteThePlansOwnText) {
   EXPECT_EQ(finding_for(position).sentence,
             "Patient Position (0018,5100) \"HFDL\" is not supported (HFS, HFP, FFS, FFP are)");
   CalculationProblem radiation = of(ProblemKind::radiation_not_photon);
-  radiation.plan_text = "ELECTRON";
+  radiation.plan_text = "PROTON";
   EXPECT_EQ(finding_for(radiation).sentence,
-            "Radiation Type (300A,00C6) is \"ELECTRON\"; only PHOTON beams are checked");
+            "Radiation Type (300A,00C6) is \"PROTON\"; only PHOTON and ELECTRON beams are checked");
 }
 
 // A device's positions missing is missing plan data; a device not supported is unsupported geometry.

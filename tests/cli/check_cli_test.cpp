@@ -49,10 +49,39 @@ TEST(CheckCli, DemoBoxFlagsTheWrongBeam) {
 
 TEST(CheckCli, EveryOtherDemoPlanPasses) {
   for (const auto& entry : fs::directory_iterator(test::source_dir() / "testdata" / "plans")) {
-    if (entry.path().extension() != ".dcm" || entry.path().filename() == "fern_box_4field.dcm") continue;
+    if (entry.path().extension() != ".dcm" || entry.path().filename() == "fern_box_4field.dcm" ||
+        entry.path().filename() == "fern_electron_mu_error.dcm")
+      continue;
     const auto out = check("--json " + test::quote(entry.path().string()));
     EXPECT_EQ(out.exit_code, 0) << entry.path() << "\n" << out.out.substr(0, 2000) << out.err;
   }
+}
+
+// The electron demo plans (issue 19): the deliberate +8 % MU error is flagged; the chest wall at SSD
+// 105 cm with an elongated cutout is checked with the electron form and shows its factors.
+TEST(CheckCli, ElectronDemoPlans) {
+  const auto flagged = check("--json " + plan_path("fern_electron_mu_error.dcm"));
+  EXPECT_EQ(flagged.exit_code, 1) << flagged.err;
+  const auto wrong = json_of(flagged).at("plans").at(0).at("beams").at(0);
+  EXPECT_EQ(wrong.at("status"), "outside_tolerance");
+  EXPECT_EQ(wrong.at("reason"), "deviation_exceeds_tolerance");
+  EXPECT_NEAR(wrong.at("deviation_percent").get<double>(), 8.0, 1.5);
+
+  const auto out = check("--json " + plan_path("fern_electron_chestwall.dcm"));
+  EXPECT_EQ(out.exit_code, 0) << out.out.substr(0, 2000) << out.err;
+  const auto beam = json_of(out).at("plans").at(0).at("beams").at(0);
+  EXPECT_EQ(beam.at("method"), "electron");
+  EXPECT_EQ(beam.at("electron").at("applicator_id"), "A15");
+  EXPECT_EQ(beam.at("electron").at("cutout_method"), "square_root_rule");
+  EXPECT_NEAR(beam.at("electron").at("air_gap_cm").get<double>(), 5.0, 1e-6);
+  EXPECT_LT(beam.at("factors").at("inverse_square").get<double>(), 1.0);
+  EXPECT_TRUE(beam.at("provenance").at("cutout").at("lookup").contains("axes"));
+
+  const auto scar = check("--json " + plan_path("fern_electron_scar.dcm"));
+  EXPECT_EQ(scar.exit_code, 0) << scar.out.substr(0, 2000) << scar.err;
+  const auto bolus = json_of(scar).at("plans").at(0).at("beams").at(0).at("electron");
+  EXPECT_EQ(bolus.at("bolus_id"), "FERN-BOLUS-5MM");
+  EXPECT_NEAR(bolus.at("depth_cm").get<double>(), 1.0, 1e-6);  // 0.5 cm below the skin + 0.5 cm bolus
 }
 
 TEST(CheckCli, TextTableAndCaution) {
@@ -71,10 +100,9 @@ TEST(CheckCli, JsonKeys) {
   for (const char* key : {"plans", "errors", "exit_code", "caution"}) EXPECT_TRUE(j.contains(key)) << key;
   ASSERT_EQ(j.at("plans").size(), 2u);
   for (const auto& plan : j.at("plans")) {
-    for (const char* key :
-         {"source_file", "sop_instance_uid", "patient_id", "plan_label", "status", "reason", "explanation",
-          "beams", "dose_references", "beamdata_sha256", "tolerance_policy", "heterogeneity_choice",
-          "patient_study"}) {
+    for (const char* key : {"source_file", "sop_instance_uid", "patient_id", "plan_label", "status", "reason",
+                            "explanation", "beams", "dose_references", "beamdata_sha256", "tolerance_policy",
+                            "heterogeneity_choice", "patient_study"}) {
       EXPECT_TRUE(plan.contains(key)) << key;
     }
     EXPECT_EQ(plan.at("beamdata_sha256").get<std::string>().size(), 64u);

@@ -62,7 +62,7 @@ TEST(ReadPlanDemo, ManifestListsEveryDemoPlanAndEnoughBeams) {
   const auto rows = expected_beams();
   std::set<std::string> files;
   for (const auto& row : rows) files.insert(row.at("file"));
-  EXPECT_EQ(files.size(), 11u);
+  EXPECT_EQ(files.size(), 14u);  // 11 photon plans, 3 electron plans (fern_electron_*)
   EXPECT_GE(rows.size(), 20u);
 }
 
@@ -90,7 +90,14 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
     ASSERT_NE(beam, nullptr);
     EXPECT_EQ(beam->name, row.at("beam_name"));
     EXPECT_EQ(beam->machine_name, "FERN-LINAC-1");
-    EXPECT_EQ(beam->radiation_type, plan::RadiationType::photon);
+    // The electron demo plans (tools/make_demo_plans/electron_plans.cpp): applicator, cutout, bolus.
+    const bool electron = row.at("file").rfind("fern_electron_", 0) == 0;
+    EXPECT_EQ(beam->radiation_type, electron ? plan::RadiationType::electron : plan::RadiationType::photon);
+    if (electron) {
+      ASSERT_EQ(beam->applicators.size(), 1u);
+      EXPECT_EQ(beam->applicators[0].type, plan::ApplicatorType::electron_square);
+      for (const plan::Block& block : beam->blocks) EXPECT_EQ(block.type, plan::BlockType::aperture);
+    }
     EXPECT_EQ(beam->delivery_type.text, row.at("delivery_type"));
     ASSERT_TRUE(beam->sad_mm.has_value());
     EXPECT_DOUBLE_EQ(*beam->sad_mm, 1000.0);
@@ -124,7 +131,7 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
       EXPECT_EQ(cp0.wedge_positions[0].position.text, "IN");
     }
     if (row.at("tray_id") == "-") {
-      EXPECT_TRUE(beam->blocks.empty());
+      if (!electron) EXPECT_TRUE(beam->blocks.empty());  // an electron cutout has no tray
     } else {
       ASSERT_EQ(beam->blocks.size(), 1u);
       EXPECT_EQ(beam->blocks[0].tray_id, row.at("tray_id"));

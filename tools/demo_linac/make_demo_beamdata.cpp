@@ -2,6 +2,7 @@
 // invented machine model of model.hpp. Usage: make_demo_beamdata OUTPUT_LIBRARY_FOLDER
 // The output is INVENTED demo data for the fictional Fernhollow Radiotherapy Unit, not for clinical use.
 
+#include <demo_linac/electron_beamdata.hpp>
 #include <demo_linac/model.hpp>
 
 #include <countersign/beamdata/csv.hpp>
@@ -215,6 +216,7 @@ int main(int argc, char** argv) {
   bool ok = true;
   for (const double energy_mv : {6.0, 10.0})
     ok &= write_beam_tables(machine_dir, demo_linac::beam_model(energy_mv));
+  ok &= demo_linac::write_electron_tables(machine_dir, write);
   ok &= write(fs::path{argv[1]} / "ct" / "default.csv", [&](std::ostream& out) {
     std::vector<double> hu, density;
     for (const auto& [h, rho] : ct_density) {
@@ -235,6 +237,7 @@ int main(int argc, char** argv) {
         << "machine = \"" << demo_linac::machine_name << "\"\n"
         << "sad_cm = " << std::fixed << std::setprecision(1) << demo_linac::sad_cm << "\n";
     for (const double energy_mv : {6.0, 10.0}) write_beam_manifest(out, demo_linac::beam_model(energy_mv));
+    demo_linac::write_electron_manifest(out);
   });
   if (!ok) return 3;
   std::cout << "wrote " << machine_dir.string() << "\n";

@@ -4,6 +4,7 @@
 //
 //   make_demo_plans <testdata-dir>
 
+#include "electron_plans.hpp"
 #include "malformed.hpp"
 #include "plan_spec.hpp"
 #include "write_plan.hpp"
@@ -78,6 +79,7 @@ int main(int argc, char** argv) {
     const std::filesystem::path root = argv[1];
     const auto plans = make_demo_plans::demo_plans();
     write_plans(plans, root / "plans");
+    make_demo_plans::write_electron_plans(root / "plans");
     make_demo_plans::write_malformed_corpus(plans, root / "malformed");
     std::cout << "wrote " << plans.size() << " demo plans and the malformed corpus under " << root.string()
               << "\n";

@@ -2,8 +2,9 @@
 
 // Electron beams of a beam-data library (beamdata/FORMAT.md "Electron beams"): applicators with
 // their factors, effective SSDs, depth-dose tables per cutout size and cutout factors. Loading and
-// validation only; the dose calculation for electrons belongs to the engine.
+// validation only; the dose calculation for electrons belongs to the engine (engine/electron_dose.hpp).
 
+#include <countersign/beamdata/ssd_range.hpp>
 #include <countersign/beamdata/table.hpp>
 
 #include <optional>
@@ -37,6 +38,7 @@ struct ElectronBeamData {
   double pdd_ssd_cm = 0.0;  // the standard SSD of the tables
   ElectronCalibration calibration;
   std::vector<ApplicatorData> applicators;
+  std::optional<SsdRange> ssd_range_cm{};  // optional key: SSDs at which the data is trusted
 
   [[nodiscard]] const ApplicatorData* applicator(const std::string& id) const;
 };

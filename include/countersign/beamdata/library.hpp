@@ -67,13 +67,6 @@ enum class HeadScatterField {
 };
 [[nodiscard]] std::string_view to_string(HeadScatterField field);  // "jaws" or "jaws_and_mlc"
 
-// SSDs at which a beam's data is trusted (inclusive); outside it a beam is not checked.
-struct SsdRange {
-  double min_cm = 0.0;
-  double max_cm = 0.0;
-  [[nodiscard]] bool contains(double ssd_cm) const { return ssd_cm >= min_cm && ssd_cm <= max_cm; }
-};
-
 struct BeamData {
   std::string id;          // free text, shown in reports
   std::string radiation;   // "PHOTON" (compared with Radiation Type)
@@ -103,6 +96,13 @@ struct BeamData {
   }
 };
 
+// A bolus the clinic uses (FORMAT.md "Additions", [[bolus]]): its thickness, found by the plan's
+// Bolus ID (300A,00DC), since an RT Plan carries no bolus thickness.
+struct BolusData {
+  std::string id;
+  double thickness_cm = 0.0;  // water-equivalent thickness
+};
+
 struct Machine {
   std::string name;                    // compared with Treatment Machine Name (300A,00B2), exact
   std::vector<std::string> aliases{};  // other exact, case-sensitive names of the same machine
@@ -110,6 +110,9 @@ struct Machine {
   std::filesystem::path manifest;  // path of machine.toml
   std::vector<BeamData> beams;     // photon beams
   std::vector<ElectronBeamData> electron_beams{};
+  std::vector<BolusData> boli{};  // optional [[bolus]] entries
+
+  [[nodiscard]] const BolusData* bolus(const std::string& id) const;
 
   // True when `treatment_machine_name` is the name or one of the aliases (exact, case-sensitive).
   [[nodiscard]] bool answers_to(std::string_view treatment_machine_name) const;
@@ -126,6 +129,13 @@ struct BeamMatch {
   std::string explanation;              // one sentence for the report on failure
 };
 
+struct ElectronMatch {
+  const Machine* machine = nullptr;        // set when the machine was found
+  const ElectronBeamData* beam = nullptr;  // set on success
+  std::optional<MatchFailure> failure;     // set on failure
+  std::string explanation;                 // one sentence for the report on failure
+};
+
 struct Library {
   std::filesystem::path root;
   std::vector<Machine> machines;
@@ -139,6 +149,8 @@ struct Library {
   // 0.01 MV). Photon beams only; electron beams are found with Machine::electron_beam.
   [[nodiscard]] BeamMatch match(const std::string& machine_name, const std::string& radiation_type,
                                 double energy_mv) const;
+  // Match an electron beam by machine name or alias (exact) and nominal energy (within 0.01 MeV).
+  [[nodiscard]] ElectronMatch match_electron(const std::string& machine_name, double energy_mev) const;
   // "FERN-LINAC-1 (also 'FERN1'), TEST-LINAC": the machines, for "unknown machine" sentences.
   [[nodiscard]] std::string machine_listing() const;
 };

@@ -49,6 +49,11 @@ enum class Reason {
   patient_geometry_unusable,  // the ray through the CT: point outside the body or CT, ray leaves the CT, ...
   missing_tissue,             // too much of the field at the point's depth lies outside the body
   plan_geometry_differs_from_ct,  // outside tolerance: the plan's SSD or depth disagrees with the CT
+  // Electron beams (issue 19).
+  point_beyond_eighty_percent_depth,         // not checked: the point lies deeper than the depth of 80 % dose
+  cutout_below_table,       // not checked: the cutout is smaller than the tables' smallest field
+  oblique_incidence,        // not checked: the beam meets the surface beyond the policy's angle
+  bolus_thickness_unknown,  // not checked: the library has no thickness for the plan's Bolus ID
   // Plan level.
   nothing_to_check,  // no beam of the plan could be judged (all skipped)
 };

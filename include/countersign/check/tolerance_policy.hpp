@@ -90,6 +90,12 @@ struct TolerancePolicy {
   // depth is used (stated "from the plan, not independent").
   double patient_plan_equivalent_depth_switch_percent = 5.0;
 
+  // ---- [electron]: electron beams (issue 19) ---------------------------------------------------------
+  // With a CT: the beam meeting the body surface at more than this angle from its normal is not
+  // checked (oblique_incidence): the depth dose and output change with obliquity and the tables are
+  // for normal incidence (common practice, no source for the value).
+  double electron_max_obliquity_deg = 20.0;
+
   [[nodiscard]] double tolerance_percent(FieldCategory category, Medium medium) const;
 };
 

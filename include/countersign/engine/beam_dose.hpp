@@ -9,6 +9,7 @@
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/approximation.hpp>
 #include <countersign/engine/dose_point.hpp>
+#include <countersign/engine/electron_dose.hpp>
 #include <countersign/engine/model_facts.hpp>
 #include <countersign/engine/patient_geometry.hpp>
 #include <countersign/engine/point_dose.hpp>
@@ -145,7 +146,9 @@ struct BeamDose {
   bool dose_computed = false;
 
   const beamdata::Machine* machine = nullptr;  // points into the library passed in
-  const beamdata::BeamData* beam_data = nullptr;
+  const beamdata::BeamData* beam_data = nullptr;              // photon beams
+  const beamdata::ElectronBeamData* electron_data = nullptr;  // electron beams (beam_data is then nullptr)
+  std::optional<ElectronFacts> electron;  // electron beams: applicator, cutout, bolus, R80
   DosePoint dose_point;
   std::optional<geometry::PatientPosition> patient_position;
   geometry::BeamAngles angles;  // control point 0

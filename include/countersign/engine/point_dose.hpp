@@ -23,7 +23,8 @@
 
 namespace countersign::engine {
 
-enum class Method { tmr, pdd };
+// tmr and pdd: the photon forms below; electron: engine/electron_dose.hpp.
+enum class Method { tmr, pdd, electron };
 [[nodiscard]] std::string_view to_code(Method method);
 
 // A point's place against a wedge's gradient at the isocentre plane (cm): along the gradient,
@@ -108,6 +109,9 @@ struct DoseFactors {
   // Shaped fields: sector-integrated Sp·TMR·OAR / the equivalent square's (set by the engine's
   // scatter stage after this formula; 1 and not_applicable otherwise).
   Factor sector_scatter;
+  // Electron form (engine/electron_dose.hpp): applicator (cone) factor and cutout factor.
+  Factor applicator;
+  Factor cutout;
 };
 
 struct PointDose {

@@ -15,7 +15,7 @@ namespace countersign::engine {
 
 enum class ProblemKind {
   // The beam and its data (stage: resolve).
-  radiation_not_photon,          // attribute, plan_text: Radiation Type other than PHOTON
+  radiation_not_photon,          // attribute, plan_text: Radiation Type neither PHOTON nor ELECTRON
   dosimeter_unit_not_mu,         // attribute, plan_text: Primary Dosimeter Unit other than MU
   missing_plan_value,            // attribute, scope (+ control_point): an input the dose depends on is absent
   patient_setup_not_found,       // the beam's Patient Setup cannot be found
@@ -30,6 +30,17 @@ enum class ProblemKind {
   several_block_trays,           // the blocks name more than one tray
   tray_not_in_library,           // plan_text = Block Tray ID; library_beam
   patient_position_unsupported,  // plan_text = Patient Position
+  // Electron beams (stage: resolve, electron formula).
+  several_applicators,               // more than one item in the Applicator Sequence
+  applicator_not_in_library,         // plan_text = Applicator ID; library_beam
+  electron_accessory_unsupported,    // plan_text: "wedge", "shielding block", "several apertures"
+  cutout_unusable,                   // item_id = Block Number: Block Data encloses no area
+  cutout_table_missing,              // library_beam, item_id = applicator id: a cutout and no cutout table
+  several_boli,                      // more than one item in the Referenced Bolus Sequence
+  bolus_thickness_unknown,           // plan_text = Bolus ID, machine: no [[bolus]] of that id
+  electron_point_off_axis,           // plan_value = off-axis distance mm (no electron off-axis data)
+  electron_calibration_ssd_differs,  // library_beam, plan_value = calibration SSD cm, library_value =
+                                     // pdd_ssd_cm
   // Geometry and depth (stages: geometry, depth, apertures, segments).
   sad_mismatch,                  // plan_value = plan SAD mm, library_value = machine SAD mm, machine
   point_not_in_front_of_source,  // control_point when seen from a later part
@@ -48,7 +59,8 @@ enum class ProblemKind {
   mlc_transmission_missing,  // library_beam, machine: beams with leaves need mlc_transmission
   leaf_end_offset_missing,   // library_beam, machine: beams with leaves need mlc_leaf_end_offset_mm
   oar_table_missing,         // library_beam, plan_value = off-axis distance mm
-  block_transmission_missing,  // library_beam, item_id = Block Number: no (300A,0102) and no block_transmission
+  block_transmission_missing,  // library_beam, item_id = Block Number: no (300A,0102) and no
+                               // block_transmission
 };
 
 // Where in the plan a missing value was looked for.

@@ -52,6 +52,9 @@ inline constexpr DicomAttribute block_tray_id{"Block Tray ID", "(300A,00F5)"};
 inline constexpr DicomAttribute block_transmission{"Block Transmission", "(300A,0102)"};
 inline constexpr DicomAttribute block_data{"Block Data", "(300A,0106)"};
 inline constexpr DicomAttribute referenced_bolus_sequence{"Referenced Bolus Sequence", "(300C,00B0)"};
+inline constexpr DicomAttribute applicator_id{"Applicator ID", "(300A,0108)"};
+inline constexpr DicomAttribute bolus_id{"Bolus ID", "(300A,00DC)"};
+inline constexpr DicomAttribute block_type{"Block Type", "(300A,00F8)"};
 
 }  // namespace attribute
 

@@ -59,6 +59,21 @@ enum class WedgePositionState { absent, in, out, other };
 enum class BlockType { absent, shielding, aperture, other };
 // Block Divergence (300A,00FA): whether the block's edges follow the diverging rays.
 enum class BlockDivergence { absent, present, absent_divergence, other };
+// Applicator Type (300A,0109).
+enum class ApplicatorType {
+  absent,
+  electron_square,
+  electron_rect,
+  electron_circ,
+  electron_short,
+  electron_open,
+  photon_square,
+  photon_rect,
+  photon_circ,
+  intraoperative,
+  stereotactic,
+  other
+};
 
 // The DICOM spelling of each listed term; specialised below for every enum above.
 template <class Term>
@@ -110,6 +125,13 @@ COUNTERSIGN_DEFINED_TERMS(WedgePositionState, {WedgePositionState::in, "IN"},
 COUNTERSIGN_DEFINED_TERMS(BlockType, {BlockType::shielding, "SHIELDING"}, {BlockType::aperture, "APERTURE"});
 COUNTERSIGN_DEFINED_TERMS(BlockDivergence, {BlockDivergence::present, "PRESENT"},
                           {BlockDivergence::absent_divergence, "ABSENT"});
+COUNTERSIGN_DEFINED_TERMS(
+    ApplicatorType, {ApplicatorType::electron_square, "ELECTRON_SQUARE"},
+    {ApplicatorType::electron_rect, "ELECTRON_RECT"}, {ApplicatorType::electron_circ, "ELECTRON_CIRC"},
+    {ApplicatorType::electron_short, "ELECTRON_SHORT"}, {ApplicatorType::electron_open, "ELECTRON_OPEN"},
+    {ApplicatorType::photon_square, "PHOTON_SQUARE"}, {ApplicatorType::photon_rect, "PHOTON_RECT"},
+    {ApplicatorType::photon_circ, "PHOTON_CIRC"}, {ApplicatorType::intraoperative, "INTRAOPERATIVE"},
+    {ApplicatorType::stereotactic, "STEREOTACTIC"});
 
 #undef COUNTERSIGN_DEFINED_TERMS
 

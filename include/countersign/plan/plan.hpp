@@ -95,6 +95,14 @@ struct Accessory {
   std::string type;           // its type attribute where DICOM has one
 };
 
+// One item of the Applicator Sequence (300A,0107): an electron applicator (cone) or another device
+// mounted on the head.
+struct Applicator {
+  std::string id;              // Applicator ID (300A,0108), compared with the library's applicator ids
+  Coded<ApplicatorType> type;  // Applicator Type (300A,0109): ELECTRON_SQUARE, ELECTRON_RECT, ...
+  std::string description;     // Applicator Description (300A,010A)
+};
+
 // One item of the Block Sequence (300A,00F4): a shielding block or an aperture (photon block or
 // electron cutout). The outline is as DICOM defines Block Data: (x, y) vertices in the IEC BEAM
 // LIMITING DEVICE coordinate system, projected to the isocentre plane (mm), a closed polygon.
@@ -174,9 +182,11 @@ struct Beam {
   std::vector<BeamLimitingDevice> beam_limiting_devices;  // (300A,00B6)
   std::vector<Wedge> wedges;                         // Wedge Sequence (300A,00D1)
   std::vector<Block> blocks;                         // Block Sequence (300A,00F4)
-  std::vector<Accessory> applicators;                // Applicator Sequence (300A,0107)
+  std::vector<Applicator> applicators;               // Applicator Sequence (300A,0107)
   std::vector<Accessory> compensators;               // Compensator Sequence (300A,00E3)
-  std::vector<Accessory> boli;                       // Referenced Bolus Sequence (300C,00B0)
+  // Referenced Bolus Sequence (300C,00B0): number = Referenced ROI Number (3006,0084), id = Bolus ID
+  // (300A,00DC), type = Bolus Description (300A,00DD). DICOM gives no bolus thickness in the plan.
+  std::vector<Accessory> boli;
   // General Accessory Sequence (300A,0420): number (300A,0424), id (300A,0421), type (300A,0423)
   std::vector<Accessory> general_accessories;
   std::optional<double> final_cumulative_meterset_weight;  // (300A,010E)
