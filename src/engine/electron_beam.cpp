@@ -134,7 +134,7 @@ void electron_opening(const plan::Beam& beam, const ResolvedBeam& resolved, Beam
   geometry::JawOpening square{-half_mm, half_mm, -half_mm, half_mm};
   r.aperture =
       geometry::Aperture(square, {geometry::ApertureRow{-half_mm, half_mm, -half_mm, half_mm}}, false);
-  r.outline = beam_outline(beam, r.aperture, false);
+  r.outline = beam_outline(beam, r.aperture, resolved.blocks, false);
   r.ssd_mm = beam.control_points.front().ssd_mm;
 }
 
