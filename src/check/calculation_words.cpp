@@ -381,6 +381,14 @@ std::string approximation_sentence(const engine::Approximation& a, const engine:
           a.part_count, a.max_step_deg,
           a.beyond_largest_field ? "; scatter from beyond the largest tabulated field is not counted" : "",
           dose.equivalent_square_dose_gy, dose.sector_vs_equivalent_square_percent);
+    case engine::ApproximationKind::scatter_at_body_outline:
+      return fmt::format(
+          "Missing tissue: the scatter was truncated at the body outline in {} part{}: each sector ray "
+          "ends where the body ends in the plane through the point perpendicular to the central axis "
+          "(scaled to the isocentre plane by SAD/SPD), so the scatter of tissue that is not there is not "
+          "counted; the outline in that plane stands for the tissue above and below it, and beyond an "
+          "air gap the body is not counted again.",
+          a.part_count, a.part_count == 1 ? "" : "s");
     case engine::ApproximationKind::mlc_shape_equivalent_square:
       return "MLC-shaped field: equivalent square from area and perimeter (4A/P), not sector integration.";
     case engine::ApproximationKind::mlc_envelope_as_collimator:

@@ -59,6 +59,9 @@ PatientStudy PatientStudy::none(std::string note) {
 void use_study(CheckOptions& options, const PatientStudy& study) {
   options.study = study.used();
   options.engine.patient = study.model();
+  // With a CT, shaped parts' sector rays end at the body outline (missing tissue computed).
+  options.engine.outline_radius_mm =
+      study.model() != nullptr ? engine::outline_radius_from(*study.model()) : engine::OutlineRadius{};
 }
 
 bool ray_is_heterogeneous(const engine::CtRay& ray, const TolerancePolicy& policy) {
@@ -72,24 +75,47 @@ bool ray_is_heterogeneous(const engine::CtRay& ray, const TolerancePolicy& polic
 
 std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c, const TolerancePolicy& policy) {
   if (!c.patient) return std::nullopt;
-  const auto check_ray = [&policy](const engine::CtRay& ray,
+  // A part by sector integration whose rays were tested against the body outline computes the missing
+  // scatter: the larger limit applies to the fraction outside the body. Outside the CT tissue is
+  // assumed, so that fraction keeps today's limit, as every part by equivalent square does.
+  const auto check_ray = [&policy](const engine::CtRay& ray, bool at_outline,
                                    const std::string& where) -> std::optional<Finding> {
+    const double body_limit = at_outline ? policy.patient_max_missing_tissue_fraction_sectors
+                                         : policy.patient_max_missing_tissue_fraction;
+    const double ct_limit = policy.patient_max_missing_tissue_fraction;
     const double missing = ray.missing_tissue_fraction + ray.outside_ct_fraction;
-    if (missing <= policy.patient_max_missing_tissue_fraction) return std::nullopt;
+    if (at_outline ? (ray.missing_tissue_fraction <= body_limit && ray.outside_ct_fraction <= ct_limit)
+                   : missing <= body_limit)
+      return std::nullopt;
+    if (at_outline) {
+      const bool by_ct = ray.outside_ct_fraction > ct_limit;
+      return Finding{
+          Reason::missing_tissue,
+          fmt::format("{:.0f} % of the field at the point's depth lies outside the {} (policy limit {:.0f} % "
+                      "with the scatter truncated at the body outline){}: the beam is not checked",
+                      100.0 * (by_ct ? ray.outside_ct_fraction : ray.missing_tissue_fraction),
+                      by_ct ? "CT" : "body", 100.0 * (by_ct ? ct_limit : body_limit), where)};
+    }
     return Finding{
         Reason::missing_tissue,
         fmt::format(
             "{:.0f} % of the field at the point's depth lies outside the body{} (policy limit {:.0f} %){}: "
             "the scatter of full tissue would be assumed, so the beam is not checked",
-            100.0 * missing, ray.outside_ct_fraction > 0.0 ? " or the CT" : "",
-            100.0 * policy.patient_max_missing_tissue_fraction, where)};
+            100.0 * missing, ray.outside_ct_fraction > 0.0 ? " or the CT" : "", 100.0 * body_limit, where)};
   };
-  if (auto f = check_ray(c.patient->ray, "")) return f;
+  bool parts_traced = false;
   for (const engine::Segment& s : c.segments) {
     if (!s.ct) continue;
-    if (auto f = check_ray(*s.ct, fmt::format(" in the part from control point {}", s.from_control_point)))
+    parts_traced = true;
+    const bool at_outline = s.sectors && s.sectors->body_outline;
+    if (auto f = check_ray(*s.ct, at_outline,
+                           c.segments.size() > 1
+                               ? fmt::format(" in the part from control point {}", s.from_control_point)
+                               : std::string{}))
       return f;
   }
+  // No part computed (the calculation stopped before): control point 0's ray, today's limit.
+  if (!parts_traced) return check_ray(c.patient->ray, false, "");
   return std::nullopt;
 }
 

@@ -91,6 +91,8 @@ const std::map<std::string, Key>& keys() {
        {&TolerancePolicy::patient_heterogeneous_min_path_mm, 0.0, 500.0}},
       {"patient.max_missing_tissue_fraction",
        {&TolerancePolicy::patient_max_missing_tissue_fraction, 0.0, 1.0}},
+      {"patient.max_missing_tissue_fraction_sectors",
+       {&TolerancePolicy::patient_max_missing_tissue_fraction_sectors, 0.0, 1.0}},
       {"patient.plan_equivalent_depth_switch_percent",
        {&TolerancePolicy::patient_plan_equivalent_depth_switch_percent, 0.0, 100.0}},
       // [electron]

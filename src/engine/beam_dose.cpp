@@ -42,6 +42,14 @@ void add_beam_approximations(const ResolvedBeam& resolved, const MetersetSplit& 
     });
     r.approximations.push_back(a);
   }
+  const auto truncated = std::count_if(r.segments.begin(), r.segments.end(), [](const Segment& s) {
+    return s.sectors && s.sectors->rays_ended_at_body > 0;
+  });
+  if (truncated > 0) {
+    Approximation a{ApproximationKind::scatter_at_body_outline};
+    a.part_count = static_cast<std::size_t>(truncated);
+    r.approximations.push_back(a);
+  }
   if (r.aperture.jaws().x_source == geometry::JawSource::mlc_envelope ||
       r.aperture.jaws().y_source == geometry::JawSource::mlc_envelope) {
     r.approximations.push_back({ApproximationKind::mlc_envelope_as_collimator});

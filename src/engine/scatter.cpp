@@ -28,10 +28,13 @@ ScatterInputs scatter_inputs(const geometry::Aperture& aperture, const ResolvedB
   field.aperture = &aperture;
   field.blocks = &resolved.blocks;
   field.leaf_transmission = data.mlc_transmission.value_or(0.0);
-  if (setup->options != nullptr && setup->options->outline_radius_mm) {
-    const geometry::PointInBeam point = setup->point;
-    const auto& hook = setup->options->outline_radius_mm;
-    field.outline_radius_mm = [&hook, point](double direction_deg) { return hook(point, direction_deg); };
+  if (setup->options != nullptr && setup->options->outline_radius_mm && setup->frame != nullptr) {
+    const OutlineRadius& hook = setup->options->outline_radius_mm;
+    const geometry::BeamFrame& frame = *setup->frame;
+    const plan::PointMm point_mm = setup->point_mm;
+    field.outline_radius_mm = [&hook, &frame, point_mm](double direction_deg, double reach_mm) {
+      return hook(frame, point_mm, direction_deg, reach_mm);
+    };
   }
   const ScatterMaximumRatios smr(data, util::mm_to_cm(setup->depth_mm));
   scatter.sectors = integrate_sectors(field, setup->point.iso_plane_x_mm, setup->point.iso_plane_y_mm,

@@ -196,6 +196,7 @@ SectorScatter integrate_sectors(const SectorField& field, double x_mm, double y_
   out.tmr0 = smr.tmr0();
   out.sp0 = smr.sp0();
   out.primary_transmission = transmission_at(field, x_mm, y_mm);
+  out.body_outline = static_cast<bool>(field.outline_radius_mm);
   const geometry::JawOpening& j = field.aperture->jaws();
   const double width_deg = 360.0 / out.sectors;
   std::vector<double> ts;
@@ -218,8 +219,11 @@ SectorScatter integrate_sectors(const SectorField& field, double x_mm, double y_
     double t_out = 0.0;
     if (!ray_through_box(x_mm, y_mm, ux, uy, j.x1_mm, j.x2_mm, j.y1_mm, j.y2_mm, t_in, t_out)) continue;
     if (field.outline_radius_mm) {
-      if (const std::optional<double> body = field.outline_radius_mm(direction_deg))
-        t_out = std::min(t_out, *body);
+      const std::optional<double> body = field.outline_radius_mm(direction_deg, t_out);
+      if (body && *body < t_out) {
+        t_out = std::max(*body, 0.0);
+        ++out.rays_ended_at_body;
+      }
     }
     if (util::mm_to_cm(t_out) * plane_scale > smr.largest_radius_cm()) out.beyond_largest_field = true;
     collect_breakpoints(field, x_mm, y_mm, ux, uy, t_out, ts);

@@ -159,7 +159,8 @@ StageResult<Segment> compute_part(const plan::Beam& beam, const DosePoint& point
   }
 
   const bool sectors = shaped_field(aperture, resolved) && path.counted;
-  const SectorSetup setup{s.point, s.depth_mm, s.point.spd_mm, r.sad_mm, max_sector_deg, &options};
+  const SectorSetup setup{s.point,        s.depth_mm, s.point.spd_mm, r.sad_mm,
+                          max_sector_deg, &options,   &frame,         point.point_mm};
   const ScatterInputs scatter = scatter_inputs(aperture, resolved, sectors ? &setup : nullptr);
   const PartGeometry geometry{s.meterset_mu,         s.depth_mm,
                               s.point.spd_mm,        s.ssd_mm,

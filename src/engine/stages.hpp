@@ -152,7 +152,9 @@ struct SectorSetup {
   double spd_mm = 0.0;
   double sad_mm = 0.0;
   double max_sector_deg = 10.0;
-  const EngineOptions* options = nullptr;  // the body-outline hook, when one is given
+  const EngineOptions* options = nullptr;      // the body-outline hook, when one is given
+  const geometry::BeamFrame* frame = nullptr;  // the part's beam direction (for the body outline)
+  plan::PointMm point_mm{};                    // the dose point, patient coordinates
 };
 // Equivalent squares always (Sterling's 4A/P: Sc from the opening head_scatter_field names, Sp and
 // the TMR/PDD column from the opening); with `sectors`, the sector integration at the point too.

@@ -101,6 +101,7 @@ void add_scatter(json& j, const engine::Segment& s) {
   j["sectors"] = sectors ? json(s.sectors->sectors) : json(nullptr);
   j["smr"] = sectors ? json(s.sectors->smr) : json(nullptr);
   j["primary"] = sectors ? json(s.primary) : json(nullptr);
+  j["scatter_truncated_at_body"] = sectors && s.sectors->rays_ended_at_body > 0;
   j["transmission"] = s.inputs.transmission;
   j["equivalent_square_dose_gy"] = util::cgy_to_gy(s.equivalent_square_dose_cgy);
   j["edge_distance_cm"] = util::mm_to_cm(s.edge_distance_mm);
@@ -192,6 +193,7 @@ void add_calculation(json& j, const engine::BeamDose& c, const check::Calculatio
   j["wedge_profile"] = std::string(engine::to_code(c.features.wedge_profile));
   j["segment_count"] = c.segments.size();
   add_scatter(j, c.segments.front());  // static beam: its one part; modulated: see segments
+  j["scatter_truncated_at_body"] = c.scatter_truncated_at_body();  // in any part
   j["equivalent_square_dose_gy"] = c.equivalent_square_dose_gy;
   j["sector_vs_equivalent_square_percent"] = c.sector_vs_equivalent_square_percent;
   j["edge_meterset_share"] = c.edge_meterset_share;
@@ -286,6 +288,7 @@ json beam_check_to_json(const check::BeamCheck& b) {
                           "sectors",
                           "smr",
                           "primary",
+                          "scatter_truncated_at_body",
                           "transmission",
                           "equivalent_square_dose_gy",
                           "sector_vs_equivalent_square_percent",
@@ -344,6 +347,7 @@ json check_to_json(const check::PlanCheck& c) {
       {"patient_heterogeneous_density_difference", p.patient_heterogeneous_density_difference},
       {"patient_heterogeneous_min_path_mm", p.patient_heterogeneous_min_path_mm},
       {"patient_max_missing_tissue_fraction", p.patient_max_missing_tissue_fraction},
+      {"patient_max_missing_tissue_fraction_sectors", p.patient_max_missing_tissue_fraction_sectors},
       {"patient_plan_equivalent_depth_switch_percent", p.patient_plan_equivalent_depth_switch_percent}};
   std::string method = "by_setup_technique";
   if (c.options.engine.method == engine::MethodChoice::tmr) method = "tmr";

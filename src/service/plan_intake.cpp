@@ -1,11 +1,14 @@
 #include <countersign/service/plan_intake.hpp>
 #include <countersign/service/private_files.hpp>
 
+#include "intake_pending.hpp"
+
 #include <countersign/dicom/canonical_dataset.hpp>
 #include <countersign/dicom/plan_files.hpp>
 #include <countersign/dicom/read_plan.hpp>
 #include <countersign/dicom/read_study.hpp>
 #include <countersign/service/object_classes.hpp>
+#include <countersign/util/assert.hpp>
 #include <countersign/util/sha256.hpp>
 #include <countersign/util/text.hpp>
 #include <countersign/util/version.hpp>
@@ -171,18 +174,6 @@ std::string content_sha256_of(const std::vector<std::byte>& bytes, const fs::pat
 }
 
 }  // namespace
-
-// A plan checked in this batch, waiting for the commit.
-struct PlanIntake::Pending {
-  IntakeCandidate candidate;
-  std::string name;
-  std::string content_sha256;
-  std::string plan_sha256;  // the file's bytes as they arrived
-  PlanOutcome outcome;
-  Clock::time_point started;
-  std::size_t index = 0;   // of the candidate in the batch
-  std::string study_note;  // with or without its CT study (services with a study store)
-};
 
 std::string station_name() {
   char name[256] = {};
@@ -430,6 +421,7 @@ std::optional<IntakeResult> PlanIntake::examine(const IntakeCandidate& candidate
   checked.index = index;
   checked.study_note = study.folders.empty() ? std::string{"without a CT study"} : "with its CT study";
   if (study_store_ == nullptr) checked.study_note.clear();
+  checked.awaited_structure_set_uid = study.awaited_structure_set_uid;
   waiting_logged_.erase(file);
   pending.push_back(std::move(checked));
   return std::nullopt;
@@ -462,6 +454,15 @@ std::vector<IntakeResult> PlanIntake::take_batch(std::span<const IntakeCandidate
   // other file is, normally as already checked.
   for (const std::size_t i : copies)
     results[i] = take(candidates[i].file, Arrival::complete, candidates[i].attempt);
+  // A study object arrived (or the service has just started): plans checked without their study
+  // may now have it.
+  const bool study_arrived = std::any_of(results.begin(), results.end(), [](const IntakeResult& r) {
+    return r.status == IntakeStatus::kept_for_study;
+  });
+  if (study_store_ != nullptr && (study_arrived || !late_studies_looked_at_)) {
+    late_studies_looked_at_ = true;
+    recheck_late_studies();
+  }
   return results;
 }
 
@@ -491,7 +492,9 @@ store::NewCheck PlanIntake::new_check(const Pending& p, std::int64_t id) const {
     check.files.result_sr = stem + ".sr.dcm";
     check.hashes.sr_sha256 = util::sha256_hex(*outcome.sr_bytes);
   }
-  check.files.plan = "plans/" + outcome.sop_instance_uid + "." + p.content_sha256.substr(0, 16) + ".dcm";
+  check.files.plan = p.kept_plan_file.empty()
+                         ? "plans/" + outcome.sop_instance_uid + "." + p.content_sha256.substr(0, 16) + ".dcm"
+                         : p.kept_plan_file;
   check.hashes.plan_sha256 = p.plan_sha256;
   check.hashes.beamdata_sha256 = outcome.beamdata_sha256;
   check.hashes.policy_sha256 = outcome.policy_sha256;
@@ -554,7 +557,13 @@ std::string checked_line(const std::string& name, const PlanOutcome& outcome, co
 // point. Only then do the files leave the inbox.
 void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results) {
   const auto fail_all = [&](const std::string& reason) {
-    for (const Pending& p : pending) results[p.index] = fail(p.candidate.file, reason, p.candidate.attempt);
+    for (const Pending& p : pending) {
+      if (p.late_study_marker) {  // its marker stays: tried again with the next study object or start
+        log_.line("not checked again with its study now: " + p.name + ": " + reason);
+        continue;
+      }
+      results[p.index] = fail(p.candidate.file, reason, p.candidate.attempt);
+    }
   };
   // Numbers first, so that every file has a name of its own before anything is written.
   auto ids = store_->reserve_check_ids(pending.size());
@@ -573,6 +582,11 @@ void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>
     if (outcome.sr_bytes) contents.emplace_back(folders_.results / check.files.result_sr, *outcome.sr_bytes);
     std::vector<std::pair<fs::path, std::string>> markers;
     if (follow_ups_ != nullptr) markers = follow_ups_->markers(check);
+    if (!pending[k].awaited_structure_set_uid.empty()) {
+      markers.emplace_back(late_study_marker(folders_.results, pending[k].content_sha256),
+                           late_study_marker_text(check.files.plan, pending[k].awaited_structure_set_uid,
+                                                  pending[k].content_sha256, pending[k].name, check.id));
+    }
     for (const auto& [file, text] : markers) contents.emplace_back(file, text);
     for (const auto& [file, text] : contents) {
       if (auto added = files.add(file, text); !added) return fail_all(added.error().message());
@@ -592,6 +606,11 @@ void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>
   for (std::size_t k = 0; k < pending.size(); ++k) {
     const Pending& p = pending[k];
     store::Recorded& stored = recorded.value()[k];
+    if (p.late_study_marker) {
+      results[p.index] = finish_late_study_check(p, stored, written[k]);
+      if (!stored.already_recorded) followed.push_back(stored.record);
+      continue;
+    }
     if (stored.already_recorded) {
       // Another service sharing the store recorded this content first: these files belong to no
       // record and are taken back; the plan is one already checked.
@@ -616,6 +635,34 @@ void PlanIntake::commit(std::vector<Pending>& pending, std::vector<IntakeResult>
     followed.push_back(stored.record);
   }
   if (follow_ups_ != nullptr && !followed.empty()) follow_ups_->recorded(followed);
+}
+
+// A check with a study that came late, once recorded: its marker goes; the plan stays where the
+// first check kept it. Already recorded (by another service, or before a crash removed the marker):
+// the files written now belong to no record and are taken back.
+IntakeResult PlanIntake::finish_late_study_check(const Pending& p, const store::Recorded& stored,
+                                                 const std::vector<fs::path>& written) {
+  IntakeResult result;
+  result.record = stored.record;
+  if (stored.already_recorded) {
+    for (const fs::path& file : written) {
+      [[maybe_unused]] const auto removed = remove_file_durably(file, DirectorySync::deferred);
+    }
+    result.status = IntakeStatus::duplicate;
+    result.message =
+        "already checked " + p.name + " with its study: check #" + std::to_string(stored.record.id);
+  } else {
+    result.status = IntakeStatus::checked;
+    result.message =
+        checked_line(p.name, p.outcome, stored.record, folders_.results, Clock::now() - p.started) +
+        "; with its CT study, which arrived after check #" + std::to_string(p.check_without_study_id) +
+        " was made without it";
+  }
+  if (auto removed = remove_file_durably(util::checked(p.late_study_marker), DirectorySync::deferred);
+      !removed)
+    result.message += "; its marker could not be removed: " + removed.error().message();
+  log_.line(result.message);
+  return result;
 }
 
 // A CT image or RT Structure Set goes to the study store; another RT object a planning system sends
@@ -683,8 +730,9 @@ std::optional<IntakeResult> PlanIntake::wait_for_study(const fs::path& file, std
   study.note = "the plan's study did not arrive within " + std::to_string(wait.count()) +
                " s of the plan (--study-wait; still missing: " + missing +
                "): homogeneous water with the plan's depths";
+  study.awaited_structure_set_uid = structure_set_uid;
   log_.line("no study for " + name + " after " + std::to_string(wait.count()) + " s (missing: " + missing +
-            "): its check runs without a CT");
+            "): its check runs without a CT, and again with it if it arrives within --study-keep-days");
   return std::nullopt;
 }
 

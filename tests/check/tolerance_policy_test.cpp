@@ -75,6 +75,8 @@ TEST(PolicyExample, ShippedFileEqualsTheDefaults) {
   EXPECT_DOUBLE_EQ(p->patient_heterogeneous_density_difference, d.patient_heterogeneous_density_difference);
   EXPECT_DOUBLE_EQ(p->patient_heterogeneous_min_path_mm, d.patient_heterogeneous_min_path_mm);
   EXPECT_DOUBLE_EQ(p->patient_max_missing_tissue_fraction, d.patient_max_missing_tissue_fraction);
+  EXPECT_DOUBLE_EQ(p->patient_max_missing_tissue_fraction_sectors,
+                   d.patient_max_missing_tissue_fraction_sectors);
   EXPECT_DOUBLE_EQ(p->patient_plan_equivalent_depth_switch_percent,
                    d.patient_plan_equivalent_depth_switch_percent);
   EXPECT_DOUBLE_EQ(p->small_share_fraction, d.small_share_fraction);

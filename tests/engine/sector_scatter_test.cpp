@@ -169,7 +169,7 @@ TEST(SectorIntegration, BodyOutlineEndsTheRays) {
   const geometry::Aperture a = rectangle(-100, 100, -100, 100);
   SectorField field{&a, nullptr, 0.0, {}};
   const double open = sector_sp_tmr(field, b, 10.0);
-  field.outline_radius_mm = [](double) { return std::optional<double>(40.0); };
+  field.outline_radius_mm = [](double, double) { return std::optional<double>(40.0); };
   // Rays cut at 4 cm all round: the circle of radius 4 cm (equal-area square 7.09 cm).
   EXPECT_NEAR(sector_sp_tmr(field, b, 10.0) / table_sp_tmr(b, 10.0, 4.0 * std::sqrt(std::numbers::pi)), 1.0,
               0.002);

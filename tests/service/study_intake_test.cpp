@@ -12,8 +12,10 @@
 #include <gtest/gtest.h>
 #include <sys/stat.h>
 
+#include <algorithm>
 #include <chrono>
 #include <fstream>
+#include <iterator>
 #include <sstream>
 
 namespace countersign::service {
@@ -133,6 +135,44 @@ TEST_F(StudyIntakeTest, APlanWhoseStudyDoesNotArriveInTimeIsCheckedWithoutItAndS
   EXPECT_NE(seen_.front().note.find("homogeneous water"), std::string::npos);
   EXPECT_NE(checked.message.find("without a CT study"), std::string::npos);
   EXPECT_NE(log_text_.str().find("no study for RP.dcm after 0 s"), std::string::npos) << log_text_.str();
+}
+
+TEST_F(StudyIntakeTest, APlanCheckedWithoutItsStudyIsCheckedAgainWhenTheStudyArrivesLate) {
+  open(0s);
+  const auto first = intake_->take(arrive(lung_study() / "RP.fern_lung_4field.dcm", "RP.dcm"));
+  ASSERT_EQ(first.status, IntakeStatus::checked) << first.message;
+  ASSERT_TRUE(first.record);
+  const fs::path awaiting = dir_ / "results" / "awaiting-study";
+  ASSERT_EQ(std::distance(fs::directory_iterator{awaiting}, fs::directory_iterator{}), 1) << log_text_.str();
+  ASSERT_EQ(intake_->take(arrive(lung_study() / "RS.dcm", "RS.dcm")).status, IntakeStatus::kept_for_study);
+  for (int i = 1; i <= 20; ++i) {
+    EXPECT_EQ(seen_.size(), 1U) << "checked again before the study was complete (slice " << i << ")";
+    const std::string name = (i < 10 ? "CT00" : "CT0") + std::to_string(i) + ".dcm";
+    ASSERT_EQ(intake_->take(arrive(lung_study() / name, name)).status, IntakeStatus::kept_for_study);
+  }
+  // The last slice completed the study: the plan kept under RESULTS/plans was checked with it.
+  ASSERT_EQ(seen_.size(), 2U) << log_text_.str();
+  EXPECT_TRUE(seen_[0].folders.empty());
+  ASSERT_EQ(seen_[1].folders.size(), 1U);
+  EXPECT_EQ(seen_[1].folders.front(), dir_ / "results" / "studies" / study_uid);
+  EXPECT_TRUE(seen_[1].note.empty());
+  // Both checks are in the history; the second supersedes the first; the marker is gone.
+  auto checks = test::recorded_checks(dir_ / "results");
+  ASSERT_EQ(checks.size(), 2U);
+  std::sort(checks.begin(), checks.end(), [](const auto& a, const auto& b) { return a.id < b.id; });
+  EXPECT_EQ(checks[1].replaces_check_id, first.record->id);
+  EXPECT_EQ(checks[1].files.plan, checks[0].files.plan);  // the plan file kept by the first check
+  EXPECT_EQ(checks[1].hashes.plan_sha256, checks[0].hashes.plan_sha256);  // the same bytes
+  EXPECT_TRUE(fs::exists(dir_ / "results" / checks[0].files.plan));
+  EXPECT_TRUE(fs::is_empty(awaiting));
+  EXPECT_NE(log_text_.str().find("which arrived after check #" + std::to_string(first.record->id)),
+            std::string::npos)
+      << log_text_.str();
+  // A slice sent again checks nothing again.
+  ASSERT_EQ(intake_->take(arrive(lung_study() / "CT001.dcm", "CT001.dcm")).status,
+            IntakeStatus::kept_for_study);
+  EXPECT_EQ(seen_.size(), 2U);
+  EXPECT_EQ(test::recorded_checks(dir_ / "results").size(), 2U);
 }
 
 TEST_F(StudyIntakeTest, FilesOlderThanTheKeepAgeArePurgedAndEmptyFoldersRemoved) {

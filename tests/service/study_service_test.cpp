@@ -10,6 +10,7 @@
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include <algorithm>
 #include <chrono>
 #include <fstream>
 #include <functional>
@@ -105,6 +106,45 @@ TEST_F(StudyServiceTest, APlanWhoseStudyNeverComesIsCheckedWithoutACtAfterTheWai
             std::string::npos)
       << plan.at("patient_study");
   for (const auto& beam : plan.at("beams")) EXPECT_NE(beam.at("patient").at("source"), "ct") << beam;
+}
+
+// Issue 14, services: the plan is checked without a CT after --study-wait 1; its study arrives in a
+// later run of the watcher and the plan is checked again, now with the CT's radiological depth; the
+// history holds both checks, the second superseding the first.
+TEST_F(StudyServiceTest, APlanCheckedWithoutItsStudyIsCheckedAgainWithTheCtWhenTheStudyArrivesLater) {
+  arrive(lung_study() / "RP.fern_lung_4field.dcm", inbox(), "RP.dcm");
+  auto run = test::run_command(watch_once("--study-wait 1"));
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  const auto first = plan_result(results());
+  ASSERT_FALSE(first.is_null()) << run.out;
+  EXPECT_FALSE(first.at("patient_study").at("used").get<bool>());
+  ASSERT_EQ(test::recorded_checks(results()).size(), 1U);
+
+  arrive(lung_study() / "RS.dcm", inbox(), "RS.dcm");
+  for (const auto& entry : fs::directory_iterator{lung_study()}) {
+    const std::string name = entry.path().filename().string();
+    if (name.rfind("CT", 0) == 0) arrive(entry.path(), inbox(), name);
+  }
+  run = test::run_command(watch_once("--study-wait 1"));
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  EXPECT_NE(run.out.find("with its CT study, which arrived after check #"), std::string::npos) << run.out;
+  auto checks = test::recorded_checks(results());
+  ASSERT_EQ(checks.size(), 2U) << run.out;
+  std::sort(checks.begin(), checks.end(), [](const auto& a, const auto& b) { return a.id < b.id; });
+  EXPECT_EQ(checks[1].replaces_check_id, checks[0].id);
+  EXPECT_EQ(checks[1].sop_instance_uid, plan_uid);
+  const auto second = plan_result(results());  // the newest result file: the second check's
+  EXPECT_TRUE(second.at("patient_study").at("used").get<bool>()) << second.at("patient_study");
+  for (const auto& beam : second.at("beams")) {
+    EXPECT_EQ(beam.at("patient").at("source"), "ct") << beam;
+    EXPECT_EQ(beam.at("depth_source"), "ct_radiological") << beam;
+  }
+  EXPECT_TRUE(fs::is_empty(inbox()));
+  EXPECT_TRUE(fs::is_empty(results() / "awaiting-study"));
+  // A third run finds nothing to do.
+  run = test::run_command(watch_once("--study-wait 1"));
+  ASSERT_EQ(run.exit_code, 0) << run.out << run.err;
+  EXPECT_EQ(test::recorded_checks(results()).size(), 2U) << run.out;
 }
 
 TEST_F(StudyServiceTest, ReceiveTakesThePlanBeforeItsStudyFromStorescuAndChecksItWithTheCt) {

@@ -50,7 +50,8 @@ class PatientStudy {
   std::unique_ptr<patient::PatientModel> model_;
 };
 
-// Hands the study to a check: the engine's patient model and what the outputs say about the study.
+// Hands the study to a check: the engine's patient model, the body outline for sector rays
+// (engine::outline_radius_from) and what the outputs say about the study.
 struct CheckOptions;
 void use_study(CheckOptions& options, const PatientStudy& study);
 
@@ -58,7 +59,10 @@ void use_study(CheckOptions& options, const PatientStudy& study);
 // by more than the policy's threshold.
 [[nodiscard]] bool ray_is_heterogeneous(const engine::CtRay& ray, const TolerancePolicy& policy);
 
-// Missing tissue above the policy fraction: not checked (in any part).
+// Missing tissue above the policy fraction: not checked (in any part). A part by sector integration
+// whose rays end at the body outline is held to patient_max_missing_tissue_fraction_sectors for the
+// fraction outside the body; everything else (equivalent square, the fraction outside the CT) to
+// patient_max_missing_tissue_fraction.
 [[nodiscard]] std::optional<Finding> missing_tissue_finding(const engine::BeamDose& c,
                                                             const TolerancePolicy& policy);
 

@@ -54,10 +54,10 @@ struct TolerancePolicy {
   double small_share_fraction = 0.1;
 
   // Shaped and modulated fields (block [sectors]).
-  double max_sector_deg = 10.0;           // sector integration: widest sector
-  double max_edge_meterset_share = 0.2;   // modulated beams: above this share of the meterset delivered
-                                          // with the point within min_edge_distance_cm of a part's edge,
-                                          // the beam is not checked (common practice, no source)
+  double max_sector_deg = 10.0;          // sector integration: widest sector
+  double max_edge_meterset_share = 0.2;  // modulated beams: above this share of the meterset delivered
+                                         // with the point within min_edge_distance_cm of a part's edge,
+                                         // the beam is not checked (common practice, no source)
 
   // Verdict honesty ([model_limits] in the policy file; defaults: common practice, no source).
   // Geometry consistency: plan depth + Beam Dose Point SSD against the ray length, and the SSD
@@ -86,6 +86,11 @@ struct TolerancePolicy {
   double patient_heterogeneous_min_path_mm = 5.0;
   // Above this fraction of the field at the point's depth outside the body: not checked (missing_tissue).
   double patient_max_missing_tissue_fraction = 0.05;
+  // The same for a part computed by sector integration whose rays end at the body outline (the
+  // missing scatter is computed, not assumed): a larger limit on the fraction outside the body. The
+  // fraction outside the CT keeps the limit above (tissue is assumed there). Our choice, common
+  // practice, no source.
+  double patient_max_missing_tissue_fraction_sectors = 0.5;
   // Without a CT: above this |equivalent - geometric| / geometric (percent) the plan's equivalent
   // depth is used (stated "from the plan, not independent").
   double patient_plan_equivalent_depth_switch_percent = 5.0;

@@ -18,6 +18,7 @@ enum class ApproximationKind {
   blocks_as_outlines,           // blocks modelled by their outlines, sharp edges, uniform transmission
   mayneord_f_factor,            // ssd_cm, table_ssd_cm: PDD at another SSD by the Mayneord F factor
   sector_integration,           // part_count = sectors, max_step_deg = widest sector, beyond_largest_field
+  scatter_at_body_outline,      // part_count = parts whose sector rays ended at the body outline (with a CT)
   // Electron beams (BeamDose::electron holds the numbers).
   electron_cutout_size,  // the cutout through 4A/P or the square-root rule, scaled to the tables' plane
   electron_pdd_at_standard_ssd,  // ssd_cm, table_ssd_cm: the PDD of the standard SSD used at another SSD

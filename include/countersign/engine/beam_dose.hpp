@@ -8,6 +8,7 @@
 
 #include <countersign/beamdata/library.hpp>
 #include <countersign/engine/approximation.hpp>
+#include <countersign/engine/body_outline_radius.hpp>
 #include <countersign/engine/dose_point.hpp>
 #include <countersign/engine/electron_dose.hpp>
 #include <countersign/engine/model_facts.hpp>
@@ -42,10 +43,10 @@ struct EngineOptions {
   double max_sector_deg = 10.0;  // sector integration: widest sector (the policy's sectors.max_sector_deg)
   double segment_edge_distance_mm = 10.0;  // a part's point closer than this to its opening's edge counts
                                            // towards edge_meterset_share (the policy's min_edge_distance_cm)
-  // Optional seam for the body outline (CT studies): for a part's point and a sector direction
-  // (degrees in the beam-limiting-device frame), the isocentre-plane distance (mm) at which the
-  // outline cuts the ray, or nullopt. Unset: rays end at the aperture's edges only.
-  std::function<std::optional<double>(const geometry::PointInBeam&, double direction_deg)> outline_radius_mm;
+  // The body outline for sector integration (with a CT: check::use_study sets it from the study's
+  // patient model, body_outline_radius.hpp): a shaped part's sector rays end where the body ends in
+  // the plane through the point. Unset: rays end at the aperture's edges only (full scatter).
+  OutlineRadius outline_radius_mm;
   // The patient's CT and body outline (check --study): depths and SSD come from it. Not owned; the
   // model (and its study) must outlive the calculation. nullptr: the plan's depths, in water.
   const patient::PatientModel* patient = nullptr;
@@ -179,6 +180,11 @@ struct BeamDose {
     return std::any_of(segments.begin(), segments.end(), [](const Segment& s) {
       return s.scatter_method == ScatterMethod::sector_integration;
     });
+  }
+  // Some part's sector rays ended at the body outline (scatter of the missing tissue not counted).
+  [[nodiscard]] bool scatter_truncated_at_body() const {
+    return std::any_of(segments.begin(), segments.end(),
+                       [](const Segment& s) { return s.sectors && s.sectors->rays_ended_at_body > 0; });
   }
   // The share of the meterset delivered (in parts that reach the point) with the point closer than
   // EngineOptions::segment_edge_distance_mm to the part's opening's edge.

@@ -63,10 +63,11 @@ struct SectorField {
   const geometry::Aperture* aperture = nullptr;
   const std::vector<BlockShape>* blocks = nullptr;  // may be null: no blocks
   double leaf_transmission = 0.0;                   // under the leaves, inside the jaws
-  // Optional seam for the body outline: the distance (mm, isocentre plane) from the point at which
-  // the outline cuts the ray in this direction (degrees, IEC beam-limiting-device x towards y), or
-  // nullopt where it does not; a ray ends there.
-  std::function<std::optional<double>(double direction_deg)> outline_radius_mm;
+  // Optional: the body outline. For a direction (degrees, IEC beam-limiting-device x towards y) and
+  // the ray's reach (mm, isocentre plane: where it leaves the jaws), the distance (mm, isocentre
+  // plane) from the point at which the body ends, or nullopt where it does not end before; a ray
+  // ends there.
+  std::function<std::optional<double>(double direction_deg, double reach_mm)> outline_radius_mm;
 };
 
 // The transmission a point of the isocentre plane sees: 0 outside the jaws, the leaves' under the
@@ -80,6 +81,8 @@ struct SectorScatter {
   double smr = 0.0;                   // mean over sectors of the transmission-weighted SMR
   double primary_transmission = 1.0;  // at the point: 1 open, leaves' or block's behind them
   bool beyond_largest_field = false;  // some ray ran past the largest tabulated field
+  bool body_outline = false;          // the rays were tested against the body outline
+  int rays_ended_at_body = 0;         // sectors whose ray the body outline shortened
   // Sp·TMR of the field at the point, before the OAR (which multiplies the primary only).
   [[nodiscard]] double sp_tmr(double primary_oar = 1.0) const {
     return sp0 * (tmr0 * primary_transmission * primary_oar + smr);

@@ -5,6 +5,7 @@
 // number of rays. Const methods only; safe to share between threads.
 
 #include <countersign/patient/batho.hpp>
+#include <countersign/patient/body_extent.hpp>
 #include <countersign/patient/body_outline.hpp>
 #include <countersign/patient/density.hpp>
 #include <countersign/patient/missing_tissue.hpp>
@@ -36,6 +37,12 @@ class PatientModel {
                                              std::span<const std::array<double, 2>> field_uv_mm,
                                              double row_spacing_mm = 0.5) const {
     return patient::missing_tissue(outline_, plane, field_uv_mm, row_spacing_mm);
+  }
+  // Where the body ends along a line from a point inside it (sector rays at the outline).
+  [[nodiscard]] std::optional<double> body_extent_mm(const Eigen::Vector3d& point_mm,
+                                                     const Eigen::Vector3d& direction,
+                                                     double reach_mm) const {
+    return patient::body_extent_mm(outline_, point_mm, direction, reach_mm);
   }
 
  private:

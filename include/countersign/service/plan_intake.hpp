@@ -132,12 +132,20 @@ class PlanIntake {
   // Follow-ups of recorded checks (not owned; must outlive the intake), or none.
   void set_follow_ups(FollowUpSink* sink) { follow_ups_ = sink; }
 
+  // Plans checked without their study because it had not arrived within the study wait are checked
+  // again once it is complete in the study store, as long as it comes within the keep age (markers
+  // under RESULTS/awaiting-study, written with the first check). The new check supersedes the one
+  // without a CT in the history (both stay); it is recorded exactly once. take_batch calls this after
+  // a batch that kept a CT image or structure set, and after the first batch.
+  void recheck_late_studies();
+
   [[nodiscard]] const ServiceFolders& folders() const { return folders_; }
   [[nodiscard]] store::Store& store() const { return *store_; }
   [[nodiscard]] const IntakeOptions& options() const { return options_; }
   [[nodiscard]] ServiceLog& log() const { return log_; }
 
-  struct Pending;  // a file checked, waiting for its batch's commit (internal)
+  struct Pending;   // a file checked, waiting for its batch's commit (internal)
+  struct Awaiting;  // a plan checked without its study, from its marker (internal, late_study.cpp)
 
  private:
   struct Observed {
@@ -157,6 +165,9 @@ class PlanIntake {
   void commit(std::vector<Pending>& pending, std::vector<IntakeResult>& results);
   IntakeResult finish_duplicate(const std::filesystem::path& file, const store::CheckRecord& record,
                                 const std::string& content_sha256, std::string_view how = "");
+  std::optional<Pending> late_study_check(const Awaiting& awaiting, const StudyLookup& lookup);
+  IntakeResult finish_late_study_check(const Pending& pending, const store::Recorded& stored,
+                                       const std::vector<std::filesystem::path>& written);
   [[nodiscard]] store::NewCheck new_check(const Pending& pending, std::int64_t id) const;
   void record_head(const std::vector<store::Recorded>& recorded);
   IntakeResult quarantine(const std::filesystem::path& file, std::string_view content_sha256,
@@ -174,6 +185,7 @@ class PlanIntake {
   FollowUpSink* follow_ups_ = nullptr;
   StudyStore* study_store_ = nullptr;
   std::set<std::filesystem::path> waiting_logged_;  // plans whose wait for their study was logged
+  bool late_studies_looked_at_ = false;             // recheck_late_studies ran once since the start
   std::string station_;
   std::string results_folder_;  // absolute, as recorded with each check
   // Files written in place whose modification time is in the future (another clock, a time set by

@@ -52,6 +52,9 @@ struct PlanOutcome {
 struct StudyContext {
   std::vector<std::filesystem::path> folders;
   std::string note;
+  // Set with `note` when the plan named this structure set and it (or its CT) did not arrive in time:
+  // the intake checks the plan again when the study comes (not used by the processor).
+  std::string awaited_structure_set_uid;
 };
 
 // Turns one complete plan file into an outcome. `file` names it for messages; `bytes` is its whole

@@ -36,9 +36,12 @@ struct CheckHashes {
 // The fields of a check, as the service knows them before the store records it.
 struct CheckData {
   std::string sop_instance_uid;  // SOP Instance UID (0008,0018)
-  std::string content_sha256;  // the dataset in one canonical encoding: with the UID, the key of exactly-once
-  std::string patient_id;      // Patient ID (0010,0020)
-  std::string plan_label;      // RT Plan Label (300A,0002)
+  // The dataset in one canonical encoding: with the UID, the key of exactly-once. A service's check
+  // again with a study that arrived late (service/late_study.cpp) records the SHA-256 of that hash with
+  // the structure set's UID instead: the same plan content checked with its CT, once.
+  std::string content_sha256;
+  std::string patient_id;  // Patient ID (0010,0020)
+  std::string plan_label;  // RT Plan Label (300A,0002)
   PlanVerdict verdict = PlanVerdict::not_checked;
   std::vector<BeamOutcome> beams;
   std::string software_version;
