@@ -131,7 +131,9 @@ TEST(ReadPlanDemo, EveryBeamMatchesTheGeneratorsSpecification) {
       EXPECT_EQ(cp0.wedge_positions[0].position.text, "IN");
     }
     if (row.at("tray_id") == "-") {
-      if (!electron) EXPECT_TRUE(beam->blocks.empty());  // an electron cutout has no tray
+      if (!electron) {
+        EXPECT_TRUE(beam->blocks.empty());  // an electron cutout has no tray
+      }
     } else {
       ASSERT_EQ(beam->blocks.size(), 1u);
       EXPECT_EQ(beam->blocks[0].tray_id, row.at("tray_id"));
