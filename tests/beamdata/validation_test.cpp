@@ -54,7 +54,7 @@ TEST_F(DamagedDemo, UndamagedCopyIsClean) {
   const ValidationReport report = validate();
   EXPECT_TRUE(report.clean());
   EXPECT_EQ(report.machine_count, 1u);
-  EXPECT_EQ(report.beam_count, 2u);
+  EXPECT_EQ(report.beam_count, 5u);  // 6X, 10X and the electron beams 6E, 9E, 12E
   EXPECT_GT(report.consistency_nodes_compared, 500u);
   EXPECT_EQ(report.sha256_hex.size(), 64u);
   EXPECT_EQ(report.sha256_hex, validate_library(testing::demo_library()).sha256_hex);

@@ -130,11 +130,11 @@ TEST(ValidatorMessages, Manifest) {
          testing::write_text(
              m / "machine.toml",
              testing::read_text(m / "machine.toml") +
-                 "\n[[beam]]\nid = \"6E\"\nradiation = \"ELECTRON\"\nenergy_mv = 6\n"
+                 "\n[[beam]]\nid = \"18E\"\nradiation = \"ELECTRON\"\nenergy_mv = 18\n"
                  "dmax_cm = 1.3\npdd_ssd_cm = 100\n[beam.calibration]\n"
                  "output_cgy_per_mu = 1\napplicator = \"A10\"\nssd_cm = 100\ndepth_cm = 1.3\n");
        },
-       "machine.toml", "beam[3].applicator: an electron beam needs at least one [[beam.applicator]]"},
+       "machine.toml", "beam[6].applicator: an electron beam needs at least one [[beam.applicator]]"},  // after 2 photon and 3 electron demo beams
   };
   for (const auto& c : cases) run_case(c);
 }
@@ -303,7 +303,7 @@ TEST(ValidatorMessages, StructuralProblemsDoNotHidePhysicsOnes) {
   }
   testing::write_text(machine / "10X/sp.csv", out);
   const auto report = validate_library(dir.path());
-  EXPECT_EQ(report.beam_count, 2u);
+  EXPECT_EQ(report.beam_count, 5u);  // the demo library's 6X, 10X, 6E, 9E, 12E
   const std::string all = problems_of(report.problems);
   EXPECT_NE(all.find("beam[1].tables.tmr: names '6X/tmr.csv', which does not exist"), std::string::npos)
       << all;

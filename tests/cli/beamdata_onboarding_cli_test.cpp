@@ -147,7 +147,9 @@ TEST(BeamdataReportCli, DemoLibraryPageIsSelfContainedAndMarksInconsistencies) {
   const auto loaded = beamdata::load_library(dir.path());
   ASSERT_TRUE(loaded);
   EXPECT_EQ(count(html, "<svg class=\"table-plot\""), table_count(*loaded));
-  EXPECT_EQ(table_count(*loaded), 13u);  // 2 x (pdd, tmr, sc, sp, oar, W30 orientation) + ct/default.csv
+  // 2 photon beams x (pdd, tmr, sc, sp, oar, W30 orientation) + ct/default.csv, and 3 electron
+  // beams x 4 applicators x (pdd, cutout factors)
+  EXPECT_EQ(table_count(*loaded), 37u);
 }
 
 TEST(BeamdataValidateCli, RepeatedProblemsAreGroupedAndAllListsEachOne) {

@@ -226,7 +226,9 @@ def beam_json(ds, beam):
                     "angle_deg": number(w, "WedgeAngle"), "factor": number(w, "WedgeFactor"),
                     "orientation_deg": number(w, "WedgeOrientation")} for w in sequence(beam, "WedgeSequence")],
         "blocks": blocks, "block_tray_ids": trays,
-        "applicators": accessories(sequence(beam, "ApplicatorSequence"), None, "ApplicatorID", "ApplicatorType"),
+        "applicators": [dict(a, description=text(i, "ApplicatorDescription"))
+                        for a, i in zip(accessories(sequence(beam, "ApplicatorSequence"), None, "ApplicatorID",
+                                                    "ApplicatorType"), sequence(beam, "ApplicatorSequence"))],
         "compensators": accessories(sequence(beam, "CompensatorSequence"), "CompensatorNumber", "CompensatorID",
                                     "CompensatorType"),
         "boli": accessories(sequence(beam, "ReferencedBolusSequence"), "ReferencedROINumber", "BolusID",
