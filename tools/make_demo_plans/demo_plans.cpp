@@ -92,7 +92,7 @@ PlanSpec base(const std::string& file, const std::string& suffix, const std::str
 }
 
 // 10 MV four-field box on a 200 mm (AP) x 300 mm (lateral) box phantom, isocentre at its centre.
-// Beam 2 carries the deliberate +7 % MU transcription error (README).
+// Beam 2 carries the deliberate +7 % MU copying error (README).
 PlanSpec box_4field() {
   auto plan = base("fern_box_4field.dcm", "101", "BOX4", "Pelvis box 4F", "FERN-PH-0101", "PHANTOM^BOX");
   plan.isocenter_mm = {0.0, 0.0, 0.0};

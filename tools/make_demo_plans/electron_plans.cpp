@@ -1,6 +1,6 @@
 // The INVENTED electron demo plans of the fictional Fernhollow Radiotherapy Unit (issue 19): a
 // chest-wall field with a cutout at an extended SSD, a scar field with bolus, and a boost field whose
-// MU carry a deliberate +8 % transcription error. Patients are phantoms.
+// MU carry a deliberate +8 % copying error. Patients are phantoms.
 //
 // The stand-in planning system computes each beam's dose per MU from the continuous electron model
 // (tools/demo_linac/electron_model.hpp), independently of countersign's tables and code:

@@ -2,7 +2,7 @@
 
 // Known errors put into a plan in memory, to show that the check catches them (AAPM TG-114 (2011)
 // advises testing a verification program with deliberate errors). Each injection changes one beam
-// of one fraction group of a copy of the plan by a stated size, the way a transcription or export
+// of one fraction group of a copy of the plan by a stated size, the way a copying or export
 // slip would. Whether the change must be flagged is decided by the self-test's rules
 // (self_test.hpp), never by the check's verdict.
 
