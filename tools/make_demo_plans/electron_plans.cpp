@@ -195,7 +195,7 @@ std::vector<ElectronPlan> electron_plans() {
   scar.bolus_cm = demo_linac::demo_boli.front().thickness_cm;
   finish(scar, {-30.0, -60.0, 40.0});
   // Boost: 12 MeV, open applicator A10, SSD 100 cm, 2 Gy at 2 cm; the MU carry a deliberate +8 %
-  // transcription error that the check must flag.
+  // copying error that the check must flag.
   ElectronPlan boost = electron_plan("fern_electron_mu_error.dcm", "193", "E BOOST", "Boost 12 MeV",
                                      "FERN-PH-0193", 12.0, 10.0, 0.0, 1000.0, 20.0, 2.0);
   boost.plan.beams.front().mu_error_factor = 1.08;

@@ -53,7 +53,7 @@ struct BeamSpec {
   double off_axis_mm = 0.0;
   bool fixed_ssd = false;        // FIXED_SSD technique: PDD form instead of TMR form
   double planned_dose_gy = 0.0;  // the beam's dose at its dose point per fraction (0 for setup beams)
-  double mu_error_factor = 1.0;  // an invented transcription error, written into the MU only
+  double mu_error_factor = 1.0;  // an invented copying error, written into the MU only
 
   // Filled by the planner.
   std::optional<double> meterset_mu;
