@@ -59,6 +59,16 @@ plan::Plan shaped_plan() {
   return test_fixtures::make_plan({{beam, 100.0, 1.0, std::nullopt}});
 }
 
+patient::HuToDensity demo_table() {
+  return patient::piecewise_linear_density({{-1000.0, 0.0}, {0.0, 1.0}, {3000.0, 2.5}});
+}
+
+// The same plan on the phantom without and with the body outline.
+struct FullAndCut {
+  BeamDose full;
+  BeamDose cut;
+};
+
 struct BodyOutlineFixture : ::testing::Test {
   beamdata::Library library = test_fixtures::test_library();
   const beamdata::BeamData& data() const { return library.machines.front().beams.front(); }
@@ -72,6 +82,14 @@ struct BodyOutlineFixture : ::testing::Test {
     EXPECT_TRUE(point.has_value());
     return compute_beam_dose(plan, plan.beams.front(), rb, *point, library, options);
   }
+  FullAndCut both(double surface_x_mm, const plan::Plan& plan) {
+    const study::Study s = phantom(surface_x_mm);
+    const patient::PatientModel model(s, demo_table());
+    FullAndCut out{run(plan, model, false), run(plan, model, true)};
+    EXPECT_FALSE(out.full.problem);
+    EXPECT_FALSE(out.cut.problem);
+    return out;
+  }
   // F(r) of the header, r in cm at the point's plane.
   double f(double radius_cm) const {
     const double side_cm = std::sqrt(std::numbers::pi) * radius_cm;
@@ -79,18 +97,8 @@ struct BodyOutlineFixture : ::testing::Test {
   }
 };
 
-patient::HuToDensity demo_table() {
-  return patient::piecewise_linear_density({{-1000.0, 0.0}, {0.0, 1.0}, {3000.0, 2.5}});
-}
-
 TEST_F(BodyOutlineFixture, PointNearTheSurfaceLosesTheScatterOfTheMissingSectors) {
-  const study::Study s = phantom(30.0);
-  const patient::PatientModel model(s, demo_table());
-  const plan::Plan plan = shaped_plan();
-  const BeamDose full = run(plan, model, false);
-  const BeamDose cut = run(plan, model, true);
-  ASSERT_FALSE(full.problem);
-  ASSERT_FALSE(cut.problem);
+  const auto [full, cut] = both(30.0, shaped_plan());
   ASSERT_TRUE(full.patient && cut.patient);
   EXPECT_NEAR(cut.patient->ray.depth_mm, 100.0, 1e-6);  // hand: surface at y = -100
   ASSERT_EQ(cut.segments.size(), 1u);
@@ -131,13 +139,8 @@ TEST_F(BodyOutlineFixture, PointNearTheSurfaceLosesTheScatterOfTheMissingSectors
 
 TEST_F(BodyOutlineFixture, PointDeepInsideALargeBodyIsUnchanged) {
   // Surface 14 cm from the point; the farthest sector ray (the jaws' corner) reaches 7.07 cm.
-  const study::Study s = phantom(140.0);
-  const patient::PatientModel model(s, demo_table());
-  const plan::Plan plan = shaped_plan();
-  const BeamDose full = run(plan, model, false);
-  const BeamDose cut = run(plan, model, true);
-  ASSERT_FALSE(full.problem);
-  ASSERT_FALSE(cut.problem);
+  const auto [full, cut] = both(140.0, shaped_plan());
+  ASSERT_FALSE(cut.segments.empty());
   ASSERT_TRUE(cut.segments[0].sectors);
   EXPECT_TRUE(cut.segments[0].sectors->body_outline);
   EXPECT_EQ(cut.segments[0].sectors->rays_ended_at_body, 0);
@@ -148,13 +151,9 @@ TEST_F(BodyOutlineFixture, PointDeepInsideALargeBodyIsUnchanged) {
 TEST_F(BodyOutlineFixture, JawRectangleKeepsTheEquivalentSquare) {
   // Without an MLC the part goes through Sterling's equivalent square: the outline cannot act, the
   // dose is the full-scatter one (the check then keeps today's missing-tissue limit).
-  const study::Study s = phantom(30.0);
-  const patient::PatientModel model(s, demo_table());
-  const plan::Plan plan =
-      test_fixtures::make_plan({{test_fixtures::static_beam(1, 0.0), 100.0, 1.0, std::nullopt}});
-  const BeamDose full = run(plan, model, false);
-  const BeamDose cut = run(plan, model, true);
-  ASSERT_FALSE(cut.problem);
+  const auto [full, cut] =
+      both(30.0, test_fixtures::make_plan({{test_fixtures::static_beam(1, 0.0), 100.0, 1.0, std::nullopt}}));
+  ASSERT_FALSE(cut.segments.empty());
   EXPECT_EQ(cut.segments[0].scatter_method, ScatterMethod::equivalent_square);
   EXPECT_DOUBLE_EQ(cut.computed_dose_gy, full.computed_dose_gy);
   EXPECT_FALSE(cut.scatter_truncated_at_body());
